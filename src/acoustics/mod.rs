@@ -1,0 +1,1 @@
+//! acoustics (work in progress).

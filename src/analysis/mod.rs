@@ -1,0 +1,23 @@
+//! Pure signal processing: finding taps in a stream of samples, measuring
+//! the modes (frequency, Q, level) of each tap, combining taps into a pass,
+//! the display spectrum and pitch naming. No files, no devices, no window.
+//!
+//! The method is the one in `DEVELOPERS.md` ("How a tap is measured"): a
+//! complex-ratio estimate on the unwindowed DFT of a record matched to each
+//! mode's decay, subtraction of stronger modes, then a joint least-squares
+//! refinement of overlapping modes in the time domain.
+
+pub mod aggregate;
+pub mod modal;
+pub mod pitch;
+pub mod recording;
+pub mod spectrum;
+pub mod synth;
+pub mod tap_finder;
+
+pub use aggregate::{aggregate_taps, PassMode, PassResult};
+pub use modal::{AnalysisSettings, Mode, TapAnalysis, TapAnalyzer};
+pub use pitch::{Pitch, DEFAULT_A4_HZ};
+pub use recording::{analyze_recording, RecordingReport, TapRecord};
+pub use spectrum::DisplaySpectrum;
+pub use tap_finder::{FoundTap, RejectReason, TapTrigger, TriggerEvent, TriggerSettings};

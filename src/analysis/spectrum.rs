@@ -1,0 +1,3 @@
+//! Display spectrum (being built).
+#[derive(Clone, Debug)]
+pub struct DisplaySpectrum {}

@@ -1,0 +1,1 @@
+//! Shared report printing (being built).

@@ -1,0 +1,3 @@
+fn main() -> std::process::ExitCode {
+    tapwright::cli::run_from_env()
+}

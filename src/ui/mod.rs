@@ -1,0 +1,14 @@
+//! The workbench window (being built).
+
+/// Options for opening the window.
+#[derive(Debug, Clone, Default, clap::Args)]
+pub struct WorkbenchOptions {
+    /// Run on the bundled demo recording instead of a microphone.
+    #[arg(long)]
+    pub demo: bool,
+}
+
+/// Opens the workbench window and blocks until it is closed.
+pub fn run_workbench(_options: &WorkbenchOptions) -> anyhow::Result<()> {
+    anyhow::bail!("the window is not built yet; try `tapwright analyze assets/demo_plate_taps.wav`")
+}

@@ -1,0 +1,1 @@
+//! WAV files in and out (being built).
