@@ -1,0 +1,432 @@
+//! Audio input devices through cpal: listing them, and a [`DeviceSource`]
+//! that runs a cpal input stream into a sample ring.
+//!
+//! The data callback converts whatever sample format the device delivers
+//! (f32, f64, i8, i16, i24, i32, i64, u8, u16, u24, u32, u64) to f32, mixes
+//! the channels to mono and pushes into the pre-allocated ring; samples that
+//! do not fit are counted, never waited for. Stream errors travel through a
+//! second small ring to the worker. The callback allocates nothing, takes no
+//! lock and makes no system call.
+
+use std::time::{Duration, Instant};
+
+use cpal::traits::{DeviceTrait, HostTrait, StreamTrait};
+use cpal::{FromSample, SampleFormat, SizedSample, StreamConfig, SupportedStreamConfig};
+
+use super::ring::{sample_ring, RingReader, RingWriter};
+use super::source::{OpenSource, SampleSource, SourceRead};
+use super::{check_sample_rate, ring_capacity_samples, CaptureError};
+
+/// Stream errors waiting for the worker (more are dropped).
+const ERROR_RING_LEN: usize = 16;
+/// How long cpal may wait for the backend (ALSA uses it as its poll timeout).
+const BACKEND_TIMEOUT: Duration = Duration::from_millis(500);
+/// Sleep between looks at an empty ring.
+const POLL_SLEEP: Duration = Duration::from_millis(1);
+
+/// An input device as `tapwright devices` and the window list it.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct DeviceInfo {
+    /// The name to show (and to pass to `--device`).
+    pub name: String,
+    /// The system's identifier, unique even when names repeat (also
+    /// accepted by `--device`), e.g. `alsa:hw:CARD=0,DEV=0`.
+    pub id: String,
+    /// True for the system's default input.
+    pub is_default: bool,
+    /// Channel counts it can record, ascending.
+    pub channels: Vec<u16>,
+    /// Sample-rate ranges it can record at, (lowest, highest) Hz, ascending.
+    pub sample_rates_hz: Vec<(u32, u32)>,
+}
+
+/// The first audio system that starts (on Linux: ALSA).
+fn audio_host() -> Result<cpal::Host, CaptureError> {
+    let mut last_problem = String::from("no audio system is compiled in");
+    for id in cpal::available_hosts() {
+        match cpal::host_from_id(id) {
+            Ok(host) => return Ok(host),
+            Err(error) => last_problem = error.to_string(),
+        }
+    }
+    Err(CaptureError::NoAudioSystem {
+        detail: last_problem,
+    })
+}
+
+fn device_name(device: &cpal::Device) -> String {
+    match device.description() {
+        Ok(description) => description.name().to_owned(),
+        Err(_) => device_id(device),
+    }
+}
+
+fn device_id(device: &cpal::Device) -> String {
+    device.id().map(|id| id.to_string()).unwrap_or_default()
+}
+
+/// Lists the input devices that can be opened now, the default first.
+/// An empty list means there is no usable input device.
+pub fn list_input_devices() -> Result<Vec<DeviceInfo>, CaptureError> {
+    let host = audio_host()?;
+    let default_id = host.default_input_device().map(|d| device_id(&d));
+    let mut devices: Vec<cpal::Device> = host
+        .input_devices()
+        .map_err(|e| CaptureError::NoAudioSystem {
+            detail: e.to_string(),
+        })?
+        .collect();
+    if let Some(default) = host.default_input_device() {
+        if !devices.iter().any(|d| device_id(d) == device_id(&default)) {
+            devices.insert(0, default);
+        }
+    }
+    let mut infos: Vec<DeviceInfo> = devices
+        .iter()
+        .filter_map(|d| describe(d, default_id.as_deref()))
+        .collect();
+    infos.sort_by_key(|info| !info.is_default);
+    Ok(infos)
+}
+
+/// Name, id, channels and rates of one device; None if it cannot record now.
+fn describe(device: &cpal::Device, default_id: Option<&str>) -> Option<DeviceInfo> {
+    let configs: Vec<cpal::SupportedStreamConfigRange> = device
+        .supported_input_configs()
+        .ok()?
+        .filter(|c| is_pcm(c.sample_format()))
+        .collect();
+    if configs.is_empty() {
+        return None;
+    }
+    let mut channels: Vec<u16> = configs.iter().map(|c| c.channels()).collect();
+    channels.sort_unstable();
+    channels.dedup();
+    let mut sample_rates_hz: Vec<(u32, u32)> = configs
+        .iter()
+        .map(|c| (c.min_sample_rate(), c.max_sample_rate()))
+        .collect();
+    sample_rates_hz.sort_unstable();
+    sample_rates_hz.dedup();
+    let id = device_id(device);
+    Some(DeviceInfo {
+        name: device_name(device),
+        is_default: default_id == Some(id.as_str()),
+        id,
+        channels,
+        sample_rates_hz,
+    })
+}
+
+fn is_pcm(format: SampleFormat) -> bool {
+    !matches!(
+        format,
+        SampleFormat::DsdU8 | SampleFormat::DsdU16 | SampleFormat::DsdU32
+    )
+}
+
+/// Finds a device by exact id (with or without the host prefix), exact
+/// name, or a case-insensitive part of exactly one name.
+fn find_device(host: &cpal::Host, wanted: &str) -> Result<cpal::Device, CaptureError> {
+    let mut devices: Vec<cpal::Device> = host
+        .input_devices()
+        .map_err(|e| CaptureError::NoAudioSystem {
+            detail: e.to_string(),
+        })?
+        .collect();
+    if let Some(default) = host.default_input_device() {
+        if !devices.iter().any(|d| device_id(d) == device_id(&default)) {
+            devices.push(default);
+        }
+    }
+    let by_id = devices.iter().position(|d| {
+        d.id()
+            .is_ok_and(|id| id.to_string() == wanted || id.id() == wanted)
+    });
+    if let Some(index) = by_id {
+        return Ok(devices.swap_remove(index));
+    }
+    if let Some(index) = devices.iter().position(|d| device_name(d) == wanted) {
+        return Ok(devices.swap_remove(index));
+    }
+    let lower = wanted.to_lowercase();
+    let mut partial: Vec<usize> = (0..devices.len())
+        .filter(|&i| device_name(&devices[i]).to_lowercase().contains(&lower))
+        .collect();
+    match partial.len() {
+        1 => Ok(devices.swap_remove(partial.remove(0))),
+        0 => Err(CaptureError::DeviceNotFound {
+            name: wanted.to_owned(),
+            known: known_names(&devices),
+        }),
+        _ => Err(CaptureError::AmbiguousDevice {
+            name: wanted.to_owned(),
+            matches: partial
+                .iter()
+                .map(|&i| device_id(&devices[i]))
+                .collect::<Vec<_>>()
+                .join(", "),
+        }),
+    }
+}
+
+fn known_names(devices: &[cpal::Device]) -> String {
+    if devices.is_empty() {
+        return "none".to_owned();
+    }
+    let mut names: Vec<String> = devices.iter().map(device_name).collect();
+    names.dedup();
+    let shown = names.len().min(6);
+    let mut text = names[..shown].join(", ");
+    if names.len() > shown {
+        text.push_str(&format!(" and {} more", names.len() - shown));
+    }
+    text
+}
+
+/// The stream configuration to ask for: the device's default if it is PCM,
+/// else the best PCM configuration it offers (48 kHz if it can).
+fn choose_config(device: &cpal::Device, name: &str) -> Result<SupportedStreamConfig, CaptureError> {
+    match device.default_input_config() {
+        Ok(config) if is_pcm(config.sample_format()) => return Ok(config),
+        Ok(_) => {}
+        Err(error) => return Err(open_error(name, &error)),
+    }
+    let best = device
+        .supported_input_configs()
+        .map_err(|e| open_error(name, &e))?
+        .filter(|c| is_pcm(c.sample_format()))
+        .max_by(|a, b| a.cmp_default_heuristics(b));
+    match best {
+        Some(range) => Ok(range
+            .try_with_standard_sample_rate()
+            .unwrap_or_else(|| range.with_max_sample_rate())),
+        None => Err(CaptureError::NoUsableFormat {
+            device: name.to_owned(),
+        }),
+    }
+}
+
+/// Turns a cpal error met while opening into one of ours.
+fn open_error(device: &str, error: &cpal::Error) -> CaptureError {
+    let device = device.to_owned();
+    let detail = error.to_string();
+    match error.kind() {
+        cpal::ErrorKind::DeviceBusy => CaptureError::DeviceBusy { device },
+        cpal::ErrorKind::DeviceNotAvailable | cpal::ErrorKind::HostUnavailable => {
+            CaptureError::DeviceUnavailable { device, detail }
+        }
+        cpal::ErrorKind::PermissionDenied => CaptureError::PermissionDenied { device, detail },
+        cpal::ErrorKind::UnsupportedConfig => CaptureError::NoUsableFormat { device },
+        _ => CaptureError::Open { device, detail },
+    }
+}
+
+/// A live input stream read through a ring.
+pub struct DeviceSource {
+    description: String,
+    sample_rate_hz: u32,
+    reader: RingReader,
+    errors: rtrb::Consumer<cpal::Error>,
+    /// Kept alive for as long as the source is; dropping it stops the stream.
+    _stream: cpal::Stream,
+    last_notice: Option<Instant>,
+}
+
+impl std::fmt::Debug for DeviceSource {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("DeviceSource")
+            .field("description", &self.description)
+            .field("sample_rate_hz", &self.sample_rate_hz)
+            .finish_non_exhaustive()
+    }
+}
+
+/// Opens the default input (`None`) or the named one, with a ring of
+/// `ring_capacity_s` seconds, and starts it.
+pub fn open_device(
+    wanted: Option<&str>,
+    ring_capacity_s: f64,
+) -> Result<DeviceSource, CaptureError> {
+    let host = audio_host()?;
+    let device = match wanted {
+        None => host
+            .default_input_device()
+            .ok_or(CaptureError::NoInputDevice)?,
+        Some(name) => find_device(&host, name)?,
+    };
+    let name = device_name(&device);
+    let supported = choose_config(&device, &name)?;
+    let sample_rate_hz = check_sample_rate(supported.sample_rate())?;
+    let config: StreamConfig = supported.config();
+    let (writer, reader) = sample_ring(ring_capacity_samples(ring_capacity_s, sample_rate_hz));
+    let (error_writer, errors) = rtrb::RingBuffer::new(ERROR_RING_LEN);
+    let stream = build_stream(
+        &device,
+        &config,
+        supported.sample_format(),
+        writer,
+        error_writer,
+    )
+    .map_err(|e| open_error(&name, &e))?;
+    stream.play().map_err(|e| open_error(&name, &e))?;
+    let channels = config.channels;
+    Ok(DeviceSource {
+        description: format!(
+            "{name} ({} Hz, {channels} ch, {})",
+            sample_rate_hz,
+            supported.sample_format()
+        ),
+        sample_rate_hz,
+        reader,
+        errors,
+        _stream: stream,
+        last_notice: None,
+    })
+}
+
+fn build_stream(
+    device: &cpal::Device,
+    config: &StreamConfig,
+    format: SampleFormat,
+    writer: RingWriter,
+    errors: rtrb::Producer<cpal::Error>,
+) -> Result<cpal::Stream, cpal::Error> {
+    use cpal::{I24, U24};
+    match format {
+        SampleFormat::F32 => build_typed::<f32>(device, config, writer, errors),
+        SampleFormat::F64 => build_typed::<f64>(device, config, writer, errors),
+        SampleFormat::I8 => build_typed::<i8>(device, config, writer, errors),
+        SampleFormat::I16 => build_typed::<i16>(device, config, writer, errors),
+        SampleFormat::I24 => build_typed::<I24>(device, config, writer, errors),
+        SampleFormat::I32 => build_typed::<i32>(device, config, writer, errors),
+        SampleFormat::I64 => build_typed::<i64>(device, config, writer, errors),
+        SampleFormat::U8 => build_typed::<u8>(device, config, writer, errors),
+        SampleFormat::U16 => build_typed::<u16>(device, config, writer, errors),
+        SampleFormat::U24 => build_typed::<U24>(device, config, writer, errors),
+        SampleFormat::U32 => build_typed::<u32>(device, config, writer, errors),
+        SampleFormat::U64 => build_typed::<u64>(device, config, writer, errors),
+        _ => Err(cpal::Error::with_message(
+            cpal::ErrorKind::UnsupportedConfig,
+            format!("the {format} sample format is not PCM"),
+        )),
+    }
+}
+
+/// Builds the stream for sample type `T`. The data callback is the only
+/// code on the audio thread: convert, mix, push, count.
+fn build_typed<T>(
+    device: &cpal::Device,
+    config: &StreamConfig,
+    mut writer: RingWriter,
+    mut errors: rtrb::Producer<cpal::Error>,
+) -> Result<cpal::Stream, cpal::Error>
+where
+    T: SizedSample + Send + 'static,
+    f32: FromSample<T>,
+{
+    let channels = usize::from(config.channels);
+    device.build_input_stream_raw(
+        config.clone(),
+        T::FORMAT,
+        move |data: &cpal::Data, _info: &cpal::InputCallbackInfo| {
+            if let Some(samples) = data.as_slice::<T>() {
+                writer.push_interleaved(samples, channels, <f32 as FromSample<T>>::from_sample_);
+            }
+        },
+        move |error: cpal::Error| {
+            // Full ring: an older error is already waiting; drop this one.
+            let _ = errors.push(error);
+        },
+        Some(BACKEND_TIMEOUT),
+    )
+}
+
+impl DeviceSource {
+    /// The first stream error that means the device is gone, as a sentence;
+    /// lesser problems become a notice at most once a second.
+    fn check_errors(&mut self) -> Option<SourceRead> {
+        while let Ok(error) = self.errors.pop() {
+            match error.kind() {
+                cpal::ErrorKind::DeviceNotAvailable
+                | cpal::ErrorKind::StreamInvalidated
+                | cpal::ErrorKind::HostUnavailable
+                | cpal::ErrorKind::PermissionDenied => {
+                    return Some(SourceRead::Lost(format!(
+                        "the input device {} stopped working ({})",
+                        self.description,
+                        error.to_string().trim_end_matches('.')
+                    )));
+                }
+                cpal::ErrorKind::RealtimeDenied => {}
+                _ => {
+                    let due = self
+                        .last_notice
+                        .is_none_or(|t| t.elapsed() >= Duration::from_secs(1));
+                    if due {
+                        self.last_notice = Some(Instant::now());
+                        return Some(SourceRead::Notice(format!(
+                            "the input device reported a problem: {}",
+                            error.to_string().trim_end_matches('.')
+                        )));
+                    }
+                }
+            }
+        }
+        None
+    }
+}
+
+impl SampleSource for DeviceSource {
+    fn description(&self) -> &str {
+        &self.description
+    }
+
+    fn sample_rate_hz(&self) -> u32 {
+        self.sample_rate_hz
+    }
+
+    fn read(&mut self, out: &mut [f32], max_wait: Duration) -> SourceRead {
+        let deadline = Instant::now() + max_wait;
+        loop {
+            let n = self.reader.pop_into(out);
+            if n > 0 {
+                return SourceRead::Samples(n);
+            }
+            if let Some(problem) = self.check_errors() {
+                return problem;
+            }
+            if Instant::now() >= deadline {
+                return SourceRead::Waiting;
+            }
+            std::thread::sleep(POLL_SLEEP);
+        }
+    }
+
+    fn dropped_samples(&self) -> u64 {
+        self.reader.dropped_samples()
+    }
+
+    fn is_live(&self) -> bool {
+        true
+    }
+}
+
+/// Opens (and reopens) an input device by name.
+#[derive(Debug)]
+pub(crate) struct DeviceOpener {
+    pub(crate) wanted: Option<String>,
+}
+
+impl OpenSource for DeviceOpener {
+    fn open(&mut self, ring_capacity_s: f64) -> Result<Box<dyn SampleSource>, CaptureError> {
+        Ok(Box::new(open_device(
+            self.wanted.as_deref(),
+            ring_capacity_s,
+        )?))
+    }
+
+    fn can_reopen(&self) -> bool {
+        true
+    }
+}
