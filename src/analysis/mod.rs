@@ -8,6 +8,7 @@
 //! refinement of overlapping modes in the time domain.
 
 pub mod aggregate;
+mod linalg;
 pub mod modal;
 pub mod pitch;
 pub mod recording;
@@ -18,6 +19,6 @@ pub mod tap_finder;
 pub use aggregate::{aggregate_taps, PassMode, PassResult};
 pub use modal::{AnalysisSettings, Mode, TapAnalysis, TapAnalyzer};
 pub use pitch::{Pitch, DEFAULT_A4_HZ};
-pub use recording::{analyze_recording, RecordingReport, TapRecord};
+pub use recording::{analyze_recording, RecordingReport, RejectedTap, TapRecord};
 pub use spectrum::DisplaySpectrum;
-pub use tap_finder::{FoundTap, RejectReason, TapTrigger, TriggerEvent, TriggerSettings};
+pub use tap_finder::{find_taps, FoundTap, RejectReason, TapTrigger, TriggerEvent, TriggerSettings};

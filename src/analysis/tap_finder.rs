@@ -1,20 +1,697 @@
-//! Finding taps in a stream of samples (being built).
+//! Finding taps in a stream of samples.
+//!
+//! [`TapTrigger`] is a streaming state machine (armed → recording →
+//! settling → armed) fed with any number of samples at a time; the capture
+//! worker feeds it live input and [`find_taps`] feeds it a whole recording,
+//! so a file and the microphone are judged by the same rules:
+//!
+//! - envelope: RMS over blocks of about 1 ms;
+//! - noise floor: running median of the block levels over about 1 s, updated
+//!   only while armed;
+//! - trigger when a block rises `margin_db` above the floor; the record starts
+//!   `pre_trigger_ms` before that block and runs `record_ms` after it;
+//! - reject, with the reason: clipped (two or more consecutive samples at
+//!   ≥ 99 % of full scale), double strike (the envelope rises again by more
+//!   than `double_strike_rise_db` during the decay), too quiet (a rise that
+//!   clears half the margin but never the margin), too short (the record
+//!   ends before `min_record_ms`, or the ringing dies within
+//!   `min_ring_ms`);
+//! - re-arm only after `refractory_ms` and once the envelope is back within
+//!   `settle_db` of the floor (or a new strike clearly starts).
+
+use std::collections::VecDeque;
+use std::fmt;
+
 use serde::{Deserialize, Serialize};
 
 /// Why a tap was left out of a pass.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
 #[serde(rename_all = "snake_case")]
 pub enum RejectReason {
+    /// Two or more consecutive samples at 99 % of full scale or more.
     Clipped,
+    /// The sound rose again during the decay: a second strike or a rattle.
     DoubleStrike,
+    /// The strike rose above the noise but not by the trigger margin.
     TooQuiet,
+    /// The recording ended too soon after the strike, or the sound died at once.
     TooShort,
+    /// Left out by the user.
+    LeftOut,
 }
+
+impl RejectReason {
+    /// A short phrase for tables.
+    pub fn short_text(self) -> &'static str {
+        match self {
+            Self::Clipped => "clipped",
+            Self::DoubleStrike => "double strike",
+            Self::TooQuiet => "too quiet",
+            Self::TooShort => "too short",
+            Self::LeftOut => "left out",
+        }
+    }
+
+    /// What the maker can do about it.
+    pub fn advice(self) -> &'static str {
+        match self {
+            Self::Clipped => "the input overloaded: tap more softly or turn the input gain down",
+            Self::DoubleStrike => "the sound rose again while decaying: tap once, let the mallet bounce off",
+            Self::TooQuiet => "the tap barely rose above the room noise: tap a little harder or move the microphone closer",
+            Self::TooShort => "the tap did not ring long enough to measure",
+            Self::LeftOut => "left out by hand",
+        }
+    }
+}
+
+impl fmt::Display for RejectReason {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(self.short_text())
+    }
+}
+
+/// How taps are found. Times in milliseconds, levels in dB.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-pub struct TriggerSettings {}
+#[serde(default)]
+pub struct TriggerSettings {
+    /// How far above the noise floor a strike must rise.
+    pub margin_db: f64,
+    /// How much of the sound before the strike each record keeps.
+    pub pre_trigger_ms: f64,
+    /// Length of each record after the strike.
+    pub record_ms: f64,
+    /// Minimum time between the end of one record and the next strike.
+    pub refractory_ms: f64,
+    /// A record shorter than this (the input ended) is rejected.
+    pub min_record_ms: f64,
+    /// Ringing shorter than this (back to the floor) is rejected.
+    pub min_ring_ms: f64,
+    /// A rise by more than this during the decay is a double strike.
+    pub double_strike_rise_db: f64,
+    /// The envelope must fall back within this of the floor to re-arm.
+    pub settle_db: f64,
+    /// Envelope block length.
+    pub envelope_ms: f64,
+    /// Noise-floor median window.
+    pub floor_window_ms: f64,
+}
+
+impl Default for TriggerSettings {
+    fn default() -> Self {
+        Self {
+            margin_db: 20.0,
+            pre_trigger_ms: 5.0,
+            record_ms: 1000.0,
+            refractory_ms: 100.0,
+            min_record_ms: 100.0,
+            min_ring_ms: 15.0,
+            double_strike_rise_db: 6.0,
+            settle_db: 6.0,
+            envelope_ms: 1.0,
+            floor_window_ms: 1000.0,
+        }
+    }
+}
+
+/// One strike found in the stream, accepted or not.
+#[derive(Clone, Debug, PartialEq)]
+pub struct FoundTap {
+    /// Stream position (samples since the trigger started) of the first
+    /// sample of `samples`.
+    pub start_sample: u64,
+    /// Index in `samples` of the block where the strike was detected.
+    pub onset_index: usize,
+    /// The record: `pre_trigger_ms` before the strike, up to `record_ms` after.
+    pub samples: Vec<f32>,
+    /// Loudest envelope block of the record, dB full scale.
+    pub peak_dbfs: f64,
+    /// Noise floor when the strike came, dB full scale.
+    pub floor_dbfs: f64,
+    /// Why the tap is left out, if it is.
+    pub rejected: Option<RejectReason>,
+}
+
+impl FoundTap {
+    /// Stream position of the strike.
+    pub fn onset_sample(&self) -> u64 {
+        self.start_sample + self.onset_index as u64
+    }
+
+    /// The part of the record from the strike on.
+    pub fn from_onset(&self) -> &[f32] {
+        &self.samples[self.onset_index.min(self.samples.len())..]
+    }
+}
+
+/// What the trigger reports.
+#[derive(Clone, Debug, PartialEq)]
+pub enum TriggerEvent {
+    /// A strike was detected; its record follows in a [`TriggerEvent::Tap`].
+    Started { onset_sample: u64 },
+    /// A finished tap, accepted or rejected.
+    Tap(FoundTap),
+}
+
+/// Lowest level the floor may take: digital silence must not make the
+/// trigger fire on rounding noise.
+const FLOOR_MIN_DBFS: f64 = -100.0;
+/// Level histogram resolution for the running median.
+const HIST_STEP_DB: f64 = 0.25;
+const HIST_MIN_DB: f64 = -160.0;
+const HIST_BINS: usize = 680; // -160 .. +10 dB
+/// Blocks of quiet needed before the trigger arms for the first time.
+const WARM_UP_BLOCKS: usize = 20;
+/// Time after the envelope peak during which the strike itself is still
+/// going on, so rises are not double strikes.
+const CONTACT_MS: f64 = 4.0;
+/// How long a sub-margin rise may last before it counts as a too-quiet tap.
+const QUIET_RISE_MS: f64 = 30.0;
+/// Full-scale fraction that counts as clipped.
+const CLIP_LEVEL: f32 = 0.99;
+/// Averaging time of the slow envelope used to follow the decay: 10 ms
+/// averages the power of any mode above 40 Hz to within about 1 dB
+/// (sin² repeats every half period), where the 1 ms trigger envelope of a
+/// low mode swings with every cycle.
+const DECAY_ENVELOPE_MS: f64 = 10.0;
+
+#[derive(Clone, Debug, PartialEq)]
+enum State {
+    Armed,
+    /// A rise above half the margin that has not reached the margin yet.
+    Rising { blocks: usize, peak_db: f64 },
+    Recording(Recording),
+    Settling { blocks: usize, min_db: f64 },
+}
+
+#[derive(Clone, Debug, PartialEq)]
+struct Recording {
+    start_sample: u64,
+    onset_index: usize,
+    samples: Vec<f32>,
+    target_len: usize,
+    floor_db: f64,
+    peak_db: f64,
+    blocks_since_peak: usize,
+    min_db_since_peak: f64,
+    /// Block index (since onset) at which the envelope first fell back to
+    /// the floor, if it has.
+    died_after_blocks: Option<usize>,
+    blocks: usize,
+    clip_run: usize,
+    clipped: bool,
+    double: bool,
+}
+
+/// Running median of block levels by a histogram of 0.25 dB bins.
 #[derive(Clone, Debug)]
-pub struct FoundTap {}
+struct FloorTracker {
+    history: VecDeque<u16>,
+    counts: Vec<u32>,
+    capacity: usize,
+}
+
+impl FloorTracker {
+    fn new(capacity: usize) -> Self {
+        Self {
+            history: VecDeque::with_capacity(capacity + 1),
+            counts: vec![0; HIST_BINS],
+            capacity: capacity.max(1),
+        }
+    }
+
+    fn bin(level_db: f64) -> u16 {
+        let index = ((level_db - HIST_MIN_DB) / HIST_STEP_DB).floor();
+        index.clamp(0.0, (HIST_BINS - 1) as f64) as u16
+    }
+
+    fn push(&mut self, level_db: f64) {
+        let bin = Self::bin(level_db);
+        self.history.push_back(bin);
+        self.counts[usize::from(bin)] += 1;
+        if self.history.len() > self.capacity {
+            if let Some(old) = self.history.pop_front() {
+                self.counts[usize::from(old)] -= 1;
+            }
+        }
+    }
+
+    fn len(&self) -> usize {
+        self.history.len()
+    }
+
+    fn median_db(&self) -> f64 {
+        let half = self.history.len().div_ceil(2) as u32;
+        let mut seen = 0;
+        for (bin, &count) in self.counts.iter().enumerate() {
+            seen += count;
+            if seen >= half && count > 0 {
+                return HIST_MIN_DB + (bin as f64 + 0.5) * HIST_STEP_DB;
+            }
+        }
+        HIST_MIN_DB
+    }
+}
+
+/// Streaming tap finder. Feed it samples with [`TapTrigger::push`]; call
+/// [`TapTrigger::finish`] at the end of a recording.
 #[derive(Clone, Debug)]
-pub enum TriggerEvent {}
-#[derive(Debug)]
-pub struct TapTrigger {}
+pub struct TapTrigger {
+    settings: TriggerSettings,
+    sample_rate_hz: f64,
+    block_len: usize,
+    block_sum_sq: f64,
+    block_fill: usize,
+    /// The last `pre_len + block_len` samples, for the pre-trigger.
+    history: VecDeque<f32>,
+    pre_len: usize,
+    position: u64,
+    floor: FloorTracker,
+    state: State,
+    /// The last block powers, for the slow envelope.
+    recent_powers: VecDeque<f64>,
+    recent_sum: f64,
+    recent_len: usize,
+}
+
+impl TapTrigger {
+    pub fn new(settings: TriggerSettings, sample_rate_hz: f64) -> Self {
+        let sample_rate_hz = if sample_rate_hz.is_finite() && sample_rate_hz > 0.0 {
+            sample_rate_hz
+        } else {
+            48_000.0
+        };
+        let block_len = ms_to_samples(settings.envelope_ms, sample_rate_hz).max(1);
+        let pre_len = ms_to_samples(settings.pre_trigger_ms, sample_rate_hz);
+        let floor_blocks = (settings.floor_window_ms / settings.envelope_ms.max(0.1)).round() as usize;
+        let recent_len = ((DECAY_ENVELOPE_MS / settings.envelope_ms.max(0.1)).round() as usize).max(1);
+        Self {
+            recent_powers: VecDeque::with_capacity(recent_len + 1),
+            recent_sum: 0.0,
+            recent_len,
+            block_len,
+            pre_len,
+            history: VecDeque::with_capacity(pre_len + block_len + 1),
+            floor: FloorTracker::new(floor_blocks),
+            settings,
+            sample_rate_hz,
+            block_sum_sq: 0.0,
+            block_fill: 0,
+            position: 0,
+            state: State::Armed,
+        }
+    }
+
+    pub fn settings(&self) -> &TriggerSettings {
+        &self.settings
+    }
+
+    pub fn sample_rate_hz(&self) -> f64 {
+        self.sample_rate_hz
+    }
+
+    /// Changes the settings while running. The noise floor is kept; a record
+    /// under way finishes with the new length.
+    pub fn set_settings(&mut self, settings: TriggerSettings) {
+        let floor = std::mem::replace(&mut self.floor, FloorTracker::new(1));
+        let state = std::mem::replace(&mut self.state, State::Armed);
+        let position = self.position;
+        *self = Self::new(settings, self.sample_rate_hz);
+        self.floor = floor;
+        self.position = position;
+        self.state = match state {
+            State::Recording(mut rec) => {
+                rec.target_len = rec.onset_index + ms_to_samples(self.settings.record_ms, self.sample_rate_hz);
+                State::Recording(rec)
+            }
+            other => other,
+        };
+    }
+
+    /// Current noise floor estimate in dB full scale (None while warming up).
+    pub fn floor_dbfs(&self) -> Option<f64> {
+        (self.floor.len() >= WARM_UP_BLOCKS).then(|| self.floor.median_db().max(FLOOR_MIN_DBFS))
+    }
+
+    /// True while a strike is being recorded.
+    pub fn is_recording(&self) -> bool {
+        matches!(self.state, State::Recording(_))
+    }
+
+    /// Samples seen so far.
+    pub fn position(&self) -> u64 {
+        self.position
+    }
+
+    /// Feeds samples; finished taps are appended to `events`.
+    pub fn push(&mut self, samples: &[f32], events: &mut Vec<TriggerEvent>) {
+        for &sample in samples {
+            self.push_sample(sample, events);
+        }
+    }
+
+    /// Ends the stream: a record under way is finished as it is (and
+    /// rejected as too short if it is shorter than `min_record_ms`).
+    pub fn finish(&mut self, events: &mut Vec<TriggerEvent>) {
+        if let State::Recording(rec) = std::mem::replace(&mut self.state, State::Armed) {
+            events.push(TriggerEvent::Tap(self.close_record(rec)));
+        }
+    }
+
+    fn push_sample(&mut self, sample: f32, events: &mut Vec<TriggerEvent>) {
+        self.position += 1;
+        if self.history.len() == self.pre_len + self.block_len {
+            self.history.pop_front();
+        }
+        self.history.push_back(sample);
+        if let State::Recording(rec) = &mut self.state {
+            rec.samples.push(sample);
+            if sample.abs() >= CLIP_LEVEL {
+                rec.clip_run += 1;
+                rec.clipped |= rec.clip_run >= 2;
+            } else {
+                rec.clip_run = 0;
+            }
+        }
+        self.block_sum_sq += f64::from(sample) * f64::from(sample);
+        self.block_fill += 1;
+        if self.block_fill == self.block_len {
+            let power = self.block_sum_sq / self.block_len as f64;
+            self.block_sum_sq = 0.0;
+            self.block_fill = 0;
+            let slow_db = self.slow_envelope_db(power);
+            self.on_block(power_to_db(power), slow_db, events);
+        }
+    }
+
+    fn slow_envelope_db(&mut self, power: f64) -> f64 {
+        self.recent_powers.push_back(power);
+        self.recent_sum += power;
+        if self.recent_powers.len() > self.recent_len {
+            if let Some(old) = self.recent_powers.pop_front() {
+                self.recent_sum -= old;
+            }
+        }
+        power_to_db(self.recent_sum.max(0.0) / self.recent_powers.len() as f64)
+    }
+
+    /// `level_db` is the fast (trigger) envelope, `slow_db` the decay envelope.
+    fn on_block(&mut self, level_db: f64, slow_db: f64, events: &mut Vec<TriggerEvent>) {
+        let Some(floor_db) = self.floor_dbfs() else {
+            self.floor.push(level_db);
+            return;
+        };
+        let margin = self.settings.margin_db;
+        let state = std::mem::replace(&mut self.state, State::Armed);
+        self.state = match state {
+            State::Armed => {
+                if level_db > floor_db + margin {
+                    self.start_record(floor_db, slow_db, events)
+                } else if level_db > floor_db + margin / 2.0 {
+                    State::Rising { blocks: 1, peak_db: level_db }
+                } else {
+                    self.floor.push(level_db);
+                    State::Armed
+                }
+            }
+            State::Rising { blocks, peak_db } => {
+                if level_db > floor_db + margin {
+                    self.start_record(floor_db, slow_db, events)
+                } else if level_db > floor_db + margin / 2.0 {
+                    State::Rising { blocks: blocks + 1, peak_db: peak_db.max(level_db) }
+                } else if self.blocks_to_ms(blocks) <= QUIET_RISE_MS {
+                    events.push(TriggerEvent::Tap(self.quiet_tap(blocks, floor_db, peak_db)));
+                    State::Armed
+                } else {
+                    // A slow swell (a voice, a door): not a tap at all.
+                    State::Armed
+                }
+            }
+            State::Recording(rec) => self.continue_record(rec, slow_db, events),
+            State::Settling { blocks, min_db } => {
+                self.continue_settling(blocks, min_db, (level_db, slow_db), floor_db, events)
+            }
+        };
+    }
+
+    fn start_record(&mut self, floor_db: f64, slow_db: f64, events: &mut Vec<TriggerEvent>) -> State {
+        let samples: Vec<f32> = self.history.iter().copied().collect();
+        let onset_index = samples.len().saturating_sub(self.block_len);
+        let start_sample = self.position - samples.len() as u64;
+        let record_len = ms_to_samples(self.settings.record_ms, self.sample_rate_hz);
+        let mut all = Vec::with_capacity(onset_index + record_len + self.block_len);
+        all.extend_from_slice(&samples);
+        let clip_run = samples.iter().rev().take_while(|s| s.abs() >= CLIP_LEVEL).count();
+        let clipped = samples.windows(2).any(|w| w[0].abs() >= CLIP_LEVEL && w[1].abs() >= CLIP_LEVEL);
+        events.push(TriggerEvent::Started { onset_sample: start_sample + onset_index as u64 });
+        State::Recording(Recording {
+            start_sample,
+            onset_index,
+            samples: all,
+            target_len: onset_index + record_len,
+            floor_db,
+            peak_db: slow_db,
+            blocks_since_peak: 0,
+            min_db_since_peak: slow_db,
+            died_after_blocks: None,
+            blocks: 1,
+            clip_run,
+            clipped,
+            double: false,
+        })
+    }
+
+    fn continue_record(&mut self, mut rec: Recording, level_db: f64, events: &mut Vec<TriggerEvent>) -> State {
+        rec.blocks += 1;
+        if level_db > rec.peak_db && !self.past_contact(rec.blocks_since_peak, rec.blocks) {
+            rec.peak_db = level_db;
+            rec.blocks_since_peak = 0;
+            rec.min_db_since_peak = level_db;
+        } else {
+            rec.blocks_since_peak += 1;
+            rec.min_db_since_peak = rec.min_db_since_peak.min(level_db);
+            let rise = level_db - rec.min_db_since_peak;
+            let loud = level_db > rec.floor_db + self.settings.margin_db / 2.0;
+            if self.past_contact(rec.blocks_since_peak, rec.blocks) && loud && rise > self.settings.double_strike_rise_db {
+                rec.double = true;
+            }
+        }
+        if rec.died_after_blocks.is_none() && level_db < rec.floor_db + self.settings.settle_db {
+            rec.died_after_blocks = Some(rec.blocks);
+        }
+        if rec.samples.len() >= rec.target_len {
+            rec.samples.truncate(rec.target_len);
+            events.push(TriggerEvent::Tap(self.close_record(rec)));
+            State::Settling { blocks: 0, min_db: level_db }
+        } else {
+            State::Recording(rec)
+        }
+    }
+
+    fn continue_settling(
+        &mut self,
+        blocks: usize,
+        min_db: f64,
+        (level_db, slow_db): (f64, f64),
+        floor_db: f64,
+        events: &mut Vec<TriggerEvent>,
+    ) -> State {
+        let blocks = blocks + 1;
+        let min_db = min_db.min(slow_db);
+        if self.blocks_to_ms(blocks) < self.settings.refractory_ms {
+            return State::Settling { blocks, min_db };
+        }
+        let new_strike = level_db > floor_db + self.settings.margin_db
+            && level_db > min_db + self.settings.double_strike_rise_db + self.settings.margin_db / 2.0;
+        if new_strike {
+            self.start_record(floor_db, slow_db, events)
+        } else if slow_db < floor_db + self.settings.settle_db {
+            State::Armed
+        } else {
+            State::Settling { blocks, min_db }
+        }
+    }
+
+    fn past_contact(&self, blocks_since_peak: usize, blocks: usize) -> bool {
+        self.blocks_to_ms(blocks_since_peak) > CONTACT_MS && self.blocks_to_ms(blocks) > CONTACT_MS
+    }
+
+    fn close_record(&self, rec: Recording) -> FoundTap {
+        let after_onset = rec.samples.len().saturating_sub(rec.onset_index);
+        let too_short_record = after_onset < ms_to_samples(self.settings.min_record_ms, self.sample_rate_hz);
+        let died_at_once = rec
+            .died_after_blocks
+            .is_some_and(|blocks| self.blocks_to_ms(blocks) < self.settings.min_ring_ms);
+        let rejected = if rec.clipped {
+            Some(RejectReason::Clipped)
+        } else if rec.double {
+            Some(RejectReason::DoubleStrike)
+        } else if too_short_record || died_at_once {
+            Some(RejectReason::TooShort)
+        } else {
+            None
+        };
+        FoundTap {
+            start_sample: rec.start_sample,
+            onset_index: rec.onset_index,
+            samples: rec.samples,
+            peak_dbfs: rec.peak_db,
+            floor_dbfs: rec.floor_db,
+            rejected,
+        }
+    }
+
+    fn quiet_tap(&self, blocks: usize, floor_db: f64, peak_db: f64) -> FoundTap {
+        let samples: Vec<f32> = self.history.iter().copied().collect();
+        let span = (blocks * self.block_len).min(samples.len());
+        FoundTap {
+            start_sample: self.position - samples.len() as u64,
+            onset_index: samples.len() - span,
+            samples,
+            peak_dbfs: peak_db,
+            floor_dbfs: floor_db,
+            rejected: Some(RejectReason::TooQuiet),
+        }
+    }
+
+    fn blocks_to_ms(&self, blocks: usize) -> f64 {
+        blocks as f64 * self.block_len as f64 * 1000.0 / self.sample_rate_hz
+    }
+}
+
+/// Finds every tap in a whole recording.
+pub fn find_taps(samples: &[f32], sample_rate_hz: f64, settings: &TriggerSettings) -> Vec<FoundTap> {
+    let mut trigger = TapTrigger::new(settings.clone(), sample_rate_hz);
+    let mut events = Vec::new();
+    trigger.push(samples, &mut events);
+    trigger.finish(&mut events);
+    events
+        .into_iter()
+        .filter_map(|event| match event {
+            TriggerEvent::Tap(tap) => Some(tap),
+            TriggerEvent::Started { .. } => None,
+        })
+        .collect()
+}
+
+/// Milliseconds to a whole number of samples.
+pub fn ms_to_samples(ms: f64, sample_rate_hz: f64) -> usize {
+    if ms.is_finite() && ms > 0.0 {
+        (ms * 1e-3 * sample_rate_hz).round() as usize
+    } else {
+        0
+    }
+}
+
+fn power_to_db(mean_square: f64) -> f64 {
+    10.0 * (mean_square + 1e-20).log10()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::analysis::synth::{add_modes, to_f32_clipped, NoiseGenerator, SynthMode};
+
+    const FS: f64 = 48_000.0;
+
+    fn plate_modes(amplitude: f64) -> Vec<SynthMode> {
+        vec![
+            SynthMode::new(170.0, 40.0, amplitude * 0.6),
+            SynthMode::new(345.0, 60.0, amplitude),
+            SynthMode::new(520.0, 50.0, amplitude * 0.4),
+        ]
+    }
+
+    fn recording(seconds: f64, strikes: &[(f64, f64)], noise_rms: f64, seed: u64) -> Vec<f32> {
+        let len = (seconds * FS) as usize;
+        let mut out = vec![0.0; len];
+        for &(at_s, amplitude) in strikes {
+            add_modes(&mut out, FS, (at_s * FS) as usize, &plate_modes(amplitude));
+        }
+        let mut noise = NoiseGenerator::new(seed);
+        for x in &mut out {
+            *x += noise_rms * noise.gaussian();
+        }
+        to_f32_clipped(&out)
+    }
+
+    #[test]
+    fn finds_each_strike_once() {
+        let strikes = [(0.5, 0.3), (2.0, 0.2), (3.6, 0.25)];
+        let samples = recording(5.0, &strikes, 1e-4, 1);
+        let taps = find_taps(&samples, FS, &TriggerSettings::default());
+        assert_eq!(taps.len(), 3, "{taps:?}");
+        for (tap, &(at_s, _)) in taps.iter().zip(&strikes) {
+            assert_eq!(tap.rejected, None);
+            let onset_s = tap.onset_sample() as f64 / FS;
+            assert!((onset_s - at_s).abs() < 0.003, "onset {onset_s} vs {at_s}");
+            assert_eq!(tap.samples.len(), tap.onset_index + 48_000);
+        }
+    }
+
+    #[test]
+    fn rejects_clipped_and_double() {
+        let mut strikes = vec![(0.5, 0.3), (2.0, 2.5), (3.5, 0.3), (3.65, 0.3)];
+        strikes.push((5.5, 0.2));
+        let samples = recording(7.0, &strikes, 1e-4, 2);
+        let taps = find_taps(&samples, FS, &TriggerSettings::default());
+        let reasons: Vec<_> = taps.iter().map(|t| t.rejected).collect();
+        assert_eq!(
+            reasons,
+            vec![None, Some(RejectReason::Clipped), Some(RejectReason::DoubleStrike), None]
+        );
+    }
+
+    #[test]
+    fn quiet_tap_is_reported() {
+        // Noise at -80 dBFS RMS; a tap whose first millisecond is ~12 dB above.
+        let samples = recording(3.0, &[(1.5, 0.0008)], 1e-4, 3);
+        let taps = find_taps(&samples, FS, &TriggerSettings::default());
+        assert_eq!(taps.len(), 1, "{taps:?}");
+        assert_eq!(taps[0].rejected, Some(RejectReason::TooQuiet));
+    }
+
+    #[test]
+    fn tap_cut_off_by_end_is_too_short() {
+        let samples = recording(1.05, &[(1.0, 0.3)], 1e-4, 4);
+        let taps = find_taps(&samples, FS, &TriggerSettings::default());
+        assert_eq!(taps.len(), 1);
+        assert_eq!(taps[0].rejected, Some(RejectReason::TooShort));
+    }
+
+    #[test]
+    fn silence_gives_no_taps() {
+        assert!(find_taps(&vec![0.0; 96_000], FS, &TriggerSettings::default()).is_empty());
+        let noise = recording(2.0, &[], 1e-3, 5);
+        assert!(find_taps(&noise, FS, &TriggerSettings::default()).is_empty());
+    }
+
+    #[test]
+    fn floor_tracker_median() {
+        let mut floor = FloorTracker::new(5);
+        for level in [-60.0, -50.0, -70.0, -55.0, -65.0, -10.0] {
+            floor.push(level);
+        }
+        // Window holds -50, -70, -55, -65, -10: median -55.
+        assert!((floor.median_db() - -55.0).abs() <= HIST_STEP_DB);
+    }
+
+    #[test]
+    fn streaming_in_chunks_matches_whole() {
+        let samples = recording(5.0, &[(0.5, 0.3), (2.5, 0.3)], 1e-4, 6);
+        let whole = find_taps(&samples, FS, &TriggerSettings::default());
+        let mut trigger = TapTrigger::new(TriggerSettings::default(), FS);
+        let mut events = Vec::new();
+        for chunk in samples.chunks(317) {
+            trigger.push(chunk, &mut events);
+        }
+        trigger.finish(&mut events);
+        let chunked: Vec<FoundTap> = events
+            .into_iter()
+            .filter_map(|e| match e {
+                TriggerEvent::Tap(t) => Some(t),
+                TriggerEvent::Started { .. } => None,
+            })
+            .collect();
+        assert_eq!(whole, chunked);
+    }
+}
