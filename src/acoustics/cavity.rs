@@ -130,18 +130,20 @@ impl Opening {
         }
     }
 
-    /// Size as a maker writes it: "86 mm", "90 × 60 mm".
+    /// Size as a maker writes it: "Ø 86 mm", "90 × 60 mm" (at most two
+    /// decimals).
     pub fn size_text(&self) -> String {
+        let mm = |value: f64| (value * 100.0).round() / 100.0;
         match *self {
-            Opening::Round { diameter_mm } => format!("Ø {diameter_mm} mm"),
+            Opening::Round { diameter_mm } => format!("Ø {} mm", mm(diameter_mm)),
             Opening::Oval {
                 length_mm,
                 width_mm,
-            } => format!("{length_mm} × {width_mm} mm"),
+            } => format!("{} × {} mm", mm(length_mm), mm(width_mm)),
             Opening::Slot {
                 length_mm,
                 mean_width_mm,
-            } => format!("{length_mm} × {mean_width_mm} mm"),
+            } => format!("{} × {} mm", mm(length_mm), mm(mean_width_mm)),
         }
     }
 

@@ -54,7 +54,7 @@ pub enum AcousticsError {
     #[error("the relative humidity {relative_humidity_pct} % is outside 0 to 100 %")]
     HumidityOutOfRange { relative_humidity_pct: f64 },
     /// Barometric pressure outside the accepted range.
-    #[error("the air pressure {pressure_pa} Pa is outside the accepted 50 000 to 120 000 Pa")]
+    #[error("the air pressure {} kPa is outside the accepted 50 to 120 kPa", .pressure_pa / 1000.0)]
     PressureOutOfRange { pressure_pa: f64 },
     /// CO2 concentration outside 0–10 000 ppm.
     #[error("the CO2 concentration {co2_ppm} ppm is outside 0 to 10 000 ppm")]

@@ -18,13 +18,22 @@ use crate::acoustics::{
 };
 use crate::analysis::pitch::nearest_note;
 
-/// Options of `tapwright air`.
+/// Arguments of `tapwright air`. The option set is large, so it is boxed to
+/// keep the subcommand enum small.
 #[derive(Debug, clap::Args)]
 #[command(
     about = "Estimate a body's air resonance (A0) from its volume and openings.",
     after_help = "Examples:\n  tapwright air --volume-l 13 --opening round:86 --thickness-mm 2.5\n  tapwright air --volume-l 2.0 --opening slot:70x8 --opening slot:70x8 --json\n  tapwright air --volume-l 13 --target-hz 100 --solve round --thickness-mm 2.5\n  tapwright air --coupled 100,200,180"
 )]
 pub struct AirArgs {
+    /// The options themselves.
+    #[command(flatten)]
+    pub options: Box<AirOptions>,
+}
+
+/// Options of `tapwright air`.
+#[derive(Debug, clap::Args)]
+pub struct AirOptions {
     /// Air volume inside the body, litres.
     #[arg(long, value_name = "LITRES", allow_hyphen_values = true)]
     pub volume_l: Option<String>,
@@ -140,6 +149,7 @@ struct AirReport {
 
 /// Runs `tapwright air`.
 pub fn run(args: &AirArgs) -> Result<()> {
+    let args = &*args.options;
     let report = build_report(args)?;
     let text = if args.json {
         let mut text = serde_json::to_string_pretty(&report_json(&report))?;
@@ -152,7 +162,7 @@ pub fn run(args: &AirArgs) -> Result<()> {
     Ok(())
 }
 
-fn build_report(args: &AirArgs) -> Result<AirReport> {
+fn build_report(args: &AirOptions) -> Result<AirReport> {
     let a4_hz = parse_number("--a4", &args.a4)?;
     if !(100.0..=1000.0).contains(&a4_hz) {
         bail!("--a4: {a4_hz} Hz is not a reference pitch between 100 and 1000 Hz");
@@ -214,7 +224,7 @@ fn unreachable_without_estimate() -> Result<f64> {
 /// Builds the geometry from the options and, with --solve, fills in the
 /// solved size.
 fn solve_geometry(
-    args: &AirArgs,
+    args: &AirOptions,
     volume_m3: Option<f64>,
     solve: Option<(SolveFor, f64)>,
 ) -> Result<(CavityGeometry, Option<Solved>)> {
@@ -312,7 +322,7 @@ fn parse_number(option: &str, text: &str) -> Result<f64> {
 }
 
 /// Exactly one of the three volume options, in m³.
-fn parse_volume_m3(args: &AirArgs) -> Result<Option<f64>> {
+fn parse_volume_m3(args: &AirOptions) -> Result<Option<f64>> {
     let given: Vec<(&str, &String, f64)> = [
         ("--volume-l", &args.volume_l, M3_PER_LITRE),
         ("--volume-cm3", &args.volume_cm3, M3_PER_CM3),
@@ -379,7 +389,7 @@ fn parse_sound_model(text: &str) -> Result<SpeedOfSoundModel> {
 }
 
 /// --target-hz and --solve come together; --slot-width-mm only with slot.
-fn parse_solve(args: &AirArgs) -> Result<Option<(SolveFor, f64)>> {
+fn parse_solve(args: &AirOptions) -> Result<Option<(SolveFor, f64)>> {
     let width = args.slot_width_mm.as_deref();
     let (target, what) = match (args.target_hz.as_deref(), args.solve.as_deref()) {
         (None, None) => {
@@ -435,13 +445,14 @@ fn at_option(option: &str, error: AcousticsError) -> anyhow::Error {
 }
 
 /// Names the option behind a library error from the cavity model.
-fn explain(error: AcousticsError, args: &AirArgs) -> anyhow::Error {
+fn explain(error: AcousticsError, args: &AirOptions) -> anyhow::Error {
     let opening_text =
         |position: usize| args.openings.get(position - 1).cloned().unwrap_or_default();
     match &error {
-        AcousticsError::TemperatureOutOfRange { .. } => {
+        AcousticsError::TemperatureOutOfRange { model, .. } if *model == "cramer" => {
             anyhow!("--temp-c: {error} (--sound-model iso9613 accepts -20 to 50 °C)")
         }
+        AcousticsError::TemperatureOutOfRange { .. } => at_option("--temp-c", error),
         AcousticsError::HumidityOutOfRange { .. } => at_option("--rh", error),
         AcousticsError::PressureOutOfRange { .. } => at_option("--pressure-kpa", error),
         AcousticsError::VolumeOutOfRange { .. } => {
@@ -644,8 +655,8 @@ fn estimate_lines(geometry: &CavityGeometry, estimate: &CavityEstimate, a4_hz: f
             geometry.sound_model.name()
         ),
         format!(
-            "  body     {:.4} L, wall {} mm at the openings, {} end correction",
-            geometry.volume_l(),
+            "  body     {} L, wall {} mm at the openings, {} end correction",
+            (geometry.volume_l() * 1e4).round() / 1e4,
             geometry.wall_thickness_mm,
             geometry.end_correction.name()
         ),
@@ -693,6 +704,13 @@ fn estimate_lines(geometry: &CavityGeometry, estimate: &CavityEstimate, a4_hz: f
         "  sensitivity          {:+.2} Hz per litre, {:+.3} Hz per °C, {:+.2} Hz per mm of wall thickness",
         s.hz_per_litre, s.hz_per_degree_c, s.hz_per_mm_of_thickness
     ));
+    if geometry.wall_thickness_mm == 0.0 && geometry.end_correction != EndCorrection::ThinPlate {
+        lines.push(format!(
+            "  note                 with a 0 mm wall the {} end correction gives a round hole K = {:.2}a; --end-correction thin-plate gives Rayleigh's 2a",
+            geometry.end_correction.name(),
+            2.0 * std::f64::consts::PI / 4.0 / geometry.end_correction.per_side_over_radius()
+        ));
+    }
     lines
 }
 
