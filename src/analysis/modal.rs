@@ -123,6 +123,24 @@ struct Candidate {
     frequency_hz: f64,
     power: f32,
     prominence_db: f64,
+    /// Bin spacing of the spectrum it was found in.
+    bin_hz: f64,
+}
+
+/// The maker in `slot`, replaced if its FFT length is not `fft_len`.
+fn maker_for(slot: &mut Option<SpectrumMaker>, fft_len: usize) -> &mut SpectrumMaker {
+    if slot.as_ref().is_none_or(|m| m.fft_len() != fft_len) {
+        *slot = Some(SpectrumMaker::new(fft_len));
+    }
+    slot.get_or_insert_with(|| SpectrumMaker::new(fft_len))
+}
+
+/// A candidate within two bins or one bandwidth of a mode already found.
+fn near_existing(candidate: &Candidate, poles: &[(Pole, f64)], fs: f64, bin_hz: f64) -> bool {
+    poles.iter().any(|(p, _)| {
+        let width = (2.0 * bin_hz).max(p.decay_per_s(fs) / PI);
+        (p.frequency_hz(fs) - candidate.frequency_hz).abs() < width
+    })
 }
 
 /// Measures taps. Keeps its FFT plan and buffers between taps.
@@ -130,8 +148,10 @@ struct Candidate {
 pub struct TapAnalyzer {
     settings: AnalysisSettings,
     sample_rate_hz: f64,
-    spectrum_maker: Option<SpectrumMaker>,
+    display_maker: Option<SpectrumMaker>,
+    candidate_maker: Option<SpectrumMaker>,
     residual: Vec<f64>,
+    scratch: Vec<f32>,
 }
 
 impl TapAnalyzer {
@@ -139,8 +159,10 @@ impl TapAnalyzer {
         Self {
             settings,
             sample_rate_hz,
-            spectrum_maker: None,
+            display_maker: None,
+            candidate_maker: None,
             residual: Vec::new(),
+            scratch: Vec::new(),
         }
     }
 
@@ -170,12 +192,11 @@ impl TapAnalyzer {
         self.residual.clear();
         self.residual
             .extend(record[start.min(record.len())..].iter().map(|&x| f64::from(x) - offset));
-        let candidates = find_candidates(&spectrum, &self.settings);
         let mut modes = if self.residual.len() < MIN_DECAY_SAMPLES {
             Vec::new()
         } else {
-            let poles = self.estimate_poles(&candidates);
-            self.to_modes(&poles, &candidates)
+            let poles = self.estimate_poles();
+            self.to_modes(&poles)
         };
         modes.sort_by(|a, b| a.frequency_hz.total_cmp(&b.frequency_hz));
         TapAnalysis {
@@ -187,39 +208,66 @@ impl TapAnalyzer {
 
     fn display_spectrum(&mut self, record: &[f32], onset_index: usize) -> DisplaySpectrum {
         let fft_len = SpectrumMaker::fft_len_for(record.len());
-        let maker = match &mut self.spectrum_maker {
-            Some(maker) if maker.fft_len() == fft_len => maker,
-            slot => slot.insert(SpectrumMaker::new(fft_len)),
-        };
-        maker.spectrum(record, onset_index, self.sample_rate_hz)
+        maker_for(&mut self.display_maker, fft_len).spectrum(record, onset_index, self.sample_rate_hz)
     }
 
-    /// Steps 2 and 3 of the method: initial estimates with subtraction, then
-    /// joint refinement of overlapping groups.
-    fn estimate_poles(&mut self, candidates: &[Candidate]) -> Vec<(Pole, usize)> {
-        let fs = self.sample_rate_hz;
-        let mut poles: Vec<(Pole, usize)> = Vec::new();
-        for (index, candidate) in candidates.iter().enumerate() {
-            let omega = 2.0 * PI * candidate.frequency_hz / fs;
-            if let Some(pole) = initial_estimate(&self.residual, omega) {
-                let moved_bins = (pole.z.arg() - omega).abs() * self.residual.len().min(fs as usize) as f64 / (2.0 * PI);
-                let plausible = pole.z.norm() < 1.0 && pole.z.arg() > 0.0 && moved_bins < 4.0;
-                if plausible {
-                    add_pole(&mut self.residual, &pole, -1.0);
-                    poles.push((pole, index));
+    /// Spectrum of the analysed decay (or of what is left of it), faded out
+    /// from its start, for finding candidate peaks.
+    fn residual_spectrum(&mut self) -> DisplaySpectrum {
+        let fft_len = self.residual.len().next_power_of_two().max(1024);
+        self.scratch.clear();
+        self.scratch.extend(self.residual.iter().map(|&x| x as f32));
+        maker_for(&mut self.candidate_maker, fft_len).spectrum(&self.scratch, 0, self.sample_rate_hz)
+    }
+
+    /// Steps 2 and 3 of the method, in rounds: find peaks, estimate each
+    /// (strongest first) and subtract it, refine overlapping groups jointly;
+    /// then look again in what is left for modes the stronger ones hid.
+    fn estimate_poles(&mut self) -> Vec<(Pole, f64)> {
+        let original = self.residual_spectrum();
+        let mut poles: Vec<(Pole, f64)> = Vec::new();
+        let mut candidates = find_candidates(&original, None, &self.settings);
+        for _round in 0..MAX_ROUNDS {
+            let before = poles.len();
+            for candidate in &candidates {
+                self.add_candidate(candidate, &mut poles);
+            }
+            if poles.len() == before {
+                break;
+            }
+            poles.sort_by(|a, b| a.0.z.arg().total_cmp(&b.0.z.arg()));
+            for _sweep in 0..REFINE_SWEEPS {
+                for group in overlapping_groups(&poles) {
+                    self.refine_group(&mut poles[group]);
                 }
             }
-        }
-        poles.sort_by(|a, b| a.0.z.arg().total_cmp(&b.0.z.arg()));
-        for _sweep in 0..REFINE_SWEEPS {
-            for group in overlapping_groups(&poles) {
-                self.refine_group(&mut poles[group]);
+            if poles.len() >= self.settings.max_modes * 2 {
+                break;
             }
+            let left = self.residual_spectrum();
+            candidates = find_candidates(&left, Some(&original), &self.settings);
+            candidates.retain(|c| !near_existing(c, &poles, self.sample_rate_hz, left.bin_hz));
         }
         poles
     }
 
-    fn refine_group(&mut self, group: &mut [(Pole, usize)]) {
+    /// Estimates one candidate on the residual and subtracts it, if the
+    /// estimate is a plausible decaying mode near the candidate.
+    fn add_candidate(&mut self, candidate: &Candidate, poles: &mut Vec<(Pole, f64)>) {
+        let fs = self.sample_rate_hz;
+        let omega = 2.0 * PI * candidate.frequency_hz / fs;
+        let Some(pole) = initial_estimate(&self.residual, omega) else {
+            return;
+        };
+        let moved_hz = (pole.frequency_hz(fs) - candidate.frequency_hz).abs();
+        let plausible = pole.z.norm() < 1.0 && pole.z.arg() > 0.0 && moved_hz < 4.0 * candidate.bin_hz.max(pole.decay_per_s(fs) / PI);
+        if plausible {
+            add_pole(&mut self.residual, &pole, -1.0);
+            poles.push((pole, candidate.prominence_db));
+        }
+    }
+
+    fn refine_group(&mut self, group: &mut [(Pole, f64)]) {
         for (pole, _) in group.iter() {
             add_pole(&mut self.residual, pole, 1.0);
         }
@@ -233,12 +281,12 @@ impl TapAnalyzer {
         }
     }
 
-    fn to_modes(&self, poles: &[(Pole, usize)], candidates: &[Candidate]) -> Vec<Mode> {
+    fn to_modes(&self, poles: &[(Pole, f64)]) -> Vec<Mode> {
         let fs = self.sample_rate_hz;
         let s = &self.settings;
         let mut modes: Vec<Mode> = poles
             .iter()
-            .map(|(pole, index)| {
+            .map(|(pole, prominence_db)| {
                 let frequency_hz = pole.frequency_hz(fs);
                 let decay_per_s = pole.decay_per_s(fs);
                 let amplitude = pole.amplitude();
@@ -248,7 +296,7 @@ impl TapAnalyzer {
                     decay_per_s,
                     amplitude,
                     level_db: 20.0 * amplitude.max(1e-12).log10(),
-                    prominence_db: candidates[*index].prominence_db,
+                    prominence_db: *prominence_db,
                 }
             })
             .filter(|m| {
@@ -268,8 +316,13 @@ impl TapAnalyzer {
 
 /// Records shorter than this after the strike give no modes.
 const MIN_DECAY_SAMPLES: usize = 256;
-/// Passes of group refinement.
+/// Passes of group refinement per round.
 const REFINE_SWEEPS: usize = 2;
+/// Rounds of looking again in the residual.
+const MAX_ROUNDS: usize = 3;
+/// A peak left after subtraction must keep at least this fraction of the
+/// original power at its frequency (−10 dB) to count as a hidden mode.
+const GHOST_RATIO: f32 = 0.1;
 /// Modes closer than this many summed half-power bandwidths are refined
 /// together.
 const GROUP_BANDWIDTHS: f64 = 6.0;
@@ -309,9 +362,16 @@ fn pre_trigger_mean(record: &[f32], onset_index: usize) -> f64 {
     pre.iter().map(|&x| f64::from(x)).sum::<f64>() / pre.len() as f64
 }
 
-/// Local maxima of the display spectrum in the band that stand clear of the
-/// floor and of their neighbours, loudest first.
-fn find_candidates(spectrum: &DisplaySpectrum, settings: &AnalysisSettings) -> Vec<Candidate> {
+/// Local maxima of a spectrum in the band that stand clear of the floor and
+/// of their neighbours, loudest first. When searching what is left after
+/// subtraction, `original` is the spectrum before it: a real hidden mode
+/// leaves most of its power behind, while the small misfit of a strong
+/// mode leaves a ghost far below the original level, which is skipped.
+fn find_candidates(
+    spectrum: &DisplaySpectrum,
+    original: Option<&DisplaySpectrum>,
+    settings: &AnalysisSettings,
+) -> Vec<Candidate> {
     let power = &spectrum.power;
     if power.len() < 8 {
         return Vec::new();
@@ -325,12 +385,14 @@ fn find_candidates(spectrum: &DisplaySpectrum, settings: &AnalysisSettings) -> V
     let threshold = floor * 10f32.powf((settings.min_above_floor_db / 10.0) as f32);
     let mut found: Vec<Candidate> = (low..=high)
         .filter(|&k| power[k] > threshold && power[k] >= power[k - 1] && power[k] > power[k + 1])
+        .filter(|&k| original.is_none_or(|o| o.power.get(k).is_some_and(|&p| power[k] >= p * GHOST_RATIO)))
         .filter_map(|k| {
             let prominence_db = prominence_db(power, k);
             (prominence_db >= settings.min_prominence_db).then(|| Candidate {
                 frequency_hz: interpolated_peak_bin(power, k) * spectrum.bin_hz,
                 power: power[k],
                 prominence_db,
+                bin_hz: spectrum.bin_hz,
             })
         })
         .collect();
@@ -495,7 +557,7 @@ fn add_pole(signal: &mut [f64], pole: &Pole, sign: f64) {
 }
 
 /// Index ranges of poles (sorted by frequency) whose peaks overlap.
-fn overlapping_groups(poles: &[(Pole, usize)]) -> Vec<std::ops::Range<usize>> {
+fn overlapping_groups(poles: &[(Pole, f64)]) -> Vec<std::ops::Range<usize>> {
     let mut groups = Vec::new();
     let mut start = 0;
     for i in 1..=poles.len() {

@@ -192,8 +192,9 @@ mod tests {
             .collect();
         let mut maker = SpectrumMaker::new(SpectrumMaker::fft_len_for(n));
         let spectrum = maker.spectrum(&record, 0, fs);
-        let peak = spectrum.level_db_at_hz(1000.0);
-        assert!((peak - -6.02).abs() < 0.1, "peak {peak}");
+        // 1 kHz falls between bins: allow the small scalloping loss.
+        let peak = (-3..=3).map(|d| spectrum.level_db_at_hz(1000.0 + d as f64 * spectrum.bin_hz)).fold(f64::MIN, f64::max);
+        assert!((peak - -6.02).abs() < 0.2, "peak {peak}");
         assert!(spectrum.level_db_at_hz(3000.0) < peak - 60.0);
     }
 
