@@ -1,5 +1,11 @@
 //! The workbench window (being built).
 
+pub mod air_area;
+mod commands;
+pub mod ledger_area;
+
+pub use commands::{stored_spectrum_of, AppCommand, Area, AreaContext, BuildEdit};
+
 /// Options for opening the window.
 #[derive(Debug, Clone, Default, clap::Args)]
 pub struct WorkbenchOptions {

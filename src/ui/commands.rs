@@ -1,0 +1,214 @@
+//! What the window's areas may ask of the app, and what they may read.
+//!
+//! Widgets never change the model directly: they push an [`AppCommand`]
+//! into [`AreaContext::commands`]; the app applies all commands once per
+//! frame, after every area has been drawn. An area reads the app's state
+//! through the borrowed fields of [`AreaContext`].
+
+use std::path::{Path, PathBuf};
+
+use crate::analysis::PassResult;
+use crate::ledger::{Build, Family, LedgerError, MeasuredMode, PassInput, StoredSpectrum};
+
+/// The places in the window (see `vocabulary.md`).
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Default)]
+pub enum Area {
+    /// Live input, spectrum, modes and taps.
+    #[default]
+    Listen,
+    /// The build's parts and passes.
+    Ledger,
+    /// The cavity estimator and the air check.
+    Air,
+}
+
+impl Area {
+    /// Every area, in the order of the top bar.
+    pub const ALL: [Area; 3] = [Area::Listen, Area::Ledger, Area::Air];
+
+    /// The name on screen.
+    pub fn title(self) -> &'static str {
+        match self {
+            Area::Listen => "Listen",
+            Area::Ledger => "Ledger",
+            Area::Air => "Air",
+        }
+    }
+}
+
+/// A change to a build, applied by the app once per frame. Returns a short
+/// sentence for the status line on success ("Added part \"top\"."), or the
+/// ledger's refusal, shown inline.
+pub type BuildEdit = Box<dyn FnOnce(&mut Build) -> Result<String, LedgerError> + Send>;
+
+/// Everything an area may ask the app to do.
+pub enum AppCommand {
+    /// Show another area.
+    ShowArea(Area),
+    /// Start a new, empty build (replaces the open one; the caller asks the
+    /// maker first if the open one has unsaved changes).
+    NewBuild {
+        /// The build's name.
+        name: String,
+        /// The instrument family.
+        family: Family,
+    },
+    /// Load a build file (RON) in a worker thread and make it the open build.
+    OpenBuild(PathBuf),
+    /// Save the open build to the path it came from (or was last saved to).
+    SaveBuild,
+    /// Save the open build to a new path and keep that path.
+    SaveBuildAs(PathBuf),
+    /// Forget the open build.
+    CloseBuild,
+    /// Any change to the open build, through the ledger's own commands
+    /// (`add_part`, `set_label`, `set_target` …). Marks the build unsaved.
+    EditBuild {
+        /// What it does, for error messages ("setting the target").
+        description: String,
+        /// The change itself.
+        edit: BuildEdit,
+    },
+    /// Record a pass on a part of the open build. `labels` runs beside
+    /// `input.modes` (same order): a label chosen in Listen is put on its
+    /// mode after the ledger's own carry-over, and added to the part's label
+    /// set if the maker typed a new one.
+    RecordPass {
+        /// The part's name.
+        part: String,
+        /// The pass.
+        input: PassInput,
+        /// One optional label per mode of `input.modes`.
+        labels: Vec<Option<String>>,
+    },
+    /// Make Listen offer the labels of this part of the open build (None:
+    /// the trade's preset labels).
+    SetListenPart(Option<String>),
+    /// Show a sentence in the status line.
+    ShowMessage(String),
+    /// Show a problem as one sentence in the status line.
+    ShowError(String),
+}
+
+impl std::fmt::Debug for AppCommand {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        match self {
+            Self::ShowArea(area) => write!(f, "ShowArea({area:?})"),
+            Self::NewBuild { name, family } => write!(f, "NewBuild({name:?}, {family:?})"),
+            Self::OpenBuild(path) => write!(f, "OpenBuild({path:?})"),
+            Self::SaveBuild => write!(f, "SaveBuild"),
+            Self::SaveBuildAs(path) => write!(f, "SaveBuildAs({path:?})"),
+            Self::CloseBuild => write!(f, "CloseBuild"),
+            Self::EditBuild { description, .. } => write!(f, "EditBuild({description:?})"),
+            Self::RecordPass { part, labels, .. } => {
+                write!(f, "RecordPass({part:?}, {labels:?})")
+            }
+            Self::SetListenPart(part) => write!(f, "SetListenPart({part:?})"),
+            Self::ShowMessage(text) => write!(f, "ShowMessage({text:?})"),
+            Self::ShowError(text) => write!(f, "ShowError({text:?})"),
+        }
+    }
+}
+
+/// What an area is given each frame: read-only views of the app's state and
+/// a list to push commands into.
+pub struct AreaContext<'a> {
+    /// The current Listen result (the pass being measured), if any taps
+    /// have been kept.
+    pub pass: Option<&'a PassResult>,
+    /// The labels chosen in Listen, one per mode of `pass` (same order).
+    pub pass_labels: &'a [Option<String>],
+    /// The open build, if any.
+    pub build: Option<&'a Build>,
+    /// Where the open build lives on disk (None until first saved).
+    pub build_path: Option<&'a Path>,
+    /// True when the open build has changes not yet saved.
+    pub build_unsaved: bool,
+    /// The part whose labels Listen offers, if one is chosen.
+    pub listen_part: Option<&'a str>,
+    /// Reference pitch for note names, Hz.
+    pub a4_hz: f64,
+    /// Commands for the app, applied after all areas are drawn.
+    pub commands: &'a mut Vec<AppCommand>,
+}
+
+impl AreaContext<'_> {
+    /// Asks the app to do something (applied at the end of the frame).
+    pub fn push(&mut self, command: AppCommand) {
+        self.commands.push(command);
+    }
+
+    /// The Listen result as ledger modes, beside their labels; empty without
+    /// a pass.
+    pub fn measured_modes(&self) -> Vec<(MeasuredMode, Option<String>)> {
+        let Some(pass) = self.pass else {
+            return Vec::new();
+        };
+        pass.modes
+            .iter()
+            .enumerate()
+            .map(|(i, m)| {
+                let mode = MeasuredMode {
+                    frequency_hz: m.frequency_hz,
+                    q: m.q,
+                    level_db: m.level_db,
+                    spread_hz: m.spread_hz,
+                };
+                (mode, self.pass_labels.get(i).cloned().flatten())
+            })
+            .collect()
+    }
+
+    /// The frequency of the Listen mode labelled `label` ("A0"), if any.
+    pub fn labelled_frequency_hz(&self, label: &str) -> Option<f64> {
+        let pass = self.pass?;
+        self.pass_labels
+            .iter()
+            .position(|l| l.as_deref() == Some(label))
+            .and_then(|i| pass.modes.get(i))
+            .map(|m| m.frequency_hz)
+    }
+
+    /// The Listen result's averaged spectrum in the ledger's stored form
+    /// (`points` log-spaced points over `low_hz`..`high_hz`).
+    pub fn stored_spectrum(
+        &self,
+        low_hz: f64,
+        high_hz: f64,
+        points: usize,
+    ) -> Option<StoredSpectrum> {
+        stored_spectrum_of(self.pass?, low_hz, high_hz, points)
+    }
+
+    /// A [`AppCommand::RecordPass`] for the Listen result on `part`, with
+    /// the part's mass; None without a pass. The spectrum is kept over
+    /// 40–4000 Hz at 1000 points.
+    pub fn record_pass_command(&self, part: &str, mass_g: f64) -> Option<AppCommand> {
+        self.pass?;
+        let (modes, labels): (Vec<MeasuredMode>, Vec<Option<String>>) =
+            self.measured_modes().into_iter().unzip();
+        let mut input = PassInput::new(mass_g, modes);
+        input.spectrum = self.stored_spectrum(40.0, 4000.0, 1000);
+        Some(AppCommand::RecordPass {
+            part: part.to_owned(),
+            input,
+            labels,
+        })
+    }
+}
+
+/// A pass's averaged spectrum as a ledger spectrum; None if it has none or
+/// the range holds too few bins.
+pub fn stored_spectrum_of(
+    pass: &PassResult,
+    low_hz: f64,
+    high_hz: f64,
+    points: usize,
+) -> Option<StoredSpectrum> {
+    let spectrum = pass.spectrum.as_ref()?;
+    let curve = spectrum.log_spaced_db(low_hz, high_hz, points);
+    let frequency_hz: Vec<f32> = curve.iter().map(|p| p.0 as f32).collect();
+    let level_db: Vec<f32> = curve.iter().map(|p| p.1 as f32).collect();
+    let points = points.min(crate::ledger::spectrum::MAX_SPECTRUM_POINTS);
+    StoredSpectrum::resample_log(&frequency_hz, &level_db, points).ok()
+}
