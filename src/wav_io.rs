@@ -89,7 +89,7 @@ fn read_samples<R: Read>(reader: hound::WavReader<R>, spec: hound::WavSpec, path
     let truncated = |count: usize, e: hound::Error| WavError::Truncated {
         path: path.to_owned(),
         frames_read: count / channels,
-        detail: e.to_string(),
+        detail: plain(&e.to_string()),
     };
     let mut reader = reader;
     match (spec.sample_format, spec.bits_per_sample) {
@@ -121,13 +121,26 @@ fn collect(
 
 fn classify_open_error(error: hound::Error, path: &Path) -> WavError {
     let path = path.to_owned();
+    let error = match error {
+        hound::Error::IoError(e) if e.kind() == std::io::ErrorKind::UnexpectedEof => {
+            return WavError::NotWav { path, detail: "it ends inside the header".into() }
+        }
+        other => other,
+    };
     match error {
         hound::Error::FormatError(detail) => WavError::NotWav { path, detail: detail.to_string() },
         hound::Error::Unsupported => WavError::Unsupported { path, detail: "an unsupported format".into() },
-        hound::Error::IoError(e) if e.kind() == std::io::ErrorKind::UnexpectedEof => {
-            WavError::NotWav { path, detail: "the header is cut short".into() }
-        }
-        other => WavError::NotWav { path, detail: other.to_string() },
+        other => WavError::NotWav { path, detail: plain(&other.to_string()) },
+    }
+}
+
+/// A library message as a clause: no trailing full stop, lower-case start.
+fn plain(message: &str) -> String {
+    let trimmed = message.trim().trim_end_matches('.');
+    let mut chars = trimmed.chars();
+    match chars.next() {
+        Some(first) => first.to_lowercase().chain(chars).collect(),
+        None => String::new(),
     }
 }
 

@@ -16,9 +16,10 @@ pub struct AnalyzeArgs {
     /// Print one JSON object instead of the table.
     #[arg(long)]
     pub json: bool,
-    /// Frequency band to search, LOW:HIGH in Hz.
-    #[arg(long, value_name = "LOW:HIGH", default_value = "40:4000", value_parser = parse_band_hz)]
-    pub band: (f64, f64),
+    /// Frequency band to search, LOW:HIGH in Hz [default: 40:4000, or up to
+    /// 45 % of the sample rate for slower recordings].
+    #[arg(long, value_name = "LOW:HIGH", value_parser = parse_band_hz)]
+    pub band: Option<(f64, f64)>,
     /// At most this many modes.
     #[arg(long, value_name = "N", default_value_t = 16, value_parser = clap::value_parser!(u16).range(1..=64))]
     pub max_modes: u16,
@@ -42,18 +43,11 @@ pub fn run(args: &AnalyzeArgs) -> anyhow::Result<()> {
     }
     let recording = read_mono(&args.file)?;
     let fs = f64::from(recording.sample_rate_hz);
-    if args.band.1 >= fs / 2.0 {
-        bail!(
-            "the band's upper edge {} Hz is at or above half the sample rate of {} ({} Hz)",
-            args.band.1,
-            args.file.display(),
-            fs / 2.0
-        );
-    }
+    let band = band_for(args.band, fs, &args.file.display().to_string())?;
     let trigger = TriggerSettings { margin_db: args.margin_db, record_ms: args.record_ms, ..Default::default() };
     let analysis = AnalysisSettings {
-        band_low_hz: args.band.0,
-        band_high_hz: args.band.1,
+        band_low_hz: band.0,
+        band_high_hz: band.1,
         max_modes: usize::from(args.max_modes),
         ..Default::default()
     };
@@ -84,6 +78,20 @@ pub fn run(args: &AnalyzeArgs) -> anyhow::Result<()> {
         print!("{}", input.to_table());
     }
     Ok(())
+}
+
+/// The band to search: the user's, checked against the sample rate, or the
+/// default 40–4000 Hz trimmed to 45 % of the sample rate.
+pub fn band_for(requested: Option<(f64, f64)>, sample_rate_hz: f64, source: &str) -> anyhow::Result<(f64, f64)> {
+    const DEFAULT_BAND_HZ: (f64, f64) = (40.0, 4000.0);
+    let nyquist_hz = sample_rate_hz / 2.0;
+    match requested {
+        Some((_, high)) if high >= nyquist_hz => bail!(
+            "the band's upper edge {high} Hz is at or above half the sample rate of {source} ({nyquist_hz} Hz)"
+        ),
+        Some(band) => Ok(band),
+        None => Ok((DEFAULT_BAND_HZ.0, DEFAULT_BAND_HZ.1.min(0.9 * nyquist_hz))),
+    }
 }
 
 /// Parses "LOW:HIGH" in Hz.
