@@ -243,3 +243,177 @@ fn assign(predictions: &[Prediction], frequencies_hz: &[f64]) -> CarryOver {
     result.carried.sort_by_key(|c| c.mode_index);
     result
 }
+
+#[cfg(test)]
+mod tests {
+    use crate::ledger::{Build, Family, MeasuredMode, Part, PartKind, PassInput};
+
+    /// Deterministic small noise in cents, from a fixed linear congruential sequence.
+    fn noise_cents(seed: &mut u64, amplitude: f64) -> f64 {
+        *seed = seed
+            .wrapping_mul(6_364_136_223_846_793_005)
+            .wrapping_add(1_442_695_040_888_963_407);
+        ((*seed >> 11) as f64 / (1u64 << 53) as f64 * 2.0 - 1.0) * amplitude
+    }
+
+    fn mode(frequency_hz: f64) -> MeasuredMode {
+        MeasuredMode {
+            frequency_hz,
+            q: 40.0,
+            level_db: -20.0,
+            spread_hz: 0.5,
+        }
+    }
+
+    /// A violin top whose labelled modes follow f = C·m^k, with two
+    /// unlabelled modes in between that also fall.
+    fn synthetic_modes(mass_g: f64, seed: &mut u64) -> Vec<MeasuredMode> {
+        let k = 0.45;
+        let at = |f_at_85: f64| f_at_85 * (mass_g / 85.0_f64).powf(k);
+        [95.0, 180.0, 262.0, 380.0, 455.0]
+            .iter()
+            .map(|&f| mode(at(f) * 2f64.powf(noise_cents(seed, 3.0) / 1200.0)))
+            .collect()
+    }
+
+    fn labelled_top(masses_g: &[f64]) -> (Build, u64) {
+        let mut build = Build::new("synthetic", Family::Violin);
+        let mut seed = 7;
+        let part = build.add_part("top", PartKind::TopPlate).unwrap();
+        part.record_pass(PassInput::new(
+            masses_g[0],
+            synthetic_modes(masses_g[0], &mut seed),
+        ))
+        .unwrap();
+        part.set_label(1, 0, Some("mode 1")).unwrap();
+        part.set_label(1, 1, Some("mode 2")).unwrap();
+        part.set_label(1, 3, Some("mode 5")).unwrap();
+        for &m in &masses_g[1..] {
+            part.record_pass(PassInput::new(m, synthetic_modes(m, &mut seed)))
+                .unwrap();
+        }
+        (build, seed)
+    }
+
+    fn top(build: &Build) -> &Part {
+        build.part("top").unwrap()
+    }
+
+    #[test]
+    fn labels_follow_their_modes_through_a_thinning_series() {
+        let (build, _) = labelled_top(&[85.0, 82.5, 80.0, 77.0, 74.5, 72.0, 69.0]);
+        for pass in top(&build).passes() {
+            let labelled: Vec<(usize, &str)> = pass
+                .modes()
+                .iter()
+                .enumerate()
+                .filter_map(|(i, m)| m.label_name().map(|l| (i, l)))
+                .collect();
+            assert_eq!(
+                labelled,
+                [(0, "mode 1"), (1, "mode 2"), (3, "mode 5")],
+                "pass {}",
+                pass.number()
+            );
+            if pass.number() >= 4 {
+                assert!(
+                    pass.modes().iter().all(|m| !m.label_needs_confirmation()),
+                    "pass {} should be confident",
+                    pass.number()
+                );
+            }
+        }
+    }
+
+    #[test]
+    fn history_beats_a_fixed_window_after_a_big_cut() {
+        // After a steady history, a heavy pass (−12 % mass) moves mode 5
+        // down about 100 cents; a mode sits exactly where mode 5 used to be.
+        let (mut build, mut seed) = labelled_top(&[85.0, 83.0, 81.0, 79.0]);
+        let part = build.part_mut("top").unwrap();
+        let old_mode5 = part
+            .latest_pass()
+            .unwrap()
+            .mode_labelled("mode 5")
+            .unwrap()
+            .frequency_hz;
+        let mut modes = synthetic_modes(69.5, &mut seed);
+        modes.push(mode(old_mode5));
+        let expected_hz = modes[3].frequency_hz;
+        let outcome = part.record_pass(PassInput::new(69.5, modes)).unwrap();
+        let carried = outcome
+            .carried
+            .iter()
+            .find(|c| c.label == "mode 5")
+            .unwrap();
+        let pass = part.latest_pass().unwrap();
+        assert_eq!(pass.modes()[carried.mode_index].frequency_hz, expected_hz);
+        assert!(carried.confident);
+    }
+
+    #[test]
+    fn an_ambiguous_match_is_placed_but_flagged() {
+        let (mut build, _) = labelled_top(&[85.0, 83.0, 81.0, 79.0, 77.0]);
+        let part = build.part_mut("top").unwrap();
+        let predicted = 380.0 * (75.0f64 / 85.0).powf(0.45);
+        // Two modes 12 cents either side of where mode 5 should land.
+        let cents = |c: f64| predicted * 2f64.powf(c / 1200.0);
+        let modes = vec![
+            mode(95.0 * (75.0f64 / 85.0).powf(0.45)),
+            mode(cents(-12.0)),
+            mode(cents(12.5)),
+        ];
+        let outcome = part.record_pass(PassInput::new(75.0, modes)).unwrap();
+        assert!(
+            outcome.needs_confirmation.contains(&"mode 5".to_string()),
+            "{outcome:?}"
+        );
+        let pass = part.latest_pass().unwrap();
+        let holders: Vec<usize> = pass
+            .modes()
+            .iter()
+            .enumerate()
+            .filter(|(_, m)| m.label_name() == Some("mode 5"))
+            .map(|(i, _)| i)
+            .collect();
+        assert_eq!(holders, [1], "the nearer of the two gets the label, once");
+        assert!(pass.modes()[1].label_needs_confirmation());
+        // mode 2 had no candidate in its window.
+        assert_eq!(outcome.not_found, ["mode 2"]);
+    }
+
+    #[test]
+    fn one_mode_never_gets_two_labels() {
+        // Two labels whose predictions fall on the same single mode.
+        let mut build = Build::new("b", Family::Violin);
+        let part = build.add_part("top", PartKind::TopPlate).unwrap();
+        part.record_pass(PassInput::new(80.0, vec![mode(340.0), mode(350.0)]))
+            .unwrap();
+        part.set_label(1, 0, Some("mode 2")).unwrap();
+        part.set_label(1, 1, Some("mode 5")).unwrap();
+        let outcome = part
+            .record_pass(PassInput::new(79.0, vec![mode(343.0)]))
+            .unwrap();
+        assert_eq!(outcome.carried.len(), 1);
+        assert_eq!(outcome.not_found.len(), 1);
+        assert!(build.validate().is_ok());
+    }
+
+    #[test]
+    fn with_one_earlier_pass_uniform_thinning_predicts_the_move() {
+        // f ∝ m (thin-plate uniform thinning): 5 % less mass, 5 % lower.
+        let mut build = Build::new("b", Family::Guitar);
+        let part = build.add_part("top", PartKind::TopPlate).unwrap();
+        part.record_pass(PassInput::new(200.0, vec![mode(200.0), mode(300.0)]))
+            .unwrap();
+        part.set_label(1, 0, Some("monopole")).unwrap();
+        let outcome = part
+            .record_pass(PassInput::new(190.0, vec![mode(190.5), mode(285.0)]))
+            .unwrap();
+        assert_eq!(outcome.carried.len(), 1);
+        let carried = &outcome.carried[0];
+        assert!((carried.predicted_hz - 190.0).abs() < 1e-9);
+        assert_eq!(carried.mode_index, 0);
+        assert!(carried.confident, "{carried:?}");
+    }
+}

@@ -325,3 +325,148 @@ fn warnings(
     }
     warnings
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn noise(seed: &mut u64) -> f64 {
+        *seed = seed
+            .wrapping_mul(6_364_136_223_846_793_005)
+            .wrapping_add(1_442_695_040_888_963_407);
+        (*seed >> 11) as f64 / (1u64 << 53) as f64 * 2.0 - 1.0
+    }
+
+    /// Passes following f = C·m^k, frequencies scattered by up to
+    /// ±`noise_fraction`.
+    fn series(k: f64, masses_g: &[f64], noise_fraction: f64, seed: u64) -> Vec<HistoryPoint> {
+        let mut seed = seed;
+        masses_g
+            .iter()
+            .enumerate()
+            .map(|(i, &m)| HistoryPoint {
+                pass_number: i as u32 + 1,
+                mass_g: m,
+                frequency_hz: 380.0
+                    * (m / 85.0).powf(k)
+                    * (1.0 + noise_fraction * noise(&mut seed)),
+                mean_thickness_mm: Some(3.0 * m / 85.0),
+            })
+            .collect()
+    }
+
+    #[test]
+    fn fitted_forecast_is_within_two_percent_of_the_true_mass() {
+        // The check: a synthetic f ∝ m^k series with known k and noise.
+        let masses = [85.0, 83.0, 80.5, 78.0, 76.0, 73.5, 71.0];
+        for k in [0.4, 0.6, 0.9, 1.3] {
+            for seed in 1..=20 {
+                let history = series(k, &masses, 0.002, seed);
+                let true_target_mass = 66.0;
+                let target_hz = 380.0 * (true_target_mass / 85.0f64).powf(k);
+                let f = forecast("mode 5", target_hz, &history, 7).unwrap();
+                let error = f.target_mass_g / true_target_mass - 1.0;
+                assert!(error.abs() < 0.02, "k {k} seed {seed}: error {error}");
+                assert!(matches!(
+                    f.method,
+                    ForecastMethod::FittedExponent { passes_used: 7, .. }
+                ));
+                assert!(
+                    (f.exponent - k).abs() < 0.25 * k,
+                    "k {k}: fitted {}",
+                    f.exponent
+                );
+                let (low, high) = f.target_mass_range_g;
+                assert!(low <= f.target_mass_g && f.target_mass_g <= high);
+                assert!((f.mass_to_remove_g - (f.now_mass_g - f.target_mass_g)).abs() < 1e-12);
+            }
+        }
+    }
+
+    #[test]
+    fn noiseless_series_recovers_the_exponent_and_mass_exactly() {
+        let history = series(0.55, &[85.0, 82.0, 79.0, 76.0], 0.0, 0);
+        let target_hz = 380.0 * (70.0f64 / 85.0).powf(0.55);
+        let f = forecast("mode 5", target_hz, &history, 4).unwrap();
+        assert!((f.exponent - 0.55).abs() < 1e-9);
+        assert!((f.target_mass_g - 70.0).abs() < 1e-9);
+        // Uniform thinning: thickness scales with mass.
+        let thickness = f.thickness.unwrap();
+        assert!((thickness.mean_target_mm - 3.0 * 70.0 / 85.0).abs() < 1e-9);
+    }
+
+    #[test]
+    fn fewer_than_three_passes_fall_back_to_thin_plate_scaling() {
+        // Thin-plate theory: bending frequency ∝ thickness, and mass ∝
+        // thickness for even thinning, so f ∝ m (Leissa, Vibration of Plates,
+        // NASA SP-160, 1969; Fletcher & Rossing 1998, ch. 3). Lowering the
+        // frequency by 5 % then takes 5 % of the mass and 5 % of the thickness.
+        let history = series(0.5, &[80.0, 78.0], 0.0, 0);
+        let now = history[1];
+        let f = forecast("mode 5", now.frequency_hz * 0.95, &history, 2).unwrap();
+        assert_eq!(
+            f.method,
+            ForecastMethod::UniformThinning {
+                reason: FallbackReason::FewerThanThreePasses { passes: 2 }
+            }
+        );
+        assert!((f.target_mass_g - 0.95 * now.mass_g).abs() < 1e-9);
+        let thickness = f.thickness.unwrap();
+        assert!((thickness.mean_target_mm / thickness.mean_now_mm - 0.95).abs() < 1e-12);
+        // The band reaches to the slower fall of an arched plate (k = 0.5).
+        let (low, high) = f.target_mass_range_g;
+        assert!((low - now.mass_g * 0.95f64.powi(2)).abs() < 1e-9);
+        assert!((high - 0.95 * now.mass_g).abs() < 1e-9);
+    }
+
+    #[test]
+    fn far_extrapolation_and_a_rising_target_are_flagged() {
+        let history = series(0.5, &[80.0, 79.0, 78.0], 0.0, 0);
+        let far = forecast("mode 5", history[2].frequency_hz * 0.9, &history, 3).unwrap();
+        assert!(far
+            .warnings
+            .iter()
+            .any(|w| matches!(w, ForecastWarning::ExtrapolatesBeyondHistory { .. })));
+        let near = forecast("mode 5", history[2].frequency_hz * 0.995, &history, 3).unwrap();
+        assert!(near.warnings.is_empty(), "{:?}", near.warnings);
+        let up = forecast("mode 5", history[2].frequency_hz * 1.01, &history, 4).unwrap();
+        assert!(up.warnings.contains(&ForecastWarning::TargetAboveCurrent));
+        assert!(up
+            .warnings
+            .contains(&ForecastWarning::StartsFromEarlierPass { latest_pass: 4 }));
+        assert!(up.mass_to_remove_g < 0.0);
+    }
+
+    #[test]
+    fn a_slope_that_does_not_fall_uses_the_fallback() {
+        // Frequencies rise while mass falls.
+        let rising: Vec<HistoryPoint> = [(80.0, 300.0), (78.0, 310.0), (76.0, 320.0)]
+            .iter()
+            .enumerate()
+            .map(|(i, &(mass_g, frequency_hz))| HistoryPoint {
+                pass_number: i as u32 + 1,
+                mass_g,
+                frequency_hz,
+                mean_thickness_mm: None,
+            })
+            .collect();
+        let f = forecast("x", 300.0, &rising, 3).unwrap();
+        assert!(matches!(
+            f.method,
+            ForecastMethod::UniformThinning {
+                reason: FallbackReason::FitDoesNotFall { .. }
+            }
+        ));
+        let same_mass: Vec<HistoryPoint> = rising
+            .iter()
+            .map(|p| HistoryPoint { mass_g: 80.0, ..*p })
+            .collect();
+        let f = forecast("x", 300.0, &same_mass, 3).unwrap();
+        assert_eq!(
+            f.method,
+            ForecastMethod::UniformThinning {
+                reason: FallbackReason::NoMassSpread
+            }
+        );
+    }
+}

@@ -10,6 +10,7 @@
 pub mod carry_over;
 pub mod csv;
 pub mod forecast;
+pub mod from_analysis;
 pub mod labels;
 pub mod model;
 pub mod schema_v1;
@@ -57,7 +58,7 @@ pub enum LedgerError {
         index: usize,
     },
     /// A label the part does not offer.
-    #[error("part \"{part}\" has no label \"{label}\" (add it first)")]
+    #[error("part \"{part}\" does not have \"{label}\" among its labels")]
     UnknownLabel {
         /// The part.
         part: String,

@@ -17,6 +17,7 @@ use super::labels::preset_labels;
 use super::spectrum::StoredSpectrum;
 use super::time::Timestamp;
 use super::LedgerError;
+use crate::acoustics::CavityGeometry;
 use crate::analysis::pitch::cents_between;
 
 /// The schema version this code writes. Version 1 is still read (see
@@ -106,6 +107,11 @@ pub struct Build {
     /// When the build was started.
     pub created: Timestamp,
     pub(super) parts: Vec<Part>,
+    /// The body's cavity (volume, openings, air) for the air check, once
+    /// the maker has entered it. Files written before this field load with
+    /// `None`.
+    #[serde(default)]
+    pub air: Option<CavityGeometry>,
 }
 
 /// A thickness measured at one named point of a plate.
@@ -320,6 +326,7 @@ impl Build {
             notes: String::new(),
             created: Timestamp::now(),
             parts: Vec::new(),
+            air: None,
         }
     }
 

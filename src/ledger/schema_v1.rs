@@ -100,6 +100,7 @@ pub(super) fn migrate(old: BuildV1) -> Build {
         notes: old.notes,
         created: old.created,
         parts: old.parts.into_iter().map(migrate_part).collect(),
+        air: None,
     }
 }
 

@@ -13,6 +13,7 @@ pub const MAX_SPECTRUM_POINTS: usize = 4096;
 
 /// Level step of stored spectra, dB.
 pub const LEVEL_STEP_DB: f32 = 0.01;
+const STEPS_PER_DB: f32 = 100.0;
 
 /// A log-spaced spectrum of one pass, levels in dB (0.01 dB steps).
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
@@ -70,8 +71,11 @@ impl TryFrom<SpectrumFields> for StoredSpectrum {
     }
 }
 
+/// Rounds to 0.01 dB. Dividing the whole number of steps by 100 (rather
+/// than multiplying by 0.01, which is inexact in binary) gives the float
+/// nearest to the two-decimal value, so the file shows "-47.58".
 fn quantise_db(level_db: f32) -> f32 {
-    (level_db / LEVEL_STEP_DB).round() * LEVEL_STEP_DB
+    (level_db * STEPS_PER_DB).round() / STEPS_PER_DB
 }
 
 impl StoredSpectrum {
@@ -239,6 +243,14 @@ mod tests {
     fn levels_are_kept_to_a_hundredth_of_a_db() {
         let s = StoredSpectrum::on_log_axis(20.0, 2000.0, vec![-43.27161, 1.0049]).unwrap();
         assert_eq!(s.level_db(), [-43.27, 1.0]);
+        // Every step prints with at most two decimals.
+        let levels: Vec<f32> = (-20_000..20_000).map(|i| i as f32 * 0.0100003).collect();
+        let s = StoredSpectrum::on_log_axis(20.0, 2000.0, levels[..4000].to_vec()).unwrap();
+        for level in s.level_db() {
+            let text = format!("{level:?}");
+            let decimals = text.split('.').nth(1).map_or(0, str::len);
+            assert!(decimals <= 2, "{text}");
+        }
     }
 
     #[test]

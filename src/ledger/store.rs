@@ -146,11 +146,23 @@ pub fn from_ron_text(text: &str, path: &Path) -> Result<Build, StoreError> {
             path: path.to_path_buf(),
         });
     }
-    let syntax = |e: ron::error::SpannedError| StoreError::Syntax {
-        path: path.to_path_buf(),
-        line: e.span.start.line,
-        column: e.span.start.col,
-        problem: e.code.to_string(),
+    let syntax = |e: ron::error::SpannedError| {
+        let cut_short = matches!(e.code, ron::Error::Eof | ron::Error::ExpectedStringEnd)
+            || is_at_end(text, e.span.end.line, e.span.end.col);
+        let problem = if cut_short {
+            format!(
+                "the file ends before the build is complete (cut short?): {}",
+                e.code
+            )
+        } else {
+            e.code.to_string()
+        };
+        StoreError::Syntax {
+            path: path.to_path_buf(),
+            line: e.span.start.line,
+            column: e.span.start.col,
+            problem,
+        }
     };
     let probe: VersionProbe = ron::from_str(text).map_err(syntax)?;
     let build = match probe.schema_version {
@@ -173,6 +185,15 @@ pub fn from_ron_text(text: &str, path: &Path) -> Result<Build, StoreError> {
         problem,
     })?;
     Ok(build)
+}
+
+/// True if (line, column), both 1-based, is at or past the last character
+/// of `text`, ignoring trailing white space.
+fn is_at_end(text: &str, line: usize, column: usize) -> bool {
+    let content = text.trim_end();
+    let last_line = content.lines().count().max(1);
+    let last_column = content.lines().last().map_or(0, |l| l.chars().count());
+    line > last_line || (line == last_line && column > last_column)
 }
 
 /// Only the version; every other field is skipped. Named like the build so
@@ -269,16 +290,37 @@ fn folder_of(path: &Path) -> &Path {
     }
 }
 
-/// A new temporary file in the same folder, named `.<file name>.XXXX.saving`.
+/// A new temporary file in the same folder, named `.<file name>.XXXX.saving`,
+/// with the permissions `path` has now (or, for a new file, the ordinary
+/// read-write permissions less the umask) rather than the owner-only
+/// permissions temporary files get by default.
 fn temp_beside(path: &Path) -> io::Result<tempfile::NamedTempFile> {
     let name = path
         .file_name()
         .map(|n| n.to_string_lossy().into_owned())
         .unwrap_or_default();
-    tempfile::Builder::new()
-        .prefix(&format!(".{name}."))
-        .suffix(".saving")
-        .tempfile_in(folder_of(path))
+    let prefix = format!(".{name}.");
+    let mut builder = tempfile::Builder::new();
+    builder.prefix(&prefix).suffix(".saving");
+    if let Some(permissions) = permissions_for(path) {
+        builder.permissions(permissions);
+    }
+    builder.tempfile_in(folder_of(path))
+}
+
+fn permissions_for(path: &Path) -> Option<fs::Permissions> {
+    if let Ok(metadata) = fs::metadata(path) {
+        return Some(metadata.permissions());
+    }
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::PermissionsExt;
+        Some(fs::Permissions::from_mode(0o666))
+    }
+    #[cfg(not(unix))]
+    {
+        None
+    }
 }
 
 /// Copies the current file to its backup path atomically.
