@@ -21,6 +21,8 @@ use super::{check_sample_rate, ring_capacity_samples, CaptureError};
 const ERROR_RING_LEN: usize = 16;
 /// How long cpal may wait for the backend (ALSA uses it as its poll timeout).
 const BACKEND_TIMEOUT: Duration = Duration::from_millis(500);
+/// Longest wait for a stream to close before it is left behind.
+const STREAM_CLOSE_LIMIT: Duration = Duration::from_millis(500);
 /// Sleep between looks at an empty ring.
 const POLL_SLEEP: Duration = Duration::from_millis(1);
 
@@ -184,41 +186,109 @@ fn known_names(devices: &[cpal::Device]) -> String {
     text
 }
 
-/// The stream configuration to ask for: the device's default if it is PCM,
-/// else the best PCM configuration it offers (48 kHz if it can).
-fn choose_config(device: &cpal::Device, name: &str) -> Result<SupportedStreamConfig, CaptureError> {
-    match device.default_input_config() {
-        Ok(config) if is_pcm(config.sample_format()) => return Ok(config),
-        Ok(_) => {}
-        Err(error) => return Err(open_error(name, &error)),
+/// The stream configuration to ask for. tapwright measures one channel, so
+/// it asks for what a tap needs and every interface offers: mono before
+/// stereo before more channels (the channels are averaged anyway), 48 kHz
+/// before 44.1 kHz before the highest rate up to 192 kHz, and 16-bit
+/// integer samples before 32-bit, 24-bit and float (16 bits give about
+/// 96 dB of range, far more than the 50–60 dB between a workshop's
+/// background and a firm tap). On a device that converts to anything (an
+/// ALSA plug-in) this asks for plain 16-bit mono at 48 kHz; on a hardware
+/// device it picks among what the hardware does. If the device cannot list
+/// its configurations, its default configuration is used.
+fn choose_config(
+    device: &cpal::Device,
+    name: &str,
+    is_default: bool,
+) -> Result<SupportedStreamConfig, CaptureError> {
+    let ranges: Vec<cpal::SupportedStreamConfigRange> = match device.supported_input_configs() {
+        Ok(ranges) => ranges.filter(|c| is_pcm(c.sample_format())).collect(),
+        Err(_) => Vec::new(),
+    };
+    let best = ranges
+        .iter()
+        .filter_map(|range| {
+            let rate = preferred_rate(range)?;
+            let config = range.try_with_sample_rate(rate)?;
+            Some((
+                config_rank(range.channels(), rate, range.sample_format()),
+                config,
+            ))
+        })
+        .max_by_key(|(rank, _)| *rank);
+    if let Some((_, config)) = best {
+        return Ok(config);
     }
-    let best = device
-        .supported_input_configs()
-        .map_err(|e| open_error(name, &e))?
-        .filter(|c| is_pcm(c.sample_format()))
-        .max_by(|a, b| a.cmp_default_heuristics(b));
-    match best {
-        Some(range) => Ok(range
-            .try_with_standard_sample_rate()
-            .unwrap_or_else(|| range.with_max_sample_rate())),
-        None => Err(CaptureError::NoUsableFormat {
+    match device.default_input_config() {
+        Ok(config) if is_pcm(config.sample_format()) => Ok(config),
+        Ok(_) => Err(CaptureError::NoUsableFormat {
             device: name.to_owned(),
         }),
+        Err(error) => Err(open_error(name, is_default, &error)),
     }
 }
 
-/// Turns a cpal error met while opening into one of ours.
-fn open_error(device: &str, error: &cpal::Error) -> CaptureError {
+/// 48 kHz, else 44.1 kHz, else the highest rate tapwright accepts.
+fn preferred_rate(range: &cpal::SupportedStreamConfigRange) -> Option<u32> {
+    let (low, high) = (range.min_sample_rate(), range.max_sample_rate());
+    let accepted = crate::wav_io::MIN_SAMPLE_RATE_HZ..=crate::wav_io::MAX_SAMPLE_RATE_HZ;
+    [48_000, 44_100]
+        .into_iter()
+        .find(|rate| (low..=high).contains(rate))
+        .or_else(|| {
+            Some(high.min(*accepted.end())).filter(|&rate| rate >= low && accepted.contains(&rate))
+        })
+}
+
+/// Larger is better: channels first, then rate, then sample format.
+fn config_rank(channels: u16, rate_hz: u32, format: SampleFormat) -> (u8, u8, u8) {
+    let channel_rank = match channels {
+        1 => 3,
+        2 => 2,
+        0 => 0,
+        _ => 1,
+    };
+    let rate_rank = match rate_hz {
+        48_000 => 2,
+        44_100 => 1,
+        _ => 0,
+    };
+    let format_rank = match format {
+        SampleFormat::I16 => 8,
+        SampleFormat::I32 => 7,
+        SampleFormat::I24 => 6,
+        SampleFormat::F32 => 5,
+        SampleFormat::F64 => 4,
+        SampleFormat::U16 => 3,
+        SampleFormat::U24 | SampleFormat::U32 => 2,
+        _ => 1,
+    };
+    (channel_rank, rate_rank, format_rank)
+}
+
+/// Turns a cpal error met while opening into one of ours. `is_default`
+/// says whether the system default was asked for (no name given).
+fn open_error(device: &str, is_default: bool, error: &cpal::Error) -> CaptureError {
     let device = device.to_owned();
-    let detail = error.to_string();
+    // cpal's own message when it has one (the kind's text is generic).
+    let detail = error
+        .message()
+        .map(|m| format!(" ({})", m.trim_end_matches('.')))
+        .unwrap_or_default();
     match error.kind() {
         cpal::ErrorKind::DeviceBusy => CaptureError::DeviceBusy { device },
+        cpal::ErrorKind::DeviceNotAvailable | cpal::ErrorKind::HostUnavailable if is_default => {
+            CaptureError::DefaultUnavailable { device, detail }
+        }
         cpal::ErrorKind::DeviceNotAvailable | cpal::ErrorKind::HostUnavailable => {
             CaptureError::DeviceUnavailable { device, detail }
         }
         cpal::ErrorKind::PermissionDenied => CaptureError::PermissionDenied { device, detail },
         cpal::ErrorKind::UnsupportedConfig => CaptureError::NoUsableFormat { device },
-        _ => CaptureError::Open { device, detail },
+        _ => CaptureError::Open {
+            device,
+            detail: error.to_string().trim_end_matches('.').to_owned(),
+        },
     }
 }
 
@@ -229,7 +299,7 @@ pub struct DeviceSource {
     reader: RingReader,
     errors: rtrb::Consumer<cpal::Error>,
     /// Kept alive for as long as the source is; dropping it stops the stream.
-    _stream: cpal::Stream,
+    stream: Option<cpal::Stream>,
     last_notice: Option<Instant>,
 }
 
@@ -256,7 +326,8 @@ pub fn open_device(
         Some(name) => find_device(&host, name)?,
     };
     let name = device_name(&device);
-    let supported = choose_config(&device, &name)?;
+    let is_default = wanted.is_none();
+    let supported = choose_config(&device, &name, is_default)?;
     let sample_rate_hz = check_sample_rate(supported.sample_rate())?;
     let config: StreamConfig = supported.config();
     let (writer, reader) = sample_ring(ring_capacity_samples(ring_capacity_s, sample_rate_hz));
@@ -268,8 +339,10 @@ pub fn open_device(
         writer,
         error_writer,
     )
-    .map_err(|e| open_error(&name, &e))?;
-    stream.play().map_err(|e| open_error(&name, &e))?;
+    .map_err(|e| open_error(&name, is_default, &e))?;
+    stream
+        .play()
+        .map_err(|e| open_error(&name, is_default, &e))?;
     let channels = config.channels;
     Ok(DeviceSource {
         description: format!(
@@ -280,7 +353,7 @@ pub fn open_device(
         sample_rate_hz,
         reader,
         errors,
-        _stream: stream,
+        stream: Some(stream),
         last_notice: None,
     })
 }
@@ -409,6 +482,30 @@ impl SampleSource for DeviceSource {
 
     fn is_live(&self) -> bool {
         true
+    }
+}
+
+impl Drop for DeviceSource {
+    /// Closes the stream on a helper thread and waits at most
+    /// [`STREAM_CLOSE_LIMIT`]. A backend thread that never returns (a stuck
+    /// driver; or the ALSA `file` plug-in at the end of its file in recent
+    /// alsa-lib, whose reads of 0 frames make cpal's reader loop for ever)
+    /// is left behind instead of hanging the worker; it ends with the
+    /// program.
+    fn drop(&mut self) {
+        let Some(stream) = self.stream.take() else {
+            return;
+        };
+        let (closed, wait) = std::sync::mpsc::channel();
+        let closer = std::thread::Builder::new()
+            .name("tapwright-stream-close".to_owned())
+            .spawn(move || {
+                drop(stream);
+                let _ = closed.send(());
+            });
+        if closer.is_ok() {
+            let _ = wait.recv_timeout(STREAM_CLOSE_LIMIT);
+        }
     }
 }
 

@@ -165,11 +165,15 @@ pub enum CaptureError {
     /// Another program holds the device.
     #[error("the input device '{device}' is busy: another program may be using it")]
     DeviceBusy { device: String },
+    /// The system's default input cannot be opened (no sound card, or the
+    /// default points at one that is missing).
+    #[error("there is no usable audio input device: the default input '{device}' cannot be opened{detail}; connect a microphone or audio interface")]
+    DefaultUnavailable { device: String, detail: String },
     /// The device is gone or cannot be reached.
-    #[error("the input device '{device}' is not available ({detail})")]
+    #[error("the input device '{device}' cannot be opened: it is missing or disconnected{detail}")]
     DeviceUnavailable { device: String, detail: String },
     /// The system refused access.
-    #[error("permission to record from '{device}' was refused ({detail})")]
+    #[error("permission to record from '{device}' was refused{detail}")]
     PermissionDenied { device: String, detail: String },
     /// The device cannot deliver any sample format tapwright reads.
     #[error("the input device '{device}' offers no sample format tapwright can read")]
