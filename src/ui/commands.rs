@@ -88,6 +88,62 @@ pub enum AppCommand {
     ShowMessage(String),
     /// Show a problem as one sentence in the status line.
     ShowError(String),
+    /// Something for the Listen area (input, taps, modes, files).
+    Listen(ListenCommand),
+}
+
+/// Where Listen takes its sound from.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub enum SourcePick {
+    /// The bundled demo recording, replayed as if live.
+    Demo,
+    /// An input device (None: the system default).
+    Device(Option<String>),
+}
+
+/// What the Listen area asks of the app.
+#[derive(Clone, Debug, PartialEq)]
+pub enum ListenCommand {
+    /// Listen to another source (stops the current one).
+    ChooseSource(SourcePick),
+    /// List the input devices again.
+    RefreshDevices,
+    /// New trigger and analysis settings (applied to taps that follow).
+    SetSettings(crate::capture::CaptureSettings),
+    /// Average this many of the latest kept taps.
+    SetTapsToAverage(usize),
+    /// Leave a tap out of the pass (true) or take it back (false).
+    SetTapLeftOut {
+        /// The tap's number.
+        tap_index: usize,
+        /// Out or back in.
+        left_out: bool,
+    },
+    /// Put a label on a mode of the pass (None clears it).
+    SetModeLabel {
+        /// Index into the pass's modes.
+        mode_index: usize,
+        /// The label.
+        label: Option<String>,
+    },
+    /// Forget the taps and start a new pass.
+    NewPass,
+    /// Read a WAV file and show its taps as the pass.
+    OpenRecording(PathBuf),
+    /// Show the file dialog to open a recording.
+    ChooseRecordingFile,
+    /// Show the file dialog to save the kept taps as WAV.
+    ChooseSaveTapsFile,
+    /// Save the kept taps as WAV to this path.
+    SaveTaps(PathBuf),
+    /// Show the file dialog to export the pass as JSON.
+    ChooseExportFile,
+    /// Export the pass as JSON to this path.
+    ExportPass(PathBuf),
+    /// Reference pitch for note names, Hz.
+    SetA4(f64),
+    /// Which preset label set to offer when no part is chosen.
+    SetLabelSet(usize),
 }
 
 impl std::fmt::Debug for AppCommand {
@@ -106,6 +162,7 @@ impl std::fmt::Debug for AppCommand {
             Self::SetListenPart(part) => write!(f, "SetListenPart({part:?})"),
             Self::ShowMessage(text) => write!(f, "ShowMessage({text:?})"),
             Self::ShowError(text) => write!(f, "ShowError({text:?})"),
+            Self::Listen(command) => write!(f, "Listen({command:?})"),
         }
     }
 }
