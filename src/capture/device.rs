@@ -400,7 +400,7 @@ where
 {
     let channels = usize::from(config.channels);
     device.build_input_stream_raw(
-        config.clone(),
+        *config,
         T::FORMAT,
         move |data: &cpal::Data, _info: &cpal::InputCallbackInfo| {
             if let Some(samples) = data.as_slice::<T>() {

@@ -155,11 +155,9 @@ impl SyntheticGenerator {
 
     fn advance_schedule(&mut self) {
         self.next_strike += 1;
-        if self.next_strike >= self.schedule.len() {
-            if self.period_samples.is_some() {
-                self.next_strike = 0;
-                self.repetition += 1;
-            }
+        if self.next_strike >= self.schedule.len() && self.period_samples.is_some() {
+            self.next_strike = 0;
+            self.repetition += 1;
         }
     }
 
