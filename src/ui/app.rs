@@ -225,6 +225,17 @@ impl TapwrightApp {
         self.build.as_ref()
     }
 
+    /// Queues a command as if an area had pushed it; it is applied at the
+    /// end of the next frame (for tests and for code driving the window).
+    pub fn queue(&mut self, command: AppCommand) {
+        self.commands.push(command);
+    }
+
+    /// The part whose labels Listen offers.
+    pub fn listen_part(&self) -> Option<&str> {
+        self.listen_part.as_deref()
+    }
+
     /// True while background work (a file being read, a source being
     /// opened …) has not reported.
     pub fn is_busy(&self) -> bool {
@@ -243,7 +254,11 @@ impl TapwrightApp {
         self.take_capture_events();
         self.take_dropped_files(ui.ctx());
         self.draw(ui);
-        self.apply_commands();
+        if !self.commands.is_empty() {
+            // The frame just drawn predates the commands: draw once more.
+            ui.ctx().request_repaint();
+            self.apply_commands();
+        }
         self.schedule_repaint(ui.ctx());
     }
 

@@ -404,15 +404,13 @@ fn central(ui: &mut egui::Ui, view: &mut ListenView, facts: &ListenFacts, ctx: &
         reset: std::mem::take(&mut view.reset_plot),
     };
     let hovered = spectrum_plot::show(ui, &plot_input);
-    if hovered.is_some() || !ui.ctx().is_pointer_over_egui() {
-        view.cursor = hovered;
-    }
+    view.cursor = hovered;
 
     ui.add_space(4.0);
     let width = ui.available_width();
     ui.horizontal_top(|ui| {
         ui.vertical(|ui| {
-            ui.set_width(width * 0.58);
+            ui.set_width(width * 0.56);
             mode_list(ui, view, facts, ctx);
         });
         ui.separator();
@@ -450,7 +448,7 @@ fn mode_list(ui: &mut egui::Ui, view: &mut ListenView, facts: &ListenFacts, ctx:
                         ui.monospace(format!("{:.0}", mode.q));
                         ui.monospace(format!("{:.1} dB", mode.level_db));
                         ui.monospace(note_text(mode.frequency_hz, ctx.a4_hz));
-                        ui.monospace(format!("±{:.1} Hz", mode.spread_hz));
+                        ui.monospace(format!("±{:.2} Hz", mode.spread_hz));
                         ui.monospace(format!("{}/{}", mode.taps_seen, pass.taps_used));
                         let current = facts.session.mode_labels().get(i).cloned().flatten();
                         if let Some(label) = label_picker(
@@ -543,7 +541,7 @@ fn tap_list(ui: &mut egui::Ui, facts: &ListenFacts, ctx: &mut AreaContext) {
                     for tap in taps {
                         ui.monospace(format!("Tap {}", tap.index));
                         ui.monospace(format!("{:.2} s", tap.onset_s));
-                        ui.monospace(format!("{:.1} dBFS", tap.peak_dbfs));
+                        ui.monospace(format!("{:.1} dB", tap.peak_dbfs));
                         match tap.reason_out() {
                             None if facts.session.is_averaged(tap.index) => {
                                 ui.label("in the pass");
@@ -557,12 +555,12 @@ fn tap_list(ui: &mut egui::Ui, facts: &ListenFacts, ctx: &mut AreaContext) {
                             }
                         }
                         if tap.analysis.is_some() && tap.rejected.is_none() {
-                            let (text, left_out) = if tap.left_out {
-                                (format!("Take tap {} back", tap.index), false)
+                            let (text, name, left_out) = if tap.left_out {
+                                ("Take back", format!("Take tap {} back", tap.index), false)
                             } else {
-                                (format!("Leave tap {} out", tap.index), true)
+                                ("Leave out", format!("Leave tap {} out", tap.index), true)
                             };
-                            if ui.small_button(text).clicked() {
+                            if ui.small_button(text).accessible_name(name).clicked() {
                                 listen(
                                     ctx,
                                     ListenCommand::SetTapLeftOut {

@@ -1,0 +1,321 @@
+//! The workbench window, driven through its accessibility tree with
+//! egui_kittest (no GPU, no display): the real app on the demo recording,
+//! taps and modes, labels, leaving a tap out, opening a WAV by path, errors.
+
+use std::time::{Duration, Instant};
+
+use eframe::egui;
+use egui_kittest::kittest::Queryable;
+use egui_kittest::Harness;
+use tapwright::analysis::synth::{add_modes, NoiseGenerator, SynthMode};
+use tapwright::capture::Pacing;
+use tapwright::ledger::{Family, PartKind};
+use tapwright::ui::{AppCommand, AppOptions, SourceState, StartSource, TapwrightApp};
+
+/// Upper bound on waiting for background work, so a broken build fails
+/// instead of hanging (not a speed check).
+const PATIENCE: Duration = Duration::from_secs(60);
+
+fn harness_with(options: AppOptions) -> Harness<'static, TapwrightApp> {
+    Harness::builder()
+        .with_size(egui::vec2(1280.0, 800.0))
+        .build_ui_state(
+            |ui, app: &mut TapwrightApp| app.show(ui),
+            TapwrightApp::new(options),
+        )
+}
+
+/// The real app on the bundled demo recording, delivered as fast as the
+/// capture worker takes it.
+fn demo_harness() -> Harness<'static, TapwrightApp> {
+    harness_with(AppOptions {
+        source: StartSource::Demo,
+        demo_pacing: Pacing::AsFastAsPossible,
+        ..AppOptions::default()
+    })
+}
+
+fn step_until(
+    harness: &mut Harness<'_, TapwrightApp>,
+    what: &str,
+    done: impl Fn(&TapwrightApp) -> bool,
+) {
+    let deadline = Instant::now() + PATIENCE;
+    while !done(harness.state()) {
+        assert!(Instant::now() < deadline, "gave up waiting for {what}");
+        harness.step();
+        std::thread::sleep(Duration::from_millis(5));
+    }
+    harness.run_ok();
+}
+
+fn demo_finished(harness: &mut Harness<'_, TapwrightApp>) {
+    step_until(harness, "the demo taps", |app| {
+        app.input().state == SourceState::Ended && !app.is_busy()
+    });
+}
+
+fn mode_near(app: &TapwrightApp, frequency_hz: f64) -> Option<(usize, f64)> {
+    app.pass()?
+        .modes
+        .iter()
+        .enumerate()
+        .find(|(_, m)| (m.frequency_hz - frequency_hz).abs() < 1.0)
+        .map(|(i, m)| (i, m.frequency_hz))
+}
+
+#[test]
+fn demo_taps_and_modes_appear_in_the_lists() {
+    let mut harness = demo_harness();
+    demo_finished(&mut harness);
+
+    // Six strikes, the fourth a double strike (src/demo.rs: invented plate,
+    // strike schedule known exactly).
+    for n in 1..=6 {
+        harness.get_by_label(&format!("Tap {n}"));
+    }
+    harness.get_by_label("double strike");
+    assert!(
+        harness.query_by_label("Leave tap 4 out").is_none(),
+        "a rejected tap cannot be left out"
+    );
+    harness.get_by_label("5 taps averaged");
+
+    // Every mode of the invented plate is found within 1 Hz and shown in the
+    // mode list (truth: tapwright::demo::demo_plate_modes, the generator's
+    // own values).
+    for truth in tapwright::demo::demo_plate_modes() {
+        let (_, found_hz) = mode_near(harness.state(), truth.frequency_hz)
+            .unwrap_or_else(|| panic!("no mode near {} Hz", truth.frequency_hz));
+        harness.get_by_label(&format!("{found_hz:.1} Hz"));
+    }
+    assert!(!harness
+        .query_all_by_label_contains("338.")
+        .collect::<Vec<_>>()
+        .is_empty());
+}
+
+#[test]
+fn a_mode_gets_a_label_from_the_set_or_typed() {
+    let mut harness = demo_harness();
+    demo_finished(&mut harness);
+    let (index, hz) = mode_near(harness.state(), 338.0).expect("mode 5 of the demo plate");
+
+    harness
+        .get_by_label(&format!("Label of the mode at {hz:.1} Hz"))
+        .click();
+    harness.run_ok();
+    harness.get_by_label("mode 5").click();
+    harness.run_ok();
+    assert_eq!(
+        harness.state().session().mode_labels()[index].as_deref(),
+        Some("mode 5")
+    );
+    let picker_name = format!("Label of the mode at {hz:.1} Hz");
+    let picker = harness.get_by_label(&picker_name);
+    assert_eq!(picker.value().as_deref(), Some("mode 5"));
+
+    // An own label, typed.
+    let (other, other_hz) = mode_near(harness.state(), 243.0).expect("the 243 Hz mode");
+    harness
+        .get_by_label(&format!("Label of the mode at {other_hz:.1} Hz"))
+        .click();
+    harness.run_ok();
+    let field = harness.get_by_label("Own label");
+    field.focus();
+    field.type_text("ring-ish");
+    harness.run_ok();
+    harness.get_by_label("Use this label").click();
+    harness.run_ok();
+    let labels = harness.state().session().mode_labels();
+    assert_eq!(labels[other].as_deref(), Some("ring-ish"));
+    assert_eq!(labels[index].as_deref(), Some("mode 5"));
+}
+
+#[test]
+fn leaving_a_tap_out_changes_the_average_and_taking_it_back_restores_it() {
+    let mut harness = demo_harness();
+    demo_finished(&mut harness);
+    let before = harness.state().pass().cloned().expect("a pass");
+    assert_eq!(before.taps_used, 5);
+
+    harness.get_by_label("Leave tap 1 out").click();
+    harness.run_ok();
+    let fewer = harness.state().pass().cloned().expect("a pass");
+    assert_eq!(fewer.taps_used, 4);
+    assert_ne!(
+        fewer.spectrum, before.spectrum,
+        "the averaged spectrum must change"
+    );
+    harness.get_by_label("4 taps averaged");
+    harness.get_by_label("left out");
+
+    harness.get_by_label("Take tap 1 back").click();
+    harness.run_ok();
+    assert_eq!(harness.state().pass(), Some(&before));
+    harness.get_by_label("5 taps averaged");
+}
+
+/// Three taps on an invented two-mode part (150 Hz, Q 40; 420 Hz, Q 60),
+/// written as a WAV file.
+fn write_two_mode_taps(path: &std::path::Path) {
+    let rate = 44_100u32;
+    let fs = f64::from(rate);
+    let mut samples = vec![0.0f64; (4.5 * fs) as usize];
+    let modes = [
+        SynthMode::new(150.0, 40.0, 0.2),
+        SynthMode::new(420.0, 60.0, 0.12),
+    ];
+    for start_s in [0.5, 1.9, 3.3] {
+        add_modes(&mut samples, fs, (start_s * fs) as usize, &modes);
+    }
+    let mut noise = NoiseGenerator::new(7);
+    let samples: Vec<f32> = samples
+        .iter()
+        .map(|x| (x + 2e-4 * noise.gaussian()) as f32)
+        .collect();
+    tapwright::wav_io::write_mono(path, rate, &samples, false).unwrap();
+}
+
+#[test]
+fn a_wav_file_opened_by_typed_path_shows_its_modes() {
+    let folder = tempfile::tempdir().unwrap();
+    let path = folder.path().join("two modes.wav");
+    write_two_mode_taps(&path);
+
+    let mut harness = demo_harness();
+    harness.run_ok();
+    let field = harness.get_by_label("Path");
+    field.focus();
+    field.type_text(&path.display().to_string());
+    harness.run_ok();
+    harness.get_by_label("Open").click();
+    let expected = SourceState::File(path.clone());
+    step_until(&mut harness, "the opened recording", |app| {
+        app.input().state == expected && !app.is_busy()
+    });
+
+    let app = harness.state();
+    assert_eq!(app.session().taps().len(), 3);
+    let (_, low) = mode_near(app, 150.0).expect("the 150 Hz mode");
+    let (_, high) = mode_near(app, 420.0).expect("the 420 Hz mode");
+    harness.get_by_label(&format!("{low:.1} Hz"));
+    harness.get_by_label(&format!("{high:.1} Hz"));
+    harness.get_by_label("3 taps averaged");
+}
+
+#[test]
+fn a_file_that_is_not_a_recording_gives_one_clear_sentence() {
+    let folder = tempfile::tempdir().unwrap();
+    let path = folder.path().join("notes.wav");
+    std::fs::write(&path, "these are notes, not sound").unwrap();
+
+    let mut harness = demo_harness();
+    demo_finished(&mut harness);
+    let field = harness.get_by_label("Path");
+    field.focus();
+    field.type_text(&path.display().to_string());
+    harness.run_ok();
+    harness.get_by_label("Open").click();
+    step_until(&mut harness, "the error", |app| {
+        app.status().is_some_and(|s| s.is_error) && !app.is_busy()
+    });
+    let status = harness.state().status().unwrap().text.clone();
+    assert!(
+        status.contains("notes.wav"),
+        "the message names the file: {status}"
+    );
+    assert!(
+        status.ends_with('.') && !status.contains('\n'),
+        "one sentence: {status}"
+    );
+    harness.get_by_label(&status);
+    // The demo's pass is still there.
+    assert_eq!(harness.state().pass().map(|p| p.taps_used), Some(5));
+}
+
+#[test]
+fn help_has_the_caution_note_and_the_theme_switches() {
+    let mut harness = demo_harness();
+    harness.run_ok();
+    harness.get_by_label("Help").click();
+    harness.run_ok();
+    // NIOSH recommended exposure limit, 85 dBA over 8 h; IARC Group 1 for
+    // wood dust (IARC Monographs vol. 62 and 100C).
+    harness.get_by_label_contains("85 dB(A)");
+    harness.get_by_label_contains("IARC Group 1");
+    harness.get_by_label_contains("local workshop-safety rules");
+
+    assert_eq!(harness.ctx.theme(), egui::Theme::Dark);
+    harness.get_by_label("Light theme").click();
+    harness.run_ok();
+    assert_eq!(harness.ctx.theme(), egui::Theme::Light);
+    harness.get_by_label("Dark theme");
+}
+
+#[test]
+fn areas_switch_and_a_pass_goes_to_the_ledger_through_commands() {
+    let mut harness = demo_harness();
+    demo_finished(&mut harness);
+    let (index, _) = mode_near(harness.state(), 338.0).expect("mode 5");
+
+    harness.get_by_label("Ledger").click();
+    harness.run_ok();
+    assert_eq!(harness.state().area(), tapwright::ui::Area::Ledger);
+    harness.get_by_label("Listen").click();
+    harness.run_ok();
+
+    let app = harness.state_mut();
+    app.queue(AppCommand::NewBuild {
+        name: "Invented violin No. 1".into(),
+        family: Family::Violin,
+    });
+    app.queue(AppCommand::EditBuild {
+        description: "adding the top".into(),
+        edit: Box::new(|build| {
+            build.add_part("top", PartKind::TopPlate)?;
+            Ok("Added the top.".into())
+        }),
+    });
+    app.queue(AppCommand::SetListenPart(Some("top".into())));
+    harness.run_ok();
+    harness.get_by_label("Labels from Invented violin No. 1: top");
+
+    let app = harness.state_mut();
+    app.queue(AppCommand::Listen(
+        tapwright::ui::ListenCommand::SetModeLabel {
+            mode_index: index,
+            label: Some("mode 5".into()),
+        },
+    ));
+    harness.run_ok();
+    // The command an area builds from the Listen result.
+    let app = harness.state();
+    let pass = app.pass().unwrap();
+    let labels = app.session().mode_labels().to_vec();
+    let modes = pass
+        .modes
+        .iter()
+        .map(|m| tapwright::ledger::MeasuredMode {
+            frequency_hz: m.frequency_hz,
+            q: m.q,
+            level_db: m.level_db,
+            spread_hz: m.spread_hz,
+        })
+        .collect();
+    let input = tapwright::ledger::PassInput::new(71.5, modes);
+    harness.state_mut().queue(AppCommand::RecordPass {
+        part: "top".into(),
+        input,
+        labels,
+    });
+    harness.run_ok();
+    let build = harness.state().build().expect("the build");
+    let part = build.part("top").unwrap();
+    assert_eq!(part.passes().len(), 1);
+    let labelled = part.passes()[0]
+        .mode_labelled("mode 5")
+        .expect("mode 5 recorded");
+    assert!((labelled.frequency_hz - 338.0).abs() < 1.0);
+    harness.get_by_label("Build: Invented violin No. 1 (unsaved)");
+}
