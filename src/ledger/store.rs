@@ -3,7 +3,8 @@
 //! Reading ([`load`]) never writes. It checks, in order: the file can be
 //! read, is not empty, is UTF-8 text, is RON with a `schema_version` this
 //! code knows (1 is migrated, 2 is current), parses as that layout, and
-//! passes [`Build::validate`]. Each failure is one [`StoreError`] naming the
+//! passes [`Build::validate`]. (The current layout is tried first; the
+//! version alone is read only when that fails.) Each failure is one [`StoreError`] naming the
 //! file and, for syntax and layout problems, the line and column.
 //!
 //! Writing ([`save`]) is atomic: the new text goes to a temporary file in
@@ -164,22 +165,37 @@ pub fn from_ron_text(text: &str, path: &Path) -> Result<Build, StoreError> {
             problem,
         }
     };
-    let probe: VersionProbe = ron::from_str(text).map_err(syntax)?;
-    let build = match probe.schema_version {
+    let unsupported = |found: u64| StoreError::UnsupportedVersion {
+        path: path.to_path_buf(),
+        found,
+    };
+    // The current layout is tried first; only if it does not fit, or the
+    // file says it is another version, is the version read on its own.
+    let version = match ron::from_str::<Build>(text) {
+        Ok(build) if build.schema_version() == SCHEMA_VERSION => return checked(build, path),
+        Ok(build) => u64::from(build.schema_version()),
+        Err(current_layout_error) => {
+            let probe: VersionProbe = ron::from_str(text).map_err(syntax)?;
+            if probe.schema_version == u64::from(SCHEMA_VERSION) {
+                return Err(syntax(current_layout_error));
+            }
+            probe.schema_version
+        }
+    };
+    let build = match version {
         0 => {
             return Err(StoreError::NoVersion {
                 path: path.to_path_buf(),
             })
         }
         1 => schema_v1::migrate(ron::from_str::<schema_v1::BuildV1>(text).map_err(syntax)?),
-        2 => ron::from_str::<Build>(text).map_err(syntax)?,
-        found => {
-            return Err(StoreError::UnsupportedVersion {
-                path: path.to_path_buf(),
-                found,
-            })
-        }
+        found => return Err(unsupported(found)),
     };
+    checked(build, path)
+}
+
+/// The build if it passes [`Build::validate`].
+fn checked(build: Build, path: &Path) -> Result<Build, StoreError> {
     build.validate().map_err(|problem| StoreError::Invalid {
         path: path.to_path_buf(),
         problem,
@@ -205,13 +221,17 @@ struct VersionProbe {
     schema_version: u64,
 }
 
-/// The RON text `save` writes: pretty, `\n` line ends, numbers of deep
-/// lists (spectra, thickness readings) on one line.
+/// The RON text `save` writes: pretty, `\n` line ends, the items of deep
+/// lists (modes, thickness readings) one per line. Strings are written
+/// as they are (a raw string `r#"..."#` when they hold quotes or
+/// backslashes) rather than escaped character by character, which is both
+/// easier to read and several times quicker for the long spectrum strings.
 pub fn to_ron_text(build: &Build) -> Result<String, ron::Error> {
     let config = PrettyConfig::new()
         .new_line("\n")
         .indentor("    ")
-        .depth_limit(6);
+        .depth_limit(6)
+        .escape_strings(false);
     let mut text = ron::ser::to_string_pretty(build, config)?;
     text.push('\n');
     Ok(text)
