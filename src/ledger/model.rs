@@ -21,7 +21,7 @@ use crate::acoustics::CavityGeometry;
 use crate::analysis::pitch::cents_between;
 
 /// The schema version this code writes. Version 1 is still read (see
-/// `store::migrate_v1`).
+/// `schema_v1`, migrated on load by `store::load`).
 pub const SCHEMA_VERSION: u32 = 2;
 
 /// Instrument family of a build; chooses the preset label sets.
