@@ -93,27 +93,41 @@ fn demo_taps_and_modes_appear_in_the_lists() {
         .query_all_by_label_contains("338.")
         .collect::<Vec<_>>()
         .is_empty());
+
+    // The demo shows the invented plate's mode 2 and mode 5 labelled, as an
+    // example, on the modes found there.
+    let app = harness.state();
+    let labels = app.session().mode_labels();
+    assert_eq!(
+        labels[mode_near(app, 168.0).unwrap().0].as_deref(),
+        Some("mode 2")
+    );
+    assert_eq!(
+        labels[mode_near(app, 338.0).unwrap().0].as_deref(),
+        Some("mode 5")
+    );
+    assert_eq!(labels.iter().flatten().count(), 2);
 }
 
 #[test]
 fn a_mode_gets_a_label_from_the_set_or_typed() {
     let mut harness = demo_harness();
     demo_finished(&mut harness);
-    let (index, hz) = mode_near(harness.state(), 338.0).expect("mode 5 of the demo plate");
+    let (index, hz) = mode_near(harness.state(), 92.0).expect("the lowest mode of the demo plate");
 
     harness
         .get_by_label(&format!("Label of the mode at {hz:.1} Hz"))
         .click();
     harness.run_ok();
-    harness.get_by_label("mode 5").click();
+    harness.get_by_label("mode 1").click();
     harness.run_ok();
     assert_eq!(
         harness.state().session().mode_labels()[index].as_deref(),
-        Some("mode 5")
+        Some("mode 1")
     );
     let picker_name = format!("Label of the mode at {hz:.1} Hz");
     let picker = harness.get_by_label(&picker_name);
-    assert_eq!(picker.value().as_deref(), Some("mode 5"));
+    assert_eq!(picker.value().as_deref(), Some("mode 1"));
 
     // An own label, typed.
     let (other, other_hz) = mode_near(harness.state(), 243.0).expect("the 243 Hz mode");
@@ -129,7 +143,14 @@ fn a_mode_gets_a_label_from_the_set_or_typed() {
     harness.run_ok();
     let labels = harness.state().session().mode_labels();
     assert_eq!(labels[other].as_deref(), Some("ring-ish"));
-    assert_eq!(labels[index].as_deref(), Some("mode 5"));
+    assert_eq!(labels[index].as_deref(), Some("mode 1"));
+
+    // Clearing a label.
+    harness.get_by_label(&picker_name).click();
+    harness.run_ok();
+    harness.get_by_label("no label").click();
+    harness.run_ok();
+    assert_eq!(harness.state().session().mode_labels()[index], None);
 }
 
 #[test]

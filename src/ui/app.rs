@@ -144,6 +144,8 @@ pub struct TapwrightApp {
     status: Option<Status>,
     commands: Vec<AppCommand>,
     frames: u64,
+    frames_at_report: u64,
+    frames_reported_window: i64,
 }
 
 impl TapwrightApp {
@@ -154,10 +156,12 @@ impl TapwrightApp {
             StartSource::Demo => SourcePick::Demo,
             StartSource::Device(name) => SourcePick::Device(name.clone()),
         };
-        let mut settings = CaptureSettings::default();
-        // Ten level readings a second keep the meter alive without
+        // Five level readings a second keep the meter alive without
         // repainting more than needed.
-        settings.level_interval_ms = 100.0;
+        let settings = CaptureSettings {
+            level_interval_ms: 200.0,
+            ..CaptureSettings::default()
+        };
         Self {
             options,
             area: Area::Listen,
@@ -192,6 +196,8 @@ impl TapwrightApp {
             status: None,
             commands: Vec::new(),
             frames: 0,
+            frames_at_report: 0,
+            frames_reported_window: 0,
         }
     }
 
@@ -250,6 +256,7 @@ impl TapwrightApp {
             self.first_frame(ui.ctx());
         }
         self.frames += 1;
+        self.report_frame_rate();
         self.take_job_results();
         self.take_capture_events();
         self.take_dropped_files(ui.ctx());
@@ -260,6 +267,23 @@ impl TapwrightApp {
             self.apply_commands();
         }
         self.schedule_repaint(ui.ctx());
+    }
+
+    /// With timing on, prints the frames drawn every 10 s (to check that an
+    /// idle window does not repaint).
+    fn report_frame_rate(&mut self) {
+        let Some(started) = self.options.started_at else {
+            return;
+        };
+        let window = (started.elapsed().as_secs() / 10) as i64;
+        if window > self.frames_reported_window {
+            eprintln!(
+                "tapwright timing: {} frames in the last 10 s",
+                self.frames - self.frames_at_report
+            );
+            self.frames_reported_window = window;
+            self.frames_at_report = self.frames;
+        }
     }
 
     fn first_frame(&mut self, ctx: &egui::Context) {
@@ -569,7 +593,7 @@ impl TapwrightApp {
             egui::Window::new("Help and caution")
                 .open(&mut open)
                 .default_size([520.0, 420.0])
-                .show(ui.ctx(), |ui| super::help::show(ui));
+                .show(ui.ctx(), super::help::show);
             self.show_help = open;
         }
     }
@@ -891,6 +915,9 @@ impl TapwrightApp {
         let source = match &pick {
             SourcePick::Demo => match crate::demo::demo_recording() {
                 Ok(recording) => {
+                    for (frequency_hz, label) in DEMO_LABELS {
+                        self.session.remember_label(frequency_hz, label);
+                    }
                     self.input.description = "demo recording (invented violin top)".to_owned();
                     SourceChoice::Replay {
                         recording,
@@ -918,12 +945,13 @@ impl TapwrightApp {
         });
     }
 
-    /// Called by the capture worker after each event: wakes the window.
+    /// Called by the capture worker after each event: wakes the window
+    /// within [`NEWS_REPAINT_DELAY`], so a burst of events costs one frame.
     fn repaint_hook(&self) -> crate::capture::Notify {
         let ctx = self.ctx.clone();
         Arc::new(move || {
             if let Some(ctx) = &ctx {
-                ctx.request_repaint();
+                ctx.request_repaint_after(NEWS_REPAINT_DELAY);
             }
         })
     }
@@ -954,6 +982,14 @@ impl Drop for TapwrightApp {
         self.stop_capture();
     }
 }
+
+/// Labels shown on the demo plate's modes as an example, if the analysis
+/// finds modes there: the invented plate's mode 2 and mode 5 (src/demo.rs).
+const DEMO_LABELS: [(f64, &str); 2] = [(168.0, "mode 2"), (338.0, "mode 5")];
+
+/// Longest wait between news from the capture worker and the frame that
+/// shows it. Events closer together than this share one frame.
+const NEWS_REPAINT_DELAY: Duration = Duration::from_millis(60);
 
 /// How long the clip warning stays after the input clipped.
 const CLIP_WARNING_FOR: Duration = Duration::from_secs(2);

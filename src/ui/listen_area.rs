@@ -32,6 +32,8 @@ pub struct ListenView {
     pub typed_labels: std::collections::HashMap<usize, String>,
     /// What the pointer is over in the plot.
     pub cursor: Option<CursorReadout>,
+    /// The plot's curves, remade only when the pass or band changes.
+    pub curves: Option<spectrum_plot::Curves>,
 }
 
 impl ListenView {
@@ -45,6 +47,7 @@ impl ListenView {
             a4_hz: crate::analysis::DEFAULT_A4_HZ,
             typed_labels: Default::default(),
             cursor: None,
+            curves: None,
         }
     }
 }
@@ -390,13 +393,30 @@ fn central(ui: &mut egui::Ui, view: &mut ListenView, facts: &ListenFacts, ctx: &
 
     let available = ui.available_height();
     let plot_height = (available * 0.55).max(200.0);
+    let low_hz = facts.settings.analysis.band_low_hz.max(1.0);
     let band = (
-        facts.settings.analysis.band_low_hz,
-        facts.settings.analysis.band_high_hz,
+        low_hz,
+        facts.settings.analysis.band_high_hz.max(low_hz * 1.5),
     );
+    let key = (
+        facts.session.generation(),
+        band.0.to_bits(),
+        band.1.to_bits(),
+    );
+    if view.curves.as_ref().is_none_or(|c| c.key != key) {
+        view.curves = Some(spectrum_plot::Curves::new(
+            key,
+            pass,
+            facts.session.latest_spectrum(),
+            band,
+        ));
+    }
+    let Some(curves) = view.curves.as_ref() else {
+        return;
+    };
     let plot_input = spectrum_plot::PlotInput {
         pass,
-        latest: facts.session.latest_spectrum(),
+        curves,
         labels: facts.session.mode_labels(),
         band_hz: band,
         a4_hz: ctx.a4_hz,

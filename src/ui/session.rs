@@ -72,6 +72,7 @@ pub struct ListenSession {
     averaged: Vec<usize>,
     anchors: Vec<LabelAnchor>,
     mode_labels: Vec<Option<String>>,
+    generation: u64,
 }
 
 impl Default for ListenSession {
@@ -92,6 +93,7 @@ impl ListenSession {
             averaged: Vec::new(),
             anchors: Vec::new(),
             mode_labels: Vec::new(),
+            generation: 0,
         }
     }
 
@@ -108,6 +110,11 @@ impl ListenSession {
     /// One optional label per mode of [`Self::pass`].
     pub fn mode_labels(&self) -> &[Option<String>] {
         &self.mode_labels
+    }
+
+    /// Changes each time the pass is recombined (for caches of drawings).
+    pub fn generation(&self) -> u64 {
+        self.generation
     }
 
     /// How many of the latest kept taps are averaged.
@@ -194,6 +201,18 @@ impl ListenSession {
         true
     }
 
+    /// Remembers a label for whatever mode turns up within 2 % of
+    /// `frequency_hz` (used to show the demo plate's known modes labelled).
+    pub fn remember_label(&mut self, frequency_hz: f64, label: &str) {
+        self.anchors
+            .retain(|a| a.label != label && !near(a.frequency_hz, frequency_hz));
+        self.anchors.push(LabelAnchor {
+            frequency_hz,
+            label: label.to_owned(),
+        });
+        self.place_labels();
+    }
+
     /// The taps in the average, oldest first.
     fn averaged_taps(&self) -> Vec<&TapEntry> {
         let kept: Vec<&TapEntry> = self.taps.iter().filter(|t| t.is_kept()).collect();
@@ -214,6 +233,7 @@ impl ListenSession {
         };
         self.averaged = indices;
         self.pass = pass;
+        self.generation += 1;
         self.place_labels();
     }
 

@@ -10,16 +10,68 @@ use crate::analysis::pitch::nearest_note;
 use crate::analysis::{DisplaySpectrum, PassResult};
 
 /// Points drawn per curve (log-spaced, each the loudest bin of its stretch).
-const CURVE_POINTS: usize = 1400;
+const CURVE_POINTS: usize = 900;
 /// dB shown below the loudest point when the view is reset.
 const RANGE_DB: f64 = 80.0;
+
+/// The curves of one state of the pass, kept between frames.
+#[derive(Debug)]
+pub struct Curves {
+    /// What they were made from: session generation and band.
+    pub key: (u64, u64, u64),
+    /// The averaged spectrum, (log10 Hz, dB).
+    pub average: Vec<[f64; 2]>,
+    /// The latest tap, (log10 Hz, dB).
+    pub latest: Vec<[f64; 2]>,
+    /// Top of the default view, dB.
+    pub top_db: f64,
+}
+
+impl Curves {
+    /// Makes the curves of a pass over a band.
+    pub fn new(
+        key: (u64, u64, u64),
+        pass: Option<&PassResult>,
+        latest: Option<&DisplaySpectrum>,
+        band_hz: (f64, f64),
+    ) -> Self {
+        let (low_hz, high_hz) = band_hz;
+        let curve = |s: &DisplaySpectrum| -> Vec<[f64; 2]> {
+            s.log_spaced_db(low_hz, high_hz, CURVE_POINTS)
+                .into_iter()
+                .map(|(f, db)| [f.log10(), db])
+                .collect()
+        };
+        let average = pass
+            .and_then(|p| p.spectrum.as_ref())
+            .map(curve)
+            .unwrap_or_default();
+        let latest = latest.map(curve).unwrap_or_default();
+        let top_db = average
+            .iter()
+            .chain(&latest)
+            .map(|p| p[1])
+            .fold(f64::NEG_INFINITY, f64::max);
+        let top_db = if top_db.is_finite() {
+            (top_db / 10.0).ceil() * 10.0 + 5.0
+        } else {
+            0.0
+        };
+        Self {
+            key,
+            average,
+            latest,
+            top_db,
+        }
+    }
+}
 
 /// What the plot shows.
 pub struct PlotInput<'a> {
     /// The pass (averaged spectrum and modes).
     pub pass: Option<&'a PassResult>,
-    /// The latest kept tap's spectrum.
-    pub latest: Option<&'a DisplaySpectrum>,
+    /// Its curves.
+    pub curves: &'a Curves,
     /// Labels beside the pass's modes.
     pub labels: &'a [Option<String>],
     /// The analysis band (low, high), Hz: the default view.
@@ -59,29 +111,8 @@ impl CursorReadout {
 
 /// Draws the plot; returns the cursor readout while the pointer is over it.
 pub fn show(ui: &mut egui::Ui, input: &PlotInput) -> Option<CursorReadout> {
-    let (low_hz, high_hz) = (
-        input.band_hz.0.max(1.0),
-        input.band_hz.1.max(input.band_hz.0 * 1.5),
-    );
-    let average = input
-        .pass
-        .and_then(|p| p.spectrum.as_ref())
-        .map(|s| s.log_spaced_db(low_hz, high_hz, CURVE_POINTS))
-        .unwrap_or_default();
-    let latest = input
-        .latest
-        .map(|s| s.log_spaced_db(low_hz, high_hz, CURVE_POINTS))
-        .unwrap_or_default();
-    let top_db = average
-        .iter()
-        .chain(&latest)
-        .map(|p| p.1)
-        .fold(f64::NEG_INFINITY, f64::max);
-    let top_db = if top_db.is_finite() {
-        (top_db / 10.0).ceil() * 10.0 + 5.0
-    } else {
-        0.0
-    };
+    let (low_hz, high_hz) = input.band_hz;
+    let top_db = input.curves.top_db;
 
     let dark = ui.visuals().dark_mode;
     let main_colour = if dark {
@@ -137,8 +168,8 @@ pub fn show(ui: &mut egui::Ui, input: &PlotInput) -> Option<CursorReadout> {
         .unwrap_or_default();
 
     let response = plot.show(ui, |plot_ui| {
-        if !latest.is_empty() {
-            let points: Vec<[f64; 2]> = latest.iter().map(|(f, db)| [f.log10(), *db]).collect();
+        if !input.curves.latest.is_empty() {
+            let points = input.curves.latest.clone();
             plot_ui.line(
                 Line::new("latest tap", points)
                     .color(faint_colour)
@@ -146,8 +177,8 @@ pub fn show(ui: &mut egui::Ui, input: &PlotInput) -> Option<CursorReadout> {
                     .allow_hover(false),
             );
         }
-        if !average.is_empty() {
-            let points: Vec<[f64; 2]> = average.iter().map(|(f, db)| [f.log10(), *db]).collect();
+        if !input.curves.average.is_empty() {
+            let points = input.curves.average.clone();
             plot_ui.line(
                 Line::new("pass average", points)
                     .color(main_colour)
