@@ -1,1 +1,104 @@
-fn main() {}
+//! Speed of the tap analysis: one 1 s tap at 48 kHz, a 5-tap file, and a
+//! bare real FFT of the same length for comparison (the target is one tap
+//! within a small multiple, ≤ 10×, of that FFT). The ratio is printed.
+
+use std::hint::black_box;
+use std::time::Instant;
+
+use criterion::{criterion_group, Criterion};
+use realfft::RealFftPlanner;
+use tapwright::analysis::synth::{add_modes, contact_pulse, NoiseGenerator};
+use tapwright::analysis::{analyze_recording, AnalysisSettings, TapAnalyzer, TriggerSettings};
+use tapwright::demo::demo_plate_modes;
+
+const FS: f64 = 48_000.0;
+
+/// A 1 s record of the demo plate: 5 ms before the strike, then the decay.
+fn one_tap_record() -> Vec<f32> {
+    let mut x = vec![0.0; 48_240];
+    contact_pulse(&mut x, FS, 240, 0.8, 0.08);
+    add_modes(&mut x, FS, 240, &demo_plate_modes());
+    let mut noise = NoiseGenerator::new(1);
+    x.iter().map(|&v| (v + 3e-4 * noise.gaussian()) as f32).collect()
+}
+
+fn five_tap_file() -> Vec<f32> {
+    let mut x = vec![0.0; (8.0 * FS) as usize];
+    for i in 0..5 {
+        let start = ((0.5 + 1.5 * i as f64) * FS) as usize;
+        contact_pulse(&mut x, FS, start, 0.8, 0.08);
+        add_modes(&mut x, FS, start, &demo_plate_modes());
+    }
+    let mut noise = NoiseGenerator::new(2);
+    x.iter().map(|&v| (v + 3e-4 * noise.gaussian()) as f32).collect()
+}
+
+fn median_seconds(mut f: impl FnMut(), runs: usize) -> f64 {
+    let mut times: Vec<f64> = (0..runs)
+        .map(|_| {
+            let t = Instant::now();
+            f();
+            t.elapsed().as_secs_f64()
+        })
+        .collect();
+    times.sort_by(f64::total_cmp);
+    times[runs / 2]
+}
+
+fn print_ratio() {
+    let record = one_tap_record();
+    let mut analyzer = TapAnalyzer::new(AnalysisSettings::default(), FS);
+    let tap_s = median_seconds(|| drop(black_box(analyzer.analyze_record(&record, 240))), 101);
+    for len in [48_000usize, 65_536] {
+        let fft = RealFftPlanner::<f32>::new().plan_fft_forward(len);
+        let mut input = vec![0.1f32; len];
+        let mut output = fft.make_output_vec();
+        let fft_s = median_seconds(
+            || {
+                let _ = fft.process(&mut input, &mut output);
+            },
+            301,
+        );
+        println!(
+            "one 1 s tap: {:.3} ms; bare real FFT of {len}: {:.3} ms; ratio {:.1}x",
+            tap_s * 1e3,
+            fft_s * 1e3,
+            tap_s / fft_s
+        );
+    }
+}
+
+fn benches(c: &mut Criterion) {
+    let record = one_tap_record();
+    let mut analyzer = TapAnalyzer::new(AnalysisSettings::default(), FS);
+    c.bench_function("analyze one 1 s tap (7 modes, 48 kHz)", |b| {
+        b.iter(|| black_box(analyzer.analyze_record(black_box(&record), 240)))
+    });
+    let file = five_tap_file();
+    c.bench_function("analyze a 5-tap 8 s file", |b| {
+        b.iter(|| {
+            black_box(analyze_recording(
+                black_box(&file),
+                FS,
+                &TriggerSettings::default(),
+                &AnalysisSettings::default(),
+            ))
+        })
+    });
+    let fft = RealFftPlanner::<f32>::new().plan_fft_forward(48_000);
+    let mut input = vec![0.1f32; 48_000];
+    let mut output = fft.make_output_vec();
+    c.bench_function("bare real FFT, 48000 points", |b| {
+        b.iter(|| {
+            let _ = fft.process(black_box(&mut input), &mut output);
+        })
+    });
+}
+
+criterion_group!(analysis, benches);
+
+fn main() {
+    print_ratio();
+    analysis();
+    Criterion::default().configure_from_args().final_summary();
+}

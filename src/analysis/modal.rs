@@ -195,7 +195,7 @@ impl TapAnalyzer {
         let mut modes = if self.residual.len() < MIN_DECAY_SAMPLES {
             Vec::new()
         } else {
-            let poles = self.estimate_poles();
+            let poles = self.estimate_poles(&spectrum);
             self.to_modes(&poles)
         };
         modes.sort_by(|a, b| a.frequency_hz.total_cmp(&b.frequency_hz));
@@ -223,10 +223,9 @@ impl TapAnalyzer {
     /// Steps 2 and 3 of the method, in rounds: find peaks, estimate each
     /// (strongest first) and subtract it, refine overlapping groups jointly;
     /// then look again in what is left for modes the stronger ones hid.
-    fn estimate_poles(&mut self) -> Vec<(Pole, f64)> {
-        let original = self.residual_spectrum();
+    fn estimate_poles(&mut self, original: &DisplaySpectrum) -> Vec<(Pole, f64)> {
         let mut poles: Vec<(Pole, f64)> = Vec::new();
-        let mut candidates = find_candidates(&original, None, &self.settings);
+        let mut candidates = find_candidates(original, None, &self.settings);
         for _round in 0..MAX_ROUNDS {
             let before = poles.len();
             for candidate in &candidates {
@@ -245,7 +244,7 @@ impl TapAnalyzer {
                 break;
             }
             let left = self.residual_spectrum();
-            candidates = find_candidates(&left, Some(&original), &self.settings);
+            candidates = find_candidates(&left, Some(original), &self.settings);
             candidates.retain(|c| !near_existing(c, &poles, self.sample_rate_hz, left.bin_hz));
         }
         poles
@@ -256,7 +255,7 @@ impl TapAnalyzer {
     fn add_candidate(&mut self, candidate: &Candidate, poles: &mut Vec<(Pole, f64)>) {
         let fs = self.sample_rate_hz;
         let omega = 2.0 * PI * candidate.frequency_hz / fs;
-        let Some(pole) = initial_estimate(&self.residual, omega) else {
+        let Some(pole) = initial_estimate(&self.residual, omega, None) else {
             return;
         };
         let moved_hz = (pole.frequency_hz(fs) - candidate.frequency_hz).abs();
@@ -268,6 +267,10 @@ impl TapAnalyzer {
     }
 
     fn refine_group(&mut self, group: &mut [(Pole, f64)]) {
+        if let [(pole, _)] = group {
+            self.refine_single(pole);
+            return;
+        }
         for (pole, _) in group.iter() {
             add_pole(&mut self.residual, pole, 1.0);
         }
@@ -278,6 +281,22 @@ impl TapAnalyzer {
         for ((slot, _), new) in group.iter_mut().zip(refined.unwrap_or(initial)) {
             *slot = new;
             add_pole(&mut self.residual, slot, -1.0);
+        }
+    }
+
+    /// An isolated mode: its three-bin estimate on the residual with its own
+    /// model put back is unbiased once its neighbours are subtracted, and
+    /// costs a fraction of a joint fit.
+    fn refine_single(&mut self, pole: &mut Pole) {
+        let old = *pole;
+        // The estimate sees the residual with this mode's model put back.
+        let new = initial_estimate(&self.residual, old.z.arg(), Some(&old));
+        if let Some(new) = new {
+            let moved = (new.z.arg() - old.z.arg()).abs();
+            if new.z.norm() < 1.0 && moved < 3.0 * (-old.z.norm().ln()).max(1e-4) {
+                replace_pole(&mut self.residual, &old, &new);
+                *pole = new;
+            }
         }
     }
 
@@ -328,6 +347,9 @@ const GHOST_RATIO: f32 = 0.1;
 const GROUP_BANDWIDTHS: f64 = 6.0;
 /// At most this many modes in one joint fit.
 const MAX_GROUP: usize = 8;
+/// The first three-bin estimate of a candidate uses this many samples (or 64
+/// periods, if longer) before the record is matched to the decay.
+const FIRST_RECORD_SAMPLES: usize = 8192;
 /// Records for the three-bin estimate span this many time constants.
 const RECORD_TIME_CONSTANTS: f64 = 3.0;
 /// Joint fits span this many time constants of the slowest mode.
@@ -385,7 +407,7 @@ fn find_candidates(
     let threshold = floor * 10f32.powf((settings.min_above_floor_db / 10.0) as f32);
     let mut found: Vec<Candidate> = (low..=high)
         .filter(|&k| power[k] > threshold && power[k] >= power[k - 1] && power[k] > power[k + 1])
-        .filter(|&k| original.is_none_or(|o| o.power.get(k).is_some_and(|&p| power[k] >= p * GHOST_RATIO)))
+        .filter(|&k| original.is_none_or(|o| power[k] >= o.power[o.bin_of_hz(k as f64 * spectrum.bin_hz)] * GHOST_RATIO))
         .filter_map(|k| {
             let prominence_db = prominence_db(power, k);
             (prominence_db >= settings.min_prominence_db).then(|| Candidate {
@@ -448,18 +470,21 @@ fn fit_length(tau_samples: f64, available: usize) -> usize {
 
 /// Three-bin estimate of the strongest pole near `omega` (rad/sample),
 /// repeated with the record cut to about three time constants.
-fn initial_estimate(signal: &[f64], omega: f64) -> Option<Pole> {
-    let mut len = signal.len();
-    let mut pole = three_bin_pole(signal, len, omega)?;
-    for _ in 0..2 {
+/// With `own`, the estimate is made on `signal` plus that mode's model (a
+/// mode being re-estimated after its neighbours were subtracted).
+fn initial_estimate(signal: &[f64], omega: f64, own: Option<&Pole>) -> Option<Pole> {
+    let min_len = ((8.0 * 2.0 * PI / omega.max(1e-6)) as usize).max(MIN_DECAY_SAMPLES).min(signal.len());
+    let periods_64 = (64.0 * 2.0 * PI / omega.max(1e-6)) as usize;
+    let mut len = periods_64.max(FIRST_RECORD_SAMPLES).clamp(min_len, signal.len());
+    let mut pole = three_bin_pole(signal, len, omega, own)?;
+    for _ in 0..3 {
         let wanted = (RECORD_TIME_CONSTANTS * pole.tau_samples()).round() as usize;
-        let min_len = ((8.0 * 2.0 * PI / omega.max(1e-6)) as usize).max(MIN_DECAY_SAMPLES);
-        let new_len = wanted.clamp(min_len.min(signal.len()), signal.len());
-        if new_len == len {
+        let new_len = wanted.clamp(min_len, signal.len());
+        if new_len.abs_diff(len) * 10 < len {
             break;
         }
         len = new_len;
-        pole = three_bin_pole(signal, len, pole.z.arg().max(omega * 0.5))?;
+        pole = three_bin_pole(signal, len, pole.z.arg().max(omega * 0.5), own)?;
     }
     Some(pole)
 }
@@ -471,14 +496,14 @@ fn initial_estimate(signal: &[f64], omega: f64) -> Option<Pole> {
 /// positive part 1/X[m] = p − q·ρ^m with z = q/p. p and q are fitted by
 /// weighted least squares over the three bins; the image term is removed
 /// with the current estimate and the fit repeated.
-fn three_bin_pole(signal: &[f64], len: usize, omega: f64) -> Option<Pole> {
+fn three_bin_pole(signal: &[f64], len: usize, omega: f64, own: Option<&Pole>) -> Option<Pole> {
     let k = (omega * len as f64 / (2.0 * PI)).round() as i64;
     if k < 2 || (k + 2) as usize > len / 2 {
         return None;
     }
     let bins = [k - 1, k, k + 1];
     let rho = |m: i64| Complex64::from_polar(1.0, -2.0 * PI * m as f64 / len as f64);
-    let measured: Vec<Complex64> = bins.iter().map(|&m| dft_bin(&signal[..len], m)).collect();
+    let measured = dft_bins(&signal[..len], bins, own);
     let mut image = [Complex64::new(0.0, 0.0); 3];
     let mut pole = None;
     for _ in 0..4 {
@@ -528,29 +553,58 @@ fn fit_inverse_line(x: &[Complex64], rho: &[Complex64; 3]) -> Option<(Complex64,
     Some((p, q))
 }
 
-/// One DFT bin (integer `m` on the `signal.len()` grid) by Goertzel's
-/// recurrence: X[m] = e^{jω}·s[L−1] − s[L−2].
-fn dft_bin(signal: &[f64], m: i64) -> Complex64 {
-    let omega = 2.0 * PI * m as f64 / signal.len() as f64;
-    let coeff = 2.0 * omega.cos();
-    let (mut s1, mut s2) = (0.0, 0.0);
-    for &x in signal {
-        let s0 = x + coeff * s1 - s2;
-        s2 = s1;
-        s1 = s0;
+/// Three DFT bins (integers on the `signal.len()` grid) of the signal, plus
+/// the model of `own` if given, by Goertzel's recurrence run for the three
+/// bins in one pass: X[m] = e^{jω}·s[L−1] − s[L−2].
+fn dft_bins(signal: &[f64], bins: [i64; 3], own: Option<&Pole>) -> [Complex64; 3] {
+    let omegas = bins.map(|m| 2.0 * PI * m as f64 / signal.len() as f64);
+    let coeffs = omegas.map(|w| 2.0 * w.cos());
+    let (mut s1, mut s2) = ([0.0f64; 3], [0.0f64; 3]);
+    let mut step = |x: f64| {
+        for b in 0..3 {
+            let s0 = x + coeffs[b] * s1[b] - s2[b];
+            s2[b] = s1[b];
+            s1[b] = s0;
+        }
+    };
+    match own {
+        None => signal.iter().for_each(|&x| step(x)),
+        Some(pole) => {
+            let mut phasor = pole.c * 2.0;
+            for &x in signal {
+                step(x + phasor.re);
+                phasor *= pole.z;
+            }
+        }
     }
-    Complex64::from_polar(1.0, omega) * s1 - s2
+    [0, 1, 2].map(|b| Complex64::from_polar(1.0, omegas[b]) * s1[b] - s2[b])
 }
 
 /// Adds `sign`·2·Re(c·zⁿ) to the signal, stopping once the mode has died
-/// away below 1e-9 of its start.
+/// away below 1e-7 (−140 dB) of its start.
 fn add_pole(signal: &mut [f64], pole: &Pole, sign: f64) {
     let mut phasor = pole.c * (2.0 * sign);
-    let limit = phasor.norm() * 1e-9;
+    let limit = phasor.norm() * 1e-7;
     for (i, x) in signal.iter_mut().enumerate() {
         *x += phasor.re;
         phasor *= pole.z;
         if i % 256 == 255 && phasor.norm() < limit {
+            break;
+        }
+    }
+}
+
+/// Replaces one fitted mode by another in the residual, in one pass:
+/// adds 2·Re(c_old·z_oldⁿ) − 2·Re(c_new·z_newⁿ).
+fn replace_pole(signal: &mut [f64], old: &Pole, new: &Pole) {
+    let mut p_old = old.c * 2.0;
+    let mut p_new = new.c * 2.0;
+    let limit = p_old.norm().max(p_new.norm()) * 1e-7;
+    for (i, x) in signal.iter_mut().enumerate() {
+        *x += p_old.re - p_new.re;
+        p_old *= old.z;
+        p_new *= new.z;
+        if i % 256 == 255 && p_old.norm().max(p_new.norm()) < limit {
             break;
         }
     }
@@ -717,7 +771,7 @@ mod tests {
     fn three_bin_pole_is_exact_without_noise() {
         let truth = SynthMode::new(312.3, 45.0, 0.5);
         let x = damped_modes(FS, 6000, &[truth], 0.0, &mut NoiseGenerator::new(1));
-        let pole = three_bin_pole(&x, x.len(), 2.0 * PI * 312.3 / FS).expect("pole");
+        let pole = three_bin_pole(&x, x.len(), 2.0 * PI * 312.3 / FS, None).expect("pole");
         assert!((pole.frequency_hz(FS) - 312.3).abs() < 1e-6, "{}", pole.frequency_hz(FS));
         assert!((pole.decay_per_s(FS) - truth.decay_per_s()).abs() < 1e-6);
         assert!((pole.amplitude() - 0.5).abs() < 1e-6);
