@@ -152,6 +152,9 @@ pub struct TapAnalyzer {
     candidate_maker: Option<SpectrumMaker>,
     residual: Vec<f64>,
     scratch: Vec<f32>,
+    /// Amplitude below which a mode's tail is not worth adding or
+    /// subtracting: 50 dB under the noise of the current record.
+    tail_floor: f64,
 }
 
 impl TapAnalyzer {
@@ -163,6 +166,7 @@ impl TapAnalyzer {
             candidate_maker: None,
             residual: Vec::new(),
             scratch: Vec::new(),
+            tail_floor: 0.0,
         }
     }
 
@@ -192,6 +196,7 @@ impl TapAnalyzer {
         self.residual.clear();
         self.residual
             .extend(record[start.min(record.len())..].iter().map(|&x| f64::from(x) - offset));
+        self.tail_floor = TAIL_BELOW_NOISE * noise_rms(record, onset_index, offset);
         let mut modes = if self.residual.len() < MIN_DECAY_SAMPLES {
             Vec::new()
         } else {
@@ -261,7 +266,7 @@ impl TapAnalyzer {
         let moved_hz = (pole.frequency_hz(fs) - candidate.frequency_hz).abs();
         let plausible = pole.z.norm() < 1.0 && pole.z.arg() > 0.0 && moved_hz < 4.0 * candidate.bin_hz.max(pole.decay_per_s(fs) / PI);
         if plausible {
-            add_pole(&mut self.residual, &pole, -1.0);
+            add_pole(&mut self.residual, &pole, -1.0, self.tail_floor);
             poles.push((pole, candidate.prominence_db));
         }
     }
@@ -272,7 +277,7 @@ impl TapAnalyzer {
             return;
         }
         for (pole, _) in group.iter() {
-            add_pole(&mut self.residual, pole, 1.0);
+            add_pole(&mut self.residual, pole, 1.0, self.tail_floor);
         }
         let longest_tau = group.iter().map(|(p, _)| p.tau_samples()).fold(0.0, f64::max);
         let len = fit_length(longest_tau, self.residual.len());
@@ -280,7 +285,7 @@ impl TapAnalyzer {
         let refined = refine_poles(&self.residual[..len], &initial);
         for ((slot, _), new) in group.iter_mut().zip(refined.unwrap_or(initial)) {
             *slot = new;
-            add_pole(&mut self.residual, slot, -1.0);
+            add_pole(&mut self.residual, slot, -1.0, self.tail_floor);
         }
     }
 
@@ -294,7 +299,7 @@ impl TapAnalyzer {
         if let Some(new) = new {
             let moved = (new.z.arg() - old.z.arg()).abs();
             if new.z.norm() < 1.0 && moved < 3.0 * (-old.z.norm().ln()).max(1e-4) {
-                replace_pole(&mut self.residual, &old, &new);
+                replace_pole(&mut self.residual, &old, &new, self.tail_floor);
                 *pole = new;
             }
         }
@@ -335,6 +340,9 @@ impl TapAnalyzer {
 
 /// Records shorter than this after the strike give no modes.
 const MIN_DECAY_SAMPLES: usize = 256;
+/// Tails weaker than this fraction of the noise RMS (−50 dB) are neither
+/// added nor subtracted.
+const TAIL_BELOW_NOISE: f64 = 0.003;
 /// Passes of group refinement per round.
 const REFINE_SWEEPS: usize = 2;
 /// Rounds of looking again in the residual.
@@ -373,6 +381,21 @@ fn decay_start(record: &[f32], onset_index: usize, fs: f64) -> usize {
     } else {
         onset + loudest + guard
     }
+}
+
+/// RMS of the noise: the quiet part before the strike, or, for a bare decay,
+/// the last tenth of the record.
+fn noise_rms(record: &[f32], onset_index: usize, offset: f64) -> f64 {
+    let quiet = if onset_index >= 32 {
+        &record[..onset_index.min(record.len())]
+    } else {
+        &record[record.len() - record.len() / 10..]
+    };
+    if quiet.is_empty() {
+        return 0.0;
+    }
+    let power = quiet.iter().map(|&x| (f64::from(x) - offset).powi(2)).sum::<f64>() / quiet.len() as f64;
+    power.sqrt()
 }
 
 /// Mean of the quiet part before the strike: the DC offset of the input.
@@ -581,10 +604,11 @@ fn dft_bins(signal: &[f64], bins: [i64; 3], own: Option<&Pole>) -> [Complex64; 3
 }
 
 /// Adds `sign`·2·Re(c·zⁿ) to the signal, stopping once the mode has died
-/// away below 1e-7 (−140 dB) of its start.
-fn add_pole(signal: &mut [f64], pole: &Pole, sign: f64) {
+/// away below 1e-7 (−140 dB) of its start or below `floor` (an amplitude
+/// far under the noise, where the tail no longer matters).
+fn add_pole(signal: &mut [f64], pole: &Pole, sign: f64, floor: f64) {
     let mut phasor = pole.c * (2.0 * sign);
-    let limit = phasor.norm() * 1e-7;
+    let limit = (phasor.norm() * 1e-7).max(floor);
     for (i, x) in signal.iter_mut().enumerate() {
         *x += phasor.re;
         phasor *= pole.z;
@@ -596,10 +620,10 @@ fn add_pole(signal: &mut [f64], pole: &Pole, sign: f64) {
 
 /// Replaces one fitted mode by another in the residual, in one pass:
 /// adds 2·Re(c_old·z_oldⁿ) − 2·Re(c_new·z_newⁿ).
-fn replace_pole(signal: &mut [f64], old: &Pole, new: &Pole) {
+fn replace_pole(signal: &mut [f64], old: &Pole, new: &Pole, floor: f64) {
     let mut p_old = old.c * 2.0;
     let mut p_new = new.c * 2.0;
-    let limit = p_old.norm().max(p_new.norm()) * 1e-7;
+    let limit = (p_old.norm().max(p_new.norm()) * 1e-7).max(floor);
     for (i, x) in signal.iter_mut().enumerate() {
         *x += p_old.re - p_new.re;
         p_old *= old.z;
@@ -692,7 +716,7 @@ fn params_to_pole(m: &[f64]) -> Pole {
 fn fit_cost(signal: &[f64], params: &[f64]) -> f64 {
     let mut model = vec![0.0; signal.len()];
     for m in params.chunks(4) {
-        add_pole(&mut model, &params_to_pole(m), 1.0);
+        add_pole(&mut model, &params_to_pole(m), 1.0, 0.0);
     }
     signal.iter().zip(&model).map(|(y, f)| (y - f).powi(2)).sum()
 }
