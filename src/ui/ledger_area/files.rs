@@ -1,0 +1,256 @@
+//! File work of the Ledger area that must not hold up the window: file
+//! dialogs (they block their thread until the maker answers) and CSV export
+//! (written atomically: a temporary file in the same folder, synced, then
+//! renamed over the target). Each job runs on its own thread and sends one
+//! [`FileDone`] back; the area picks the results up at the start of a frame.
+//!
+//! The sample builds are compiled into the program (`include_str!`) rather
+//! than read from `sample_sessions/` at run time: they then open from any
+//! working folder and from an installed binary, and because the opened copy
+//! has no file, neither Save nor the autosave after a recorded pass can write
+//! over the shipped samples (the maker keeps a copy with Save as…).
+
+use std::io::Write as _;
+use std::path::{Path, PathBuf};
+use std::sync::mpsc::{self, Receiver, Sender};
+
+use eframe::egui;
+
+use crate::ledger::{csv, store, Build};
+
+use super::super::commands::{AppCommand, AreaContext};
+use super::Note;
+
+/// A demo build shipped with tapwright.
+#[derive(Clone, Copy, Debug)]
+pub struct SampleBuild {
+    /// The name in the menu.
+    pub title: &'static str,
+    /// Where it lives in the repository (named in load errors).
+    pub file: &'static str,
+    /// The RON text.
+    pub text: &'static str,
+}
+
+/// The sample builds, in menu order (invented makers and instruments, see
+/// `sample_sessions/`).
+pub const SAMPLE_BUILDS: [SampleBuild; 2] = [
+    SampleBuild {
+        title: "Violin \"Wren\" (tops, backs, body)",
+        file: "sample_sessions/violin_wren.ron",
+        text: include_str!("../../../sample_sessions/violin_wren.ron"),
+    },
+    SampleBuild {
+        title: "Guitar \"Larkspur\" (top series, body)",
+        file: "sample_sessions/guitar_larkspur.ron",
+        text: include_str!("../../../sample_sessions/guitar_larkspur.ron"),
+    },
+];
+
+/// Reads sample build `index`.
+pub fn load_sample(index: usize) -> Result<Build, String> {
+    let sample = SAMPLE_BUILDS
+        .get(index)
+        .ok_or_else(|| format!("There is no sample build number {}.", index + 1))?;
+    store::from_ron_text(sample.text, Path::new(sample.file)).map_err(|e| e.to_string())
+}
+
+/// What a file job reports.
+#[derive(Debug)]
+enum FileDone {
+    /// A build file was chosen to open (None: cancelled).
+    OpenChosen(Option<PathBuf>),
+    /// A path was chosen to save the build to (None: cancelled).
+    SaveChosen(Option<PathBuf>),
+    /// The CSV export finished (None: the dialog was cancelled).
+    CsvWritten(Option<Result<PathBuf, String>>),
+}
+
+/// The file jobs of the Ledger area.
+#[derive(Debug)]
+pub struct FileJobs {
+    sender: Sender<FileDone>,
+    receiver: Receiver<FileDone>,
+    running: usize,
+    repaint: Option<egui::Context>,
+}
+
+impl Default for FileJobs {
+    fn default() -> Self {
+        let (sender, receiver) = mpsc::channel();
+        Self {
+            sender,
+            receiver,
+            running: 0,
+            repaint: None,
+        }
+    }
+}
+
+impl FileJobs {
+    /// True while a dialog is open or a file is being written.
+    pub fn is_busy(&self) -> bool {
+        self.running > 0
+    }
+
+    /// The window to wake when a job finishes.
+    pub fn set_context(&mut self, ctx: &egui::Context) {
+        if self.repaint.is_none() {
+            self.repaint = Some(ctx.clone());
+        }
+    }
+
+    fn spawn(&mut self, work: impl FnOnce() -> FileDone + Send + 'static) {
+        let sender = self.sender.clone();
+        let ctx = self.repaint.clone();
+        let spawned = std::thread::Builder::new()
+            .name("ledger-file".to_owned())
+            .spawn(move || {
+                let done = work();
+                // The area may be gone (window closed): nothing to tell then.
+                let _ = sender.send(done);
+                if let Some(ctx) = ctx {
+                    ctx.request_repaint();
+                }
+            });
+        if spawned.is_ok() {
+            self.running += 1;
+        }
+    }
+
+    /// Shows the dialog to choose a build file to open.
+    pub fn choose_build_to_open(&mut self) {
+        self.spawn(|| {
+            let path = rfd::FileDialog::new()
+                .set_title("Open a build")
+                .add_filter("tapwright build", &["ron"])
+                .pick_file();
+            FileDone::OpenChosen(path)
+        });
+    }
+
+    /// Shows the dialog to choose where to save the build.
+    pub fn choose_save_path(&mut self, build_name: &str) {
+        let suggested = format!("{}.ron", file_stem_for(build_name));
+        self.spawn(move || {
+            let path = rfd::FileDialog::new()
+                .set_title("Save the build as")
+                .add_filter("tapwright build", &["ron"])
+                .set_file_name(suggested)
+                .save_file();
+            FileDone::SaveChosen(path)
+        });
+    }
+
+    /// Shows the dialog to choose where the CSV goes, then writes it.
+    pub fn choose_csv_path(&mut self, build: &Build) {
+        let text = csv::pass_table(build);
+        let suggested = format!("{} passes.csv", file_stem_for(&build.name));
+        self.spawn(move || {
+            let path = rfd::FileDialog::new()
+                .set_title("Export the pass table as CSV")
+                .add_filter("CSV table", &["csv"])
+                .set_file_name(suggested)
+                .save_file();
+            FileDone::CsvWritten(path.map(|path| write_csv(path, &text)))
+        });
+    }
+
+    /// Writes the pass table of `build` as CSV to `path`.
+    pub fn export_csv(&mut self, build: &Build, path: PathBuf) {
+        let text = csv::pass_table(build);
+        self.spawn(move || FileDone::CsvWritten(Some(write_csv(path, &text))));
+    }
+
+    /// Turns finished jobs into commands and notes.
+    pub fn take_results(&mut self, note: &mut Option<Note>, ctx: &mut AreaContext) {
+        while let Ok(done) = self.receiver.try_recv() {
+            self.running = self.running.saturating_sub(1);
+            match done {
+                FileDone::OpenChosen(Some(path)) => ctx.push(AppCommand::OpenBuild(path)),
+                FileDone::SaveChosen(Some(path)) => ctx.push(AppCommand::SaveBuildAs(path)),
+                FileDone::OpenChosen(None)
+                | FileDone::SaveChosen(None)
+                | FileDone::CsvWritten(None) => {
+                    *note = Some(Note::info(
+                        "No file was chosen. If no dialog appeared, type the path in the \
+                         File path field instead.",
+                    ));
+                }
+                FileDone::CsvWritten(Some(Ok(path))) => {
+                    *note = Some(Note::info(format!(
+                        "Wrote the pass table to {}.",
+                        path.display()
+                    )));
+                }
+                FileDone::CsvWritten(Some(Err(problem))) => *note = Some(Note::error(problem)),
+            }
+        }
+    }
+}
+
+/// A build name made safe as a file name ("Violin \"Wren\"" → "Violin Wren").
+fn file_stem_for(name: &str) -> String {
+    let cleaned: String = name
+        .chars()
+        .filter(|c| c.is_alphanumeric() || matches!(c, ' ' | '-' | '_' | '.'))
+        .collect();
+    let cleaned = cleaned.split_whitespace().collect::<Vec<_>>().join(" ");
+    if cleaned.is_empty() {
+        "build".to_owned()
+    } else {
+        cleaned
+    }
+}
+
+/// Writes `text` to `path` atomically; the sentence to show on failure.
+fn write_csv(path: PathBuf, text: &str) -> Result<PathBuf, String> {
+    write_atomic(&path, text.as_bytes())
+        .map(|()| path.clone())
+        .map_err(|problem| format!("Cannot write {}: {problem}.", path.display()))
+}
+
+fn write_atomic(path: &Path, bytes: &[u8]) -> Result<(), std::io::Error> {
+    let folder = match path.parent() {
+        Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
+        _ => PathBuf::from("."),
+    };
+    let mut temp = tempfile::NamedTempFile::new_in(&folder)?;
+    temp.write_all(bytes)?;
+    temp.as_file().sync_all()?;
+    temp.persist(path).map_err(|e| e.error)?;
+    Ok(())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn every_sample_build_loads() {
+        for index in 0..SAMPLE_BUILDS.len() {
+            let build = load_sample(index).unwrap();
+            assert!(!build.parts().is_empty());
+        }
+        assert!(load_sample(SAMPLE_BUILDS.len()).is_err());
+    }
+
+    #[test]
+    fn file_names_lose_quotes_and_slashes() {
+        assert_eq!(file_stem_for("Violin \"Wren\" / 2"), "Violin Wren 2");
+        assert_eq!(file_stem_for("\"\""), "build");
+    }
+
+    #[test]
+    fn csv_is_written_whole_or_not_at_all() {
+        let folder = tempfile::tempdir().unwrap();
+        let path = folder.path().join("t.csv");
+        write_csv(path.clone(), "a,b\n1,2\n").unwrap();
+        assert_eq!(std::fs::read_to_string(&path).unwrap(), "a,b\n1,2\n");
+        let missing = folder.path().join("no such folder").join("t.csv");
+        let problem = write_csv(missing, "x").unwrap_err();
+        assert!(problem.contains("no such folder"), "{problem}");
+        // Only the CSV is left in the folder (no stray temporary file).
+        assert_eq!(std::fs::read_dir(folder.path()).unwrap().count(), 1);
+    }
+}
