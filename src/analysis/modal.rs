@@ -260,7 +260,7 @@ impl TapAnalyzer {
     fn add_candidate(&mut self, candidate: &Candidate, poles: &mut Vec<(Pole, f64)>) {
         let fs = self.sample_rate_hz;
         let omega = 2.0 * PI * candidate.frequency_hz / fs;
-        let Some(pole) = initial_estimate(&self.residual, omega, None) else {
+        let Some(pole) = initial_estimate(&self.residual, omega) else {
             return;
         };
         let moved_hz = (pole.frequency_hz(fs) - candidate.frequency_hz).abs();
@@ -295,7 +295,7 @@ impl TapAnalyzer {
     fn refine_single(&mut self, pole: &mut Pole) {
         let old = *pole;
         // The estimate sees the residual with this mode's model put back.
-        let new = initial_estimate(&self.residual, old.z.arg(), Some(&old));
+        let new = matched_estimate(&self.residual, &old);
         if let Some(new) = new {
             let moved = (new.z.arg() - old.z.arg()).abs();
             if new.z.norm() < 1.0 && moved < 3.0 * (-old.z.norm().ln()).max(1e-4) {
@@ -340,9 +340,10 @@ impl TapAnalyzer {
 
 /// Records shorter than this after the strike give no modes.
 const MIN_DECAY_SAMPLES: usize = 256;
-/// Tails weaker than this fraction of the noise RMS (−50 dB) are neither
-/// added nor subtracted.
-const TAIL_BELOW_NOISE: f64 = 0.003;
+/// Tails weaker than this fraction of the noise RMS (−26 dB) are neither
+/// added nor subtracted: they are invisible under the noise, and a mode's
+/// own re-estimate looks only three time constants (26 dB) into its decay.
+const TAIL_BELOW_NOISE: f64 = 0.05;
 /// Passes of group refinement per round.
 const REFINE_SWEEPS: usize = 2;
 /// Rounds of looking again in the residual.
@@ -493,13 +494,24 @@ fn fit_length(tau_samples: f64, available: usize) -> usize {
 
 /// Three-bin estimate of the strongest pole near `omega` (rad/sample),
 /// repeated with the record cut to about three time constants.
-/// With `own`, the estimate is made on `signal` plus that mode's model (a
-/// mode being re-estimated after its neighbours were subtracted).
-fn initial_estimate(signal: &[f64], omega: f64, own: Option<&Pole>) -> Option<Pole> {
-    let min_len = ((8.0 * 2.0 * PI / omega.max(1e-6)) as usize).max(MIN_DECAY_SAMPLES).min(signal.len());
+/// Re-estimates a mode on `signal` plus its own model, starting from a
+/// record already matched to its decay.
+fn matched_estimate(signal: &[f64], own: &Pole) -> Option<Pole> {
+    let min_len = min_record_len(own.z.arg(), signal.len());
+    let wanted = (RECORD_TIME_CONSTANTS * own.tau_samples()).round() as usize;
+    three_bin_pole(signal, wanted.clamp(min_len, signal.len()), own.z.arg(), Some(own))
+}
+
+/// At least eight periods and `MIN_DECAY_SAMPLES`, at most the data.
+fn min_record_len(omega: f64, available: usize) -> usize {
+    ((8.0 * 2.0 * PI / omega.max(1e-6)) as usize).max(MIN_DECAY_SAMPLES).min(available)
+}
+
+fn initial_estimate(signal: &[f64], omega: f64) -> Option<Pole> {
+    let min_len = min_record_len(omega, signal.len());
     let periods_64 = (64.0 * 2.0 * PI / omega.max(1e-6)) as usize;
     let mut len = periods_64.max(FIRST_RECORD_SAMPLES).clamp(min_len, signal.len());
-    let mut pole = three_bin_pole(signal, len, omega, own)?;
+    let mut pole = three_bin_pole(signal, len, omega, None)?;
     for _ in 0..3 {
         let wanted = (RECORD_TIME_CONSTANTS * pole.tau_samples()).round() as usize;
         let new_len = wanted.clamp(min_len, signal.len());
@@ -507,7 +519,7 @@ fn initial_estimate(signal: &[f64], omega: f64, own: Option<&Pole>) -> Option<Po
             break;
         }
         len = new_len;
-        pole = three_bin_pole(signal, len, pole.z.arg().max(omega * 0.5), own)?;
+        pole = three_bin_pole(signal, len, pole.z.arg().max(omega * 0.5), None)?;
     }
     Some(pole)
 }
