@@ -10,6 +10,8 @@
 
 use std::path::Path;
 
+use crate::ledger::store::{from_ron_text, StoreError};
+use crate::ledger::Build;
 use crate::analysis::synth::{add_modes, contact_pulse, NoiseGenerator, SynthMode};
 use crate::wav_io::{read_mono_bytes, MonoRecording, WavError};
 
@@ -82,4 +84,15 @@ pub fn synthesize_demo_plate() -> MonoRecording {
 /// The bundled demo recording, decoded.
 pub fn demo_recording() -> Result<MonoRecording, WavError> {
     read_mono_bytes(DEMO_WAV_BYTES, Path::new(DEMO_WAV_NAME))
+}
+
+/// The invented sample violin build that ships inside the program (a copy
+/// of `sample_sessions/violin_wren.ron`), opened with the demo recording.
+pub const SAMPLE_BUILD_RON: &str = include_str!("../sample_sessions/violin_wren.ron");
+/// Its file name in `sample_sessions/`.
+pub const SAMPLE_BUILD_NAME: &str = "violin_wren.ron";
+
+/// The bundled sample build, parsed.
+pub fn sample_build() -> Result<Build, StoreError> {
+    from_ron_text(SAMPLE_BUILD_RON, Path::new(SAMPLE_BUILD_NAME))
 }

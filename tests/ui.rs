@@ -340,3 +340,66 @@ fn areas_switch_and_a_pass_goes_to_the_ledger_through_commands() {
     assert!((labelled.frequency_hz - 338.0).abs() < 1.0);
     harness.get_by_label("Build: Invented violin No. 1 (unsaved)");
 }
+
+#[test]
+fn recorded_pass_is_saved_at_once_when_the_build_has_a_file() {
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("invented.ron");
+    let mut harness = demo_harness();
+    demo_finished(&mut harness);
+    let app = harness.state_mut();
+    app.queue(AppCommand::NewBuild { name: "Invented viola".into(), family: Family::Viola });
+    app.queue(AppCommand::EditBuild {
+        description: "adding the back".into(),
+        edit: Box::new(|build| {
+            build.add_part("back", PartKind::BackPlate)?;
+            Ok(String::new())
+        }),
+    });
+    app.queue(AppCommand::SaveBuildAs(path.clone()));
+    harness.run_ok();
+    step_until(&mut harness, "the first save", |app| !app.is_busy() && path.exists());
+    let modes = harness
+        .state()
+        .pass()
+        .unwrap()
+        .modes
+        .iter()
+        .map(|m| tapwright::ledger::MeasuredMode {
+            frequency_hz: m.frequency_hz,
+            q: m.q,
+            level_db: m.level_db,
+            spread_hz: m.spread_hz,
+        })
+        .collect();
+    let count = harness.state().pass().unwrap().modes.len();
+    harness.state_mut().queue(AppCommand::RecordPass {
+        part: "back".into(),
+        input: tapwright::ledger::PassInput::new(104.0, modes),
+        labels: vec![None; count],
+    });
+    harness.run_ok();
+    step_until(&mut harness, "the autosave", |app| !app.is_busy());
+    // Nobody pressed save: the file on disk already holds the pass.
+    let on_disk = tapwright::ledger::store::load(&path).unwrap();
+    let back = on_disk.part("back").unwrap();
+    assert_eq!(back.passes().len(), 1);
+    assert_eq!(back.passes()[0].mass_g, 104.0);
+    harness.get_by_label("Build: Invented viola");
+}
+
+#[test]
+fn the_demo_opens_with_the_sample_build_when_asked() {
+    let mut harness = harness_with(AppOptions {
+        source: StartSource::Demo,
+        demo_pacing: Pacing::AsFastAsPossible,
+        sample_build_with_demo: true,
+        ..AppOptions::default()
+    });
+    harness.run_ok();
+    let build = harness.state().build().expect("the sample build");
+    assert!(build.parts().len() >= 2, "{:?}", build.parts().len());
+    // Without the option (as in the other tests) nothing is opened.
+    let plain = demo_harness();
+    assert!(plain.state().build().is_none());
+}

@@ -40,6 +40,10 @@ pub struct AppOptions {
     pub demo_pacing: Pacing,
     /// A build file to open at start.
     pub build: Option<PathBuf>,
+    /// With the demo recording (chosen, or because no microphone could be
+    /// opened) and no build file, open the bundled sample build too, so a
+    /// newcomer sees a ledger. It has no path: saving asks for one.
+    pub sample_build_with_demo: bool,
     /// When the program started, to report the time to the first frame
     /// (printed on stderr when set).
     pub started_at: Option<Instant>,
@@ -51,6 +55,7 @@ impl Default for AppOptions {
             source: StartSource::Device(None),
             demo_pacing: Pacing::RealTime,
             build: None,
+            sample_build_with_demo: false,
             started_at: None,
         }
     }
@@ -299,9 +304,28 @@ impl TapwrightApp {
         }
         self.jobs.spawn("devices", jobs::list_devices);
         let pick = self.input.pick.clone();
+        if pick == SourcePick::Demo {
+            self.open_sample_build_if_wanted();
+        }
         self.start_source(pick);
         if let Some(path) = self.options.build.clone() {
             self.commands.push(AppCommand::OpenBuild(path));
+        }
+    }
+
+    /// Opens the bundled sample build when the options ask for it and no
+    /// build is open or requested.
+    fn open_sample_build_if_wanted(&mut self) {
+        if !self.options.sample_build_with_demo || self.options.build.is_some() || self.build.is_some() {
+            return;
+        }
+        match crate::demo::sample_build() {
+            Ok(build) => {
+                self.build = Some(build);
+                self.build_path = None;
+                self.build_unsaved = false;
+            }
+            Err(error) => self.set_error(sentence(&error.to_string())),
         }
     }
 
@@ -391,6 +415,7 @@ impl TapwrightApp {
                     && matches!(self.input.pick, SourcePick::Device(_));
                 if may_fall_back {
                     self.fell_back_to_demo = true;
+                    self.open_sample_build_if_wanted();
                     self.set_message(format!(
                         "No microphone could be opened ({}); playing the bundled demo recording instead.",
                         problem.trim_end_matches('.')
@@ -797,12 +822,21 @@ impl TapwrightApp {
             }
         }
         self.build_unsaved = true;
+        let autosave = self.build.clone().zip(self.build_path.clone());
         match problems.first() {
             Some(problem) => self.set_error(problem.clone()),
+            None if autosave.is_some() => self.set_message(format!(
+                "Recorded pass {} of \"{part_name}\"; saving the build.",
+                outcome.pass_number
+            )),
             None => self.set_message(format!(
                 "Recorded pass {} of \"{part_name}\"; save the build to keep it.",
                 outcome.pass_number
             )),
+        }
+        // Autosave after every recorded pass once the build has a file.
+        if let Some((build, path)) = autosave {
+            self.jobs.spawn("save-build", move || jobs::save_build(path, build));
         }
     }
 

@@ -59,6 +59,7 @@ pub fn run_workbench(options: &WorkbenchOptions) -> anyhow::Result<()> {
             StartSource::Device(options.device.clone())
         },
         build: options.build.clone(),
+        sample_build_with_demo: true,
         started_at: timing.then_some(started_at),
         ..AppOptions::default()
     };
