@@ -19,7 +19,9 @@ fn one_tap_record() -> Vec<f32> {
     contact_pulse(&mut x, FS, 240, 0.8, 0.08);
     add_modes(&mut x, FS, 240, &demo_plate_modes());
     let mut noise = NoiseGenerator::new(1);
-    x.iter().map(|&v| (v + 3e-4 * noise.gaussian()) as f32).collect()
+    x.iter()
+        .map(|&v| (v + 3e-4 * noise.gaussian()) as f32)
+        .collect()
 }
 
 fn five_tap_file() -> Vec<f32> {
@@ -30,7 +32,9 @@ fn five_tap_file() -> Vec<f32> {
         add_modes(&mut x, FS, start, &demo_plate_modes());
     }
     let mut noise = NoiseGenerator::new(2);
-    x.iter().map(|&v| (v + 3e-4 * noise.gaussian()) as f32).collect()
+    x.iter()
+        .map(|&v| (v + 3e-4 * noise.gaussian()) as f32)
+        .collect()
 }
 
 fn median_seconds(mut f: impl FnMut(), runs: usize) -> f64 {
@@ -48,7 +52,10 @@ fn median_seconds(mut f: impl FnMut(), runs: usize) -> f64 {
 fn print_ratio() {
     let record = one_tap_record();
     let mut analyzer = TapAnalyzer::new(AnalysisSettings::default(), FS);
-    let tap_s = median_seconds(|| drop(black_box(analyzer.analyze_record(&record, 240))), 101);
+    let tap_s = median_seconds(
+        || drop(black_box(analyzer.analyze_record(&record, 240))),
+        101,
+    );
     for len in [48_000usize, 65_536] {
         let fft = RealFftPlanner::<f32>::new().plan_fft_forward(len);
         let mut input = vec![0.1f32; len];

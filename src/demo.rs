@@ -10,9 +10,9 @@
 
 use std::path::Path;
 
+use crate::analysis::synth::{add_modes, contact_pulse, NoiseGenerator, SynthMode};
 use crate::ledger::store::{from_ron_text, StoreError};
 use crate::ledger::Build;
-use crate::analysis::synth::{add_modes, contact_pulse, NoiseGenerator, SynthMode};
 use crate::wav_io::{read_mono_bytes, MonoRecording, WavError};
 
 /// The demo recording as it ships inside the program.

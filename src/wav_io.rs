@@ -30,7 +30,10 @@ impl MonoRecording {
 #[derive(Debug, Error)]
 pub enum WavError {
     #[error("cannot open {path}: {source}")]
-    Open { path: PathBuf, source: std::io::Error },
+    Open {
+        path: PathBuf,
+        source: std::io::Error,
+    },
     #[error("{path} is empty")]
     Empty { path: PathBuf },
     #[error("{path} is not a WAV file ({detail})")]
@@ -40,7 +43,11 @@ pub enum WavError {
     #[error("{path} has a sample rate of {rate_hz} Hz; tapwright reads 8 000 to 192 000 Hz")]
     SampleRate { path: PathBuf, rate_hz: u32 },
     #[error("{path} is cut short or damaged after {frames_read} frames ({detail})")]
-    Truncated { path: PathBuf, frames_read: usize, detail: String },
+    Truncated {
+        path: PathBuf,
+        frames_read: usize,
+        detail: String,
+    },
     #[error("{path} holds no samples")]
     NoSamples { path: PathBuf },
     #[error("cannot write {path}: {detail}")]
@@ -49,10 +56,15 @@ pub enum WavError {
 
 /// Reads a WAV file and mixes it to mono.
 pub fn read_mono(path: &Path) -> Result<MonoRecording, WavError> {
-    let file = std::fs::File::open(path).map_err(|source| WavError::Open { path: path.to_owned(), source })?;
+    let file = std::fs::File::open(path).map_err(|source| WavError::Open {
+        path: path.to_owned(),
+        source,
+    })?;
     let len = file.metadata().map(|m| m.len()).unwrap_or(0);
     if len == 0 {
-        return Err(WavError::Empty { path: path.to_owned() });
+        return Err(WavError::Empty {
+            path: path.to_owned(),
+        });
     }
     read_mono_from(BufReader::new(file), path)
 }
@@ -60,7 +72,9 @@ pub fn read_mono(path: &Path) -> Result<MonoRecording, WavError> {
 /// Reads WAV bytes (e.g. a recording bundled in the program).
 pub fn read_mono_bytes(bytes: &[u8], name: &Path) -> Result<MonoRecording, WavError> {
     if bytes.is_empty() {
-        return Err(WavError::Empty { path: name.to_owned() });
+        return Err(WavError::Empty {
+            path: name.to_owned(),
+        });
     }
     read_mono_from(std::io::Cursor::new(bytes), name)
 }
@@ -69,22 +83,34 @@ fn read_mono_from<R: Read + Seek>(reader: R, path: &Path) -> Result<MonoRecordin
     let reader = hound::WavReader::new(reader).map_err(|e| classify_open_error(e, path))?;
     let spec = reader.spec();
     if !(MIN_SAMPLE_RATE_HZ..=MAX_SAMPLE_RATE_HZ).contains(&spec.sample_rate) {
-        return Err(WavError::SampleRate { path: path.to_owned(), rate_hz: spec.sample_rate });
+        return Err(WavError::SampleRate {
+            path: path.to_owned(),
+            rate_hz: spec.sample_rate,
+        });
     }
     let channels = usize::from(spec.channels.max(1));
     let interleaved = read_samples(reader, spec, path)?;
     let frames = interleaved.len() / channels;
     if frames == 0 {
-        return Err(WavError::NoSamples { path: path.to_owned() });
+        return Err(WavError::NoSamples {
+            path: path.to_owned(),
+        });
     }
     let samples = interleaved
         .chunks_exact(channels)
         .map(|frame| frame.iter().sum::<f32>() / channels as f32)
         .collect();
-    Ok(MonoRecording { sample_rate_hz: spec.sample_rate, samples })
+    Ok(MonoRecording {
+        sample_rate_hz: spec.sample_rate,
+        samples,
+    })
 }
 
-fn read_samples<R: Read>(reader: hound::WavReader<R>, spec: hound::WavSpec, path: &Path) -> Result<Vec<f32>, WavError> {
+fn read_samples<R: Read>(
+    reader: hound::WavReader<R>,
+    spec: hound::WavSpec,
+    path: &Path,
+) -> Result<Vec<f32>, WavError> {
     let channels = usize::from(spec.channels.max(1));
     let truncated = |count: usize, e: hound::Error| WavError::Truncated {
         path: path.to_owned(),
@@ -93,14 +119,26 @@ fn read_samples<R: Read>(reader: hound::WavReader<R>, spec: hound::WavSpec, path
     };
     let mut reader = reader;
     match (spec.sample_format, spec.bits_per_sample) {
-        (hound::SampleFormat::Float, 32) => collect(reader.samples::<f32>().map(|s| s), truncated),
+        (hound::SampleFormat::Float, 32) => collect(reader.samples::<f32>(), truncated),
         (hound::SampleFormat::Int, bits @ (8 | 16 | 24 | 32)) => {
             let scale = 1.0 / (1u64 << (bits - 1)) as f64;
-            collect(reader.samples::<i32>().map(|s| s.map(|v| (f64::from(v) * scale) as f32)), truncated)
+            collect(
+                reader
+                    .samples::<i32>()
+                    .map(|s| s.map(|v| (f64::from(v) * scale) as f32)),
+                truncated,
+            )
         }
         (format, bits) => Err(WavError::Unsupported {
             path: path.to_owned(),
-            detail: format!("{bits}-bit {}", if format == hound::SampleFormat::Float { "float" } else { "integer" }),
+            detail: format!(
+                "{bits}-bit {}",
+                if format == hound::SampleFormat::Float {
+                    "float"
+                } else {
+                    "integer"
+                }
+            ),
         }),
     }
 }
@@ -123,14 +161,26 @@ fn classify_open_error(error: hound::Error, path: &Path) -> WavError {
     let path = path.to_owned();
     let error = match error {
         hound::Error::IoError(e) if e.kind() == std::io::ErrorKind::UnexpectedEof => {
-            return WavError::NotWav { path, detail: "it ends inside the header".into() }
+            return WavError::NotWav {
+                path,
+                detail: "it ends inside the header".into(),
+            }
         }
         other => other,
     };
     match error {
-        hound::Error::FormatError(detail) => WavError::NotWav { path, detail: detail.to_string() },
-        hound::Error::Unsupported => WavError::Unsupported { path, detail: "an unsupported format".into() },
-        other => WavError::NotWav { path, detail: plain(&other.to_string()) },
+        hound::Error::FormatError(detail) => WavError::NotWav {
+            path,
+            detail: detail.to_string(),
+        },
+        hound::Error::Unsupported => WavError::Unsupported {
+            path,
+            detail: "an unsupported format".into(),
+        },
+        other => WavError::NotWav {
+            path,
+            detail: plain(&other.to_string()),
+        },
     }
 }
 
@@ -146,8 +196,16 @@ fn plain(message: &str) -> String {
 
 /// Writes mono 32-bit float samples (or 16-bit integer when `pcm16` is set)
 /// atomically: a temporary file in the same folder, synced, then renamed.
-pub fn write_mono(path: &Path, sample_rate_hz: u32, samples: &[f32], pcm16: bool) -> Result<(), WavError> {
-    let fail = |detail: String| WavError::Write { path: path.to_owned(), detail };
+pub fn write_mono(
+    path: &Path,
+    sample_rate_hz: u32,
+    samples: &[f32],
+    pcm16: bool,
+) -> Result<(), WavError> {
+    let fail = |detail: String| WavError::Write {
+        path: path.to_owned(),
+        detail,
+    };
     let folder = match path.parent() {
         Some(p) if !p.as_os_str().is_empty() => p.to_owned(),
         _ => PathBuf::from("."),
@@ -157,11 +215,19 @@ pub fn write_mono(path: &Path, sample_rate_hz: u32, samples: &[f32], pcm16: bool
         channels: 1,
         sample_rate: sample_rate_hz,
         bits_per_sample: if pcm16 { 16 } else { 32 },
-        sample_format: if pcm16 { hound::SampleFormat::Int } else { hound::SampleFormat::Float },
+        sample_format: if pcm16 {
+            hound::SampleFormat::Int
+        } else {
+            hound::SampleFormat::Float
+        },
     };
     {
-        let file = temp.as_file().try_clone().map_err(|e| fail(e.to_string()))?;
-        let mut writer = hound::WavWriter::new(std::io::BufWriter::new(file), spec).map_err(|e| fail(e.to_string()))?;
+        let file = temp
+            .as_file()
+            .try_clone()
+            .map_err(|e| fail(e.to_string()))?;
+        let mut writer = hound::WavWriter::new(std::io::BufWriter::new(file), spec)
+            .map_err(|e| fail(e.to_string()))?;
         for &s in samples {
             let result = if pcm16 {
                 writer.write_sample((f64::from(s).clamp(-1.0, 1.0) * 32767.0).round() as i16)

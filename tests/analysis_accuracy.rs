@@ -5,22 +5,31 @@
 use std::f64::consts::PI;
 
 use tapwright::analysis::pitch::{cents_between, nearest_note};
-use tapwright::analysis::synth::{add_modes, damped_modes, to_f32_clipped, NoiseGenerator, SynthMode};
+use tapwright::analysis::synth::{
+    add_modes, damped_modes, to_f32_clipped, NoiseGenerator, SynthMode,
+};
 use tapwright::analysis::{
-    analyze_recording, AnalysisSettings, Mode, RejectReason, TapAnalyzer, TriggerSettings, DEFAULT_A4_HZ,
+    analyze_recording, AnalysisSettings, Mode, RejectReason, TapAnalyzer, TriggerSettings,
+    DEFAULT_A4_HZ,
 };
 
 const FS: f64 = 48_000.0;
 
 fn analyze_decay(samples: &[f64]) -> Vec<Mode> {
     let record: Vec<f32> = samples.iter().map(|&x| x as f32).collect();
-    TapAnalyzer::new(AnalysisSettings::default(), FS).analyze_record(&record, 0).modes
+    TapAnalyzer::new(AnalysisSettings::default(), FS)
+        .analyze_record(&record, 0)
+        .modes
 }
 
-fn nearest<'a>(modes: &'a [Mode], frequency_hz: f64) -> &'a Mode {
+fn nearest(modes: &[Mode], frequency_hz: f64) -> &Mode {
     modes
         .iter()
-        .min_by(|a, b| (a.frequency_hz - frequency_hz).abs().total_cmp(&(b.frequency_hz - frequency_hz).abs()))
+        .min_by(|a, b| {
+            (a.frequency_hz - frequency_hz)
+                .abs()
+                .total_cmp(&(b.frequency_hz - frequency_hz).abs())
+        })
         .unwrap_or_else(|| panic!("no mode near {frequency_hz} Hz"))
 }
 
@@ -28,16 +37,35 @@ fn nearest<'a>(modes: &'a [Mode], frequency_hz: f64) -> &'a Mode {
 /// amplitude over noise RMS), 1 s record: |Δf| ≤ 0.05 Hz and Q within 5 %.
 #[test]
 fn isolated_mode_at_40_db() {
-    let cases = [(62.0, 20.0), (95.5, 25.0), (345.2, 60.0), (1210.7, 120.0), (2530.0, 300.0), (3800.0, 800.0)];
+    let cases = [
+        (62.0, 20.0),
+        (95.5, 25.0),
+        (345.2, 60.0),
+        (1210.7, 120.0),
+        (2530.0, 300.0),
+        (3800.0, 800.0),
+    ];
     for (seed, &(frequency_hz, q)) in cases.iter().enumerate() {
         let amplitude = 0.2;
         let noise_rms = amplitude / 100.0; // 40 dB
         for trial in 0..5 {
-            let truth = SynthMode { phase_rad: trial as f64, ..SynthMode::new(frequency_hz, q, amplitude) };
-            let x = damped_modes(FS, 48_000, &[truth], noise_rms, &mut NoiseGenerator::new(100 * seed as u64 + trial));
+            let truth = SynthMode {
+                phase_rad: trial as f64,
+                ..SynthMode::new(frequency_hz, q, amplitude)
+            };
+            let x = damped_modes(
+                FS,
+                48_000,
+                &[truth],
+                noise_rms,
+                &mut NoiseGenerator::new(100 * seed as u64 + trial),
+            );
             let modes = analyze_decay(&x);
             let m = nearest(&modes, frequency_hz);
-            assert!((m.frequency_hz - frequency_hz).abs() <= 0.05, "f {frequency_hz}: got {m:?}");
+            assert!(
+                (m.frequency_hz - frequency_hz).abs() <= 0.05,
+                "f {frequency_hz}: got {m:?}"
+            );
             assert!((m.q / q - 1.0).abs() <= 0.05, "Q {q}: got {m:?}");
         }
     }
@@ -57,14 +85,23 @@ fn overlapping_body_modes() {
         let mut random = NoiseGenerator::new(900 + trial);
         let modes: Vec<SynthMode> = truth
             .iter()
-            .map(|m| SynthMode { phase_rad: 2.0 * PI * random.uniform(), ..*m })
+            .map(|m| SynthMode {
+                phase_rad: 2.0 * PI * random.uniform(),
+                ..*m
+            })
             .collect();
         let x = damped_modes(FS, 48_000, &modes, 0.002, &mut random);
         let found = analyze_decay(&x);
         for t in &truth {
             let m = nearest(&found, t.frequency_hz);
-            assert!((m.frequency_hz - t.frequency_hz).abs() <= 0.1, "trial {trial}: {t:?} got {m:?}");
-            assert!((m.q / t.q - 1.0).abs() <= 0.10, "trial {trial}: {t:?} got {m:?}");
+            assert!(
+                (m.frequency_hz - t.frequency_hz).abs() <= 0.1,
+                "trial {trial}: {t:?} got {m:?}"
+            );
+            assert!(
+                (m.q / t.q - 1.0).abs() <= 0.10,
+                "trial {trial}: {t:?} got {m:?}"
+            );
         }
     }
 }
@@ -75,7 +112,12 @@ fn overlapping_body_modes() {
 /// ch. 3 (general Gaussian case, eq. 3.33 form). Returns the bound on the
 /// standard deviation of f in Hz.
 fn crb_frequency_std_hz(mode: &SynthMode, noise_rms: f64, len: usize) -> f64 {
-    let (a, alpha, omega, phi) = (mode.amplitude, mode.decay_per_s(), 2.0 * PI * mode.frequency_hz, mode.phase_rad);
+    let (a, alpha, omega, phi) = (
+        mode.amplitude,
+        mode.decay_per_s(),
+        2.0 * PI * mode.frequency_hz,
+        mode.phase_rad,
+    );
     let mut fim = [[0.0f64; 4]; 4];
     for n in 0..len {
         let t = n as f64 / FS;
@@ -99,7 +141,9 @@ fn invert4(m: [[f64; 4]; 4]) -> [[f64; 4]; 4] {
         row[i] = 1.0;
     }
     for col in 0..4 {
-        let pivot = (col..4).max_by(|&x, &y| a[x][col].abs().total_cmp(&a[y][col].abs())).unwrap();
+        let pivot = (col..4)
+            .max_by(|&x, &y| a[x][col].abs().total_cmp(&a[y][col].abs()))
+            .unwrap();
         a.swap(col, pivot);
         inv.swap(col, pivot);
         let p = a[col][col];
@@ -124,23 +168,41 @@ fn invert4(m: [[f64; 4]; 4]) -> [[f64; 4]; 4] {
 /// within 2× the Cramér–Rao bound (Kay 1993, ch. 3; the design's target).
 #[test]
 fn frequency_error_near_cramer_rao_bound() {
-    let truth = SynthMode { phase_rad: 0.7, ..SynthMode::new(287.3, 40.0, 0.1) };
+    let truth = SynthMode {
+        phase_rad: 0.7,
+        ..SynthMode::new(287.3, 40.0, 0.1)
+    };
     let noise_rms = 0.01; // 20 dB peak SNR: errors well above rounding
     let len = 48_000;
     let bound_hz = crb_frequency_std_hz(&truth, noise_rms, len);
     let trials = 200;
     let mut sum_sq = 0.0;
     for trial in 0..trials {
-        let x = damped_modes(FS, len, &[truth], noise_rms, &mut NoiseGenerator::new(5000 + trial));
+        let x = damped_modes(
+            FS,
+            len,
+            &[truth],
+            noise_rms,
+            &mut NoiseGenerator::new(5000 + trial),
+        );
         let modes = analyze_decay(&x);
         let m = nearest(&modes, truth.frequency_hz);
         sum_sq += (m.frequency_hz - truth.frequency_hz).powi(2);
     }
     let rms_hz = (sum_sq / trials as f64).sqrt();
-    eprintln!("RMS error {rms_hz:.5} Hz, Cramér–Rao bound {bound_hz:.5} Hz, ratio {:.2}", rms_hz / bound_hz);
-    assert!(rms_hz <= 2.0 * bound_hz, "RMS {rms_hz} Hz vs bound {bound_hz} Hz");
+    eprintln!(
+        "RMS error {rms_hz:.5} Hz, Cramér–Rao bound {bound_hz:.5} Hz, ratio {:.2}",
+        rms_hz / bound_hz
+    );
+    assert!(
+        rms_hz <= 2.0 * bound_hz,
+        "RMS {rms_hz} Hz vs bound {bound_hz} Hz"
+    );
     // And the estimator is not suspiciously better than the bound allows.
-    assert!(rms_hz >= 0.7 * bound_hz, "RMS {rms_hz} Hz below the bound {bound_hz} Hz");
+    assert!(
+        rms_hz >= 0.7 * bound_hz,
+        "RMS {rms_hz} Hz below the bound {bound_hz} Hz"
+    );
 }
 
 /// Five strikes: one clipped, one double; every one found, those two
@@ -154,7 +216,13 @@ fn tap_counting_with_clipped_and_double() {
             SynthMode::new(486.0, 50.0, amplitude * 0.3),
         ]
     };
-    let strikes = [(0.5, 0.3, false), (2.0, 2.0, false), (3.5, 0.25, false), (5.0, 0.3, true), (6.5, 0.28, false)];
+    let strikes = [
+        (0.5, 0.3, false),
+        (2.0, 2.0, false),
+        (3.5, 0.25, false),
+        (5.0, 0.3, true),
+        (6.5, 0.28, false),
+    ];
     let mut x = vec![0.0; (8.0 * FS) as usize];
     for &(at_s, amplitude, double) in &strikes {
         add_modes(&mut x, FS, (at_s * FS) as usize, &plate(amplitude));
@@ -167,15 +235,38 @@ fn tap_counting_with_clipped_and_double() {
         *v += 2e-4 * noise.gaussian();
     }
     let samples = to_f32_clipped(&x);
-    let report = analyze_recording(&samples, FS, &TriggerSettings::default(), &AnalysisSettings::default());
+    let report = analyze_recording(
+        &samples,
+        FS,
+        &TriggerSettings::default(),
+        &AnalysisSettings::default(),
+    );
     assert_eq!(report.taps.len(), 5);
     for (tap, &(at_s, _, _)) in report.taps.iter().zip(&strikes) {
-        assert!((tap.onset_s - at_s).abs() < 0.005, "{} vs {at_s}", tap.onset_s);
+        assert!(
+            (tap.onset_s - at_s).abs() < 0.005,
+            "{} vs {at_s}",
+            tap.onset_s
+        );
     }
     let reasons: Vec<_> = report.taps.iter().map(|t| t.rejected).collect();
-    assert_eq!(reasons, vec![None, Some(RejectReason::Clipped), None, Some(RejectReason::DoubleStrike), None]);
+    assert_eq!(
+        reasons,
+        vec![
+            None,
+            Some(RejectReason::Clipped),
+            None,
+            Some(RejectReason::DoubleStrike),
+            None
+        ]
+    );
     assert_eq!(report.taps_used(), 3);
-    let mode5 = report.pass.modes.iter().find(|m| (m.frequency_hz - 338.0).abs() < 1.0).unwrap();
+    let mode5 = report
+        .pass
+        .modes
+        .iter()
+        .find(|m| (m.frequency_hz - 338.0).abs() < 1.0)
+        .unwrap();
     assert_eq!(mode5.taps_seen, 3);
     assert!((mode5.frequency_hz - 338.0).abs() < 0.05);
 }

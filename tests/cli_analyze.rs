@@ -9,7 +9,10 @@ use tapwright::analysis::synth::{add_modes, to_f32_clipped, SynthMode};
 use tapwright::wav_io::write_mono;
 
 fn tapwright(args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_tapwright")).args(args).output().unwrap()
+    Command::new(env!("CARGO_BIN_EXE_tapwright"))
+        .args(args)
+        .output()
+        .unwrap()
 }
 
 fn demo_path() -> PathBuf {
@@ -19,9 +22,20 @@ fn demo_path() -> PathBuf {
 fn assert_bad_input(output: &Output, file_name: &str) {
     let stderr = String::from_utf8_lossy(&output.stderr);
     assert_eq!(output.status.code(), Some(2), "stderr: {stderr}");
-    assert!(output.stdout.is_empty(), "stdout: {}", String::from_utf8_lossy(&output.stdout));
-    assert_eq!(stderr.trim_end().lines().count(), 1, "not one line: {stderr}");
-    assert!(stderr.contains(file_name), "{file_name} not named in: {stderr}");
+    assert!(
+        output.stdout.is_empty(),
+        "stdout: {}",
+        String::from_utf8_lossy(&output.stdout)
+    );
+    assert_eq!(
+        stderr.trim_end().lines().count(),
+        1,
+        "not one line: {stderr}"
+    );
+    assert!(
+        stderr.contains(file_name),
+        "{file_name} not named in: {stderr}"
+    );
     assert!(!stderr.contains("panicked"), "{stderr}");
 }
 
@@ -33,13 +47,24 @@ fn table_for_the_demo() {
     assert!(text.contains("Taps: 6 found, 5 used, 1 rejected"), "{text}");
     assert!(text.contains("double strike"), "{text}");
     // The invented plate's mode 5 is at 338 Hz: E4 +43 cents (E4 = 329.63 Hz).
-    let line = text.lines().find(|l| l.trim_start().starts_with("338.0")).unwrap_or_else(|| panic!("{text}"));
+    let line = text
+        .lines()
+        .find(|l| l.trim_start().starts_with("338.0"))
+        .unwrap_or_else(|| panic!("{text}"));
     assert!(line.contains("E4") && line.contains("+43"), "{line}");
 }
 
 #[test]
 fn json_schema() {
-    let out = tapwright(&["analyze", "--json", "--max-modes", "3", "--a4", "442", demo_path().to_str().unwrap()]);
+    let out = tapwright(&[
+        "analyze",
+        "--json",
+        "--max-modes",
+        "3",
+        "--a4",
+        "442",
+        demo_path().to_str().unwrap(),
+    ]);
     assert!(out.status.success());
     let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
     assert_eq!(v["sample_rate_hz"], 48000.0);
@@ -49,12 +74,31 @@ fn json_schema() {
     assert_eq!(v["a4_hz"], 442.0);
     let modes = v["modes"].as_array().unwrap();
     assert_eq!(modes.len(), 3); // the three loudest: 168, 338 and 486 Hz
-    let frequencies: Vec<f64> = modes.iter().map(|m| m["frequency_hz"].as_f64().unwrap()).collect();
-    assert!(frequencies.windows(2).all(|w| w[0] < w[1]), "sorted: {frequencies:?}");
-    for key in ["frequency_hz", "q", "level_db", "spread_hz", "note", "cents", "taps_seen", "prominence_db", "q_spread"] {
+    let frequencies: Vec<f64> = modes
+        .iter()
+        .map(|m| m["frequency_hz"].as_f64().unwrap())
+        .collect();
+    assert!(
+        frequencies.windows(2).all(|w| w[0] < w[1]),
+        "sorted: {frequencies:?}"
+    );
+    for key in [
+        "frequency_hz",
+        "q",
+        "level_db",
+        "spread_hz",
+        "note",
+        "cents",
+        "taps_seen",
+        "prominence_db",
+        "q_spread",
+    ] {
         assert!(modes[0].get(key).is_some(), "missing {key}");
     }
-    let m5 = modes.iter().find(|m| (m["frequency_hz"].as_f64().unwrap() - 338.0).abs() < 0.2).unwrap();
+    let m5 = modes
+        .iter()
+        .find(|m| (m["frequency_hz"].as_f64().unwrap() - 338.0).abs() < 0.2)
+        .unwrap();
     // With A4 = 442 Hz, E4 is 442·2^(-5/12) = 331.13 Hz; 338 Hz is +35.6 cents.
     assert_eq!(m5["note"], "E4");
     assert!((m5["cents"].as_f64().unwrap() - 35.6).abs() < 0.5);
@@ -62,9 +106,20 @@ fn json_schema() {
 
 #[test]
 fn band_limits_the_search() {
-    let out = tapwright(&["analyze", "--json", "--band", "300:600", demo_path().to_str().unwrap()]);
+    let out = tapwright(&[
+        "analyze",
+        "--json",
+        "--band",
+        "300:600",
+        demo_path().to_str().unwrap(),
+    ]);
     let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
-    let frequencies: Vec<f64> = v["modes"].as_array().unwrap().iter().map(|m| m["frequency_hz"].as_f64().unwrap()).collect();
+    let frequencies: Vec<f64> = v["modes"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|m| m["frequency_hz"].as_f64().unwrap())
+        .collect();
     assert_eq!(frequencies.len(), 2, "{frequencies:?}"); // 338 and 486 Hz
 }
 
@@ -90,7 +145,10 @@ fn bad_files() {
         std::fs::write(&path, bytes).unwrap();
         assert_bad_input(&tapwright(&["analyze", path.to_str().unwrap()]), name);
     }
-    assert_bad_input(&tapwright(&["analyze", "/no/such/folder/tap.wav"]), "tap.wav");
+    assert_bad_input(
+        &tapwright(&["analyze", "/no/such/folder/tap.wav"]),
+        "tap.wav",
+    );
 }
 
 #[test]
@@ -98,7 +156,10 @@ fn silence_and_no_usable_tap() {
     let dir = tempfile::tempdir().unwrap();
     let silence = dir.path().join("silence.wav");
     write_mono(&silence, 48_000, &vec![0.0; 96_000], true).unwrap();
-    assert_bad_input(&tapwright(&["analyze", silence.to_str().unwrap()]), "silence.wav");
+    assert_bad_input(
+        &tapwright(&["analyze", silence.to_str().unwrap()]),
+        "silence.wav",
+    );
     // Two taps, both clipped.
     let mut x = vec![0.0; 3 * 48_000];
     for start in [24_000, 96_000] {

@@ -5,7 +5,9 @@
 use std::path::Path;
 
 use tapwright::analysis::{analyze_recording, AnalysisSettings, RejectReason, TriggerSettings};
-use tapwright::demo::{demo_plate_modes, demo_recording, synthesize_demo_plate, DEMO_WAV_BYTES, DEMO_WAV_NAME};
+use tapwright::demo::{
+    demo_plate_modes, demo_recording, synthesize_demo_plate, DEMO_WAV_BYTES, DEMO_WAV_NAME,
+};
 use tapwright::wav_io::write_mono;
 
 #[test]
@@ -16,7 +18,9 @@ fn bundled_recording_matches_generator() {
     write_mono(&fresh, generated.sample_rate_hz, &generated.samples, true).unwrap();
     let fresh_bytes = std::fs::read(&fresh).unwrap();
     if std::env::var("TAPWRIGHT_REGENERATE_ASSETS").as_deref() == Ok("1") {
-        let target = Path::new(env!("CARGO_MANIFEST_DIR")).join("assets").join(DEMO_WAV_NAME);
+        let target = Path::new(env!("CARGO_MANIFEST_DIR"))
+            .join("assets")
+            .join(DEMO_WAV_NAME);
         std::fs::write(&target, &fresh_bytes).unwrap();
         eprintln!("rewrote {}", target.display());
         return;
@@ -45,9 +49,21 @@ fn demo_shows_the_invented_plate() {
             .modes
             .iter()
             .find(|m| (m.frequency_hz - truth.frequency_hz).abs() < 0.5)
-            .unwrap_or_else(|| panic!("{} Hz missing from {:?}", truth.frequency_hz, report.pass.modes));
+            .unwrap_or_else(|| {
+                panic!(
+                    "{} Hz missing from {:?}",
+                    truth.frequency_hz, report.pass.modes
+                )
+            });
         // The generator jitters each tap's frequencies by ±0.02 %.
-        assert!((found.frequency_hz / truth.frequency_hz - 1.0).abs() < 3e-4, "{found:?}");
-        assert!((found.q / truth.q - 1.0).abs() < 0.1, "{found:?} vs Q {}", truth.q);
+        assert!(
+            (found.frequency_hz / truth.frequency_hz - 1.0).abs() < 3e-4,
+            "{found:?}"
+        );
+        assert!(
+            (found.q / truth.q - 1.0).abs() < 0.1,
+            "{found:?} vs Q {}",
+            truth.q
+        );
     }
 }

@@ -11,7 +11,15 @@ use tapwright::wav_io::{read_mono, WavError};
 fn tap_signal(sample_rate_hz: u32, seconds: f64) -> Vec<f64> {
     let fs = f64::from(sample_rate_hz);
     let mut x = vec![0.0; (seconds * fs) as usize];
-    add_modes(&mut x, fs, (0.2 * fs) as usize, &[SynthMode::new(210.0, 40.0, 0.3), SynthMode::new(530.0, 50.0, 0.2)]);
+    add_modes(
+        &mut x,
+        fs,
+        (0.2 * fs) as usize,
+        &[
+            SynthMode::new(210.0, 40.0, 0.3),
+            SynthMode::new(530.0, 50.0, 0.2),
+        ],
+    );
     // A little deterministic dither so the floor is not digital silence.
     for (i, v) in x.iter_mut().enumerate() {
         *v += 1e-4 * ((i as f64 * 12.9898).sin() * 43_758.545).fract();
@@ -46,7 +54,12 @@ fn reads_every_supported_encoding_and_finds_the_modes() {
         (hound::SampleFormat::Int, 16, 2, 48_000),
     ];
     for (format, bits, channels, rate) in cases {
-        let spec = hound::WavSpec { channels, sample_rate: rate, bits_per_sample: bits, sample_format: format };
+        let spec = hound::WavSpec {
+            channels,
+            sample_rate: rate,
+            bits_per_sample: bits,
+            sample_format: format,
+        };
         let path = dir.path().join(format!("t_{bits}_{channels}_{rate}.wav"));
         let signal = tap_signal(rate, 1.5);
         write(&path, spec, &signal);
@@ -61,12 +74,24 @@ fn reads_every_supported_encoding_and_finds_the_modes() {
             .fold(0.0, f64::max);
         assert!(worst < 1e-4, "{bits}-bit: worst sample error {worst}");
         let band_high = 4000f64.min(0.45 * f64::from(rate));
-        let analysis = AnalysisSettings { band_high_hz: band_high, ..Default::default() };
-        let report = analyze_recording(&recording.samples, f64::from(rate), &TriggerSettings::default(), &analysis);
+        let analysis = AnalysisSettings {
+            band_high_hz: band_high,
+            ..Default::default()
+        };
+        let report = analyze_recording(
+            &recording.samples,
+            f64::from(rate),
+            &TriggerSettings::default(),
+            &analysis,
+        );
         assert_eq!(report.taps_used(), 1, "{path:?}");
         for f in [210.0, 530.0] {
             assert!(
-                report.pass.modes.iter().any(|m| (m.frequency_hz - f).abs() < 0.05),
+                report
+                    .pass
+                    .modes
+                    .iter()
+                    .any(|m| (m.frequency_hz - f).abs() < 0.05),
                 "{path:?}: {f} Hz missing from {:?}",
                 report.pass.modes
             );
@@ -78,7 +103,12 @@ fn reads_every_supported_encoding_and_finds_the_modes() {
 fn multichannel_is_mixed_to_mono() {
     let dir = tempfile::tempdir().unwrap();
     let path = dir.path().join("stereo.wav");
-    let spec = hound::WavSpec { channels: 2, sample_rate: 48_000, bits_per_sample: 32, sample_format: hound::SampleFormat::Float };
+    let spec = hound::WavSpec {
+        channels: 2,
+        sample_rate: 48_000,
+        bits_per_sample: 32,
+        sample_format: hound::SampleFormat::Float,
+    };
     let mut writer = hound::WavWriter::create(&path, spec).unwrap();
     for _ in 0..100 {
         writer.write_sample(0.5f32).unwrap();
@@ -94,21 +124,38 @@ fn rejects_what_it_cannot_read() {
     let dir = tempfile::tempdir().unwrap();
     // 8 kHz is the lowest rate accepted; 4 kHz is refused.
     let slow = dir.path().join("slow.wav");
-    let spec = hound::WavSpec { channels: 1, sample_rate: 4_000, bits_per_sample: 16, sample_format: hound::SampleFormat::Int };
+    let spec = hound::WavSpec {
+        channels: 1,
+        sample_rate: 4_000,
+        bits_per_sample: 16,
+        sample_format: hound::SampleFormat::Int,
+    };
     write(&slow, spec, &[0.0; 100]);
-    assert!(matches!(read_mono(&slow), Err(WavError::SampleRate { rate_hz: 4_000, .. })));
+    assert!(matches!(
+        read_mono(&slow),
+        Err(WavError::SampleRate { rate_hz: 4_000, .. })
+    ));
     // A-law (format tag 6) is a real WAV encoding tapwright does not read.
     let alaw = dir.path().join("alaw.wav");
     std::fs::write(&alaw, wav_header_bytes(6, 8, 8_000, 16)).unwrap();
     let error = read_mono(&alaw).unwrap_err();
-    assert!(matches!(error, WavError::Unsupported { .. } | WavError::NotWav { .. }), "{error}");
+    assert!(
+        matches!(
+            error,
+            WavError::Unsupported { .. } | WavError::NotWav { .. }
+        ),
+        "{error}"
+    );
     assert!(error.to_string().contains("alaw.wav"));
     let empty = dir.path().join("empty.wav");
     std::fs::write(&empty, b"").unwrap();
     assert!(matches!(read_mono(&empty), Err(WavError::Empty { .. })));
     let header_only = dir.path().join("header.wav");
     std::fs::write(&header_only, wav_header_bytes(1, 16, 48_000, 0)).unwrap();
-    assert!(matches!(read_mono(&header_only), Err(WavError::NoSamples { .. })));
+    assert!(matches!(
+        read_mono(&header_only),
+        Err(WavError::NoSamples { .. })
+    ));
 }
 
 /// A canonical 44-byte RIFF/WAVE header (mono) followed by `data_len` zero bytes.

@@ -43,7 +43,10 @@ const SAME_MODE_RELATIVE: f64 = 0.004;
 
 /// Combines taps into a pass. A mode is kept when at least half of the taps
 /// (and at least one) showed it; `max_modes` keeps the loudest.
-pub fn aggregate_taps<'a>(taps: impl IntoIterator<Item = &'a TapAnalysis>, max_modes: usize) -> PassResult {
+pub fn aggregate_taps<'a>(
+    taps: impl IntoIterator<Item = &'a TapAnalysis>,
+    max_modes: usize,
+) -> PassResult {
     let taps: Vec<&TapAnalysis> = taps.into_iter().collect();
     let spectrum = DisplaySpectrum::power_average(taps.iter().map(|t| &t.spectrum));
     let mut all: Vec<(usize, &Mode)> = taps
@@ -73,9 +76,12 @@ pub fn aggregate_taps<'a>(taps: impl IntoIterator<Item = &'a TapAnalysis>, max_m
 fn cluster_by_frequency<'a>(sorted: &[(usize, &'a Mode)]) -> Vec<Vec<(usize, &'a Mode)>> {
     let mut clusters: Vec<Vec<(usize, &Mode)>> = Vec::new();
     for &(tap, mode) in sorted {
-        let joins = clusters.last().and_then(|c| c.last()).is_some_and(|(_, prev)| {
-            mode.frequency_hz - prev.frequency_hz <= SAME_MODE_RELATIVE * mode.frequency_hz
-        });
+        let joins = clusters
+            .last()
+            .and_then(|c| c.last())
+            .is_some_and(|(_, prev)| {
+                mode.frequency_hz - prev.frequency_hz <= SAME_MODE_RELATIVE * mode.frequency_hz
+            });
         match clusters.last_mut() {
             Some(cluster) if joins => cluster.push((tap, mode)),
             _ => clusters.push(vec![(tap, mode)]),
@@ -153,7 +159,10 @@ mod tests {
     fn tap(modes: Vec<Mode>) -> TapAnalysis {
         TapAnalysis {
             modes,
-            spectrum: DisplaySpectrum { bin_hz: 1.0, power: vec![1.0; 16] },
+            spectrum: DisplaySpectrum {
+                bin_hz: 1.0,
+                power: vec![1.0; 16],
+            },
             sample_rate_hz: 48_000.0,
         }
     }
@@ -162,7 +171,11 @@ mod tests {
     fn medians_and_spread() {
         let taps = [
             tap(vec![mode(170.0, 40.0, -20.0), mode(345.0, 60.0, -10.0)]),
-            tap(vec![mode(170.4, 42.0, -21.0), mode(345.6, 58.0, -11.0), mode(900.0, 30.0, -50.0)]),
+            tap(vec![
+                mode(170.4, 42.0, -21.0),
+                mode(345.6, 58.0, -11.0),
+                mode(900.0, 30.0, -50.0),
+            ]),
             tap(vec![mode(169.8, 41.0, -19.0), mode(344.7, 61.0, -12.0)]),
         ];
         let pass = aggregate_taps(&taps, 16);

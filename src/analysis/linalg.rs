@@ -15,7 +15,7 @@ pub fn solve_symmetric(a: &[f64], b: &[f64], n: usize) -> Option<Vec<f64>> {
                 sum -= l[i * n + k] * l[j * n + k];
             }
             if i == j {
-                if !(sum > 0.0) || !sum.is_finite() {
+                if sum.is_nan() || sum <= 0.0 || !sum.is_finite() {
                     return None;
                 }
                 l[i * n + i] = sum.sqrt();
@@ -45,7 +45,9 @@ mod tests {
     fn solves_small_system() {
         let a = [4.0, 2.0, 0.6, 2.0, 5.0, 1.0, 0.6, 1.0, 3.0];
         let x_true = [1.0, -2.0, 0.5];
-        let b: Vec<f64> = (0..3).map(|i| (0..3).map(|j| a[i * 3 + j] * x_true[j]).sum()).collect();
+        let b: Vec<f64> = (0..3)
+            .map(|i| (0..3).map(|j| a[i * 3 + j] * x_true[j]).sum())
+            .collect();
         let x = solve_symmetric(&a, &b, 3).expect("positive definite");
         for (got, want) in x.iter().zip(x_true) {
             assert!((got - want).abs() < 1e-12);

@@ -21,4 +21,6 @@ pub use modal::{AnalysisSettings, Mode, TapAnalysis, TapAnalyzer};
 pub use pitch::{Pitch, DEFAULT_A4_HZ};
 pub use recording::{analyze_recording, RecordingReport, RejectedTap, TapRecord};
 pub use spectrum::DisplaySpectrum;
-pub use tap_finder::{find_taps, FoundTap, RejectReason, TapTrigger, TriggerEvent, TriggerSettings};
+pub use tap_finder::{
+    find_taps, FoundTap, RejectReason, TapTrigger, TriggerEvent, TriggerSettings,
+};

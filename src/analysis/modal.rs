@@ -194,8 +194,11 @@ impl TapAnalyzer {
         let start = decay_start(record, onset_index, fs);
         let offset = pre_trigger_mean(record, onset_index);
         self.residual.clear();
-        self.residual
-            .extend(record[start.min(record.len())..].iter().map(|&x| f64::from(x) - offset));
+        self.residual.extend(
+            record[start.min(record.len())..]
+                .iter()
+                .map(|&x| f64::from(x) - offset),
+        );
         self.tail_floor = TAIL_BELOW_NOISE * noise_rms(record, onset_index, offset);
         let mut modes = if self.residual.len() < MIN_DECAY_SAMPLES {
             Vec::new()
@@ -213,7 +216,11 @@ impl TapAnalyzer {
 
     fn display_spectrum(&mut self, record: &[f32], onset_index: usize) -> DisplaySpectrum {
         let fft_len = SpectrumMaker::fft_len_for(record.len());
-        maker_for(&mut self.display_maker, fft_len).spectrum(record, onset_index, self.sample_rate_hz)
+        maker_for(&mut self.display_maker, fft_len).spectrum(
+            record,
+            onset_index,
+            self.sample_rate_hz,
+        )
     }
 
     /// Spectrum of the analysed decay (or of what is left of it), faded out
@@ -222,7 +229,11 @@ impl TapAnalyzer {
         let fft_len = self.residual.len().next_power_of_two().max(1024);
         self.scratch.clear();
         self.scratch.extend(self.residual.iter().map(|&x| x as f32));
-        maker_for(&mut self.candidate_maker, fft_len).spectrum(&self.scratch, 0, self.sample_rate_hz)
+        maker_for(&mut self.candidate_maker, fft_len).spectrum(
+            &self.scratch,
+            0,
+            self.sample_rate_hz,
+        )
     }
 
     /// Steps 2 and 3 of the method, in rounds: find peaks, estimate each
@@ -264,7 +275,9 @@ impl TapAnalyzer {
             return;
         };
         let moved_hz = (pole.frequency_hz(fs) - candidate.frequency_hz).abs();
-        let plausible = pole.z.norm() < 1.0 && pole.z.arg() > 0.0 && moved_hz < 4.0 * candidate.bin_hz.max(pole.decay_per_s(fs) / PI);
+        let plausible = pole.z.norm() < 1.0
+            && pole.z.arg() > 0.0
+            && moved_hz < 4.0 * candidate.bin_hz.max(pole.decay_per_s(fs) / PI);
         if plausible {
             add_pole(&mut self.residual, &pole, -1.0, self.tail_floor);
             poles.push((pole, candidate.prominence_db));
@@ -279,7 +292,10 @@ impl TapAnalyzer {
         for (pole, _) in group.iter() {
             add_pole(&mut self.residual, pole, 1.0, self.tail_floor);
         }
-        let longest_tau = group.iter().map(|(p, _)| p.tau_samples()).fold(0.0, f64::max);
+        let longest_tau = group
+            .iter()
+            .map(|(p, _)| p.tau_samples())
+            .fold(0.0, f64::max);
         let len = fit_length(longest_tau, self.residual.len());
         let initial: Vec<Pole> = group.iter().map(|(p, _)| *p).collect();
         let refined = refine_poles(&self.residual[..len], &initial);
@@ -374,7 +390,13 @@ fn decay_start(record: &[f32], onset_index: usize, fs: f64) -> usize {
     let loudest = record[onset..end]
         .iter()
         .enumerate()
-        .fold((0, 0.0f32), |best, (i, &x)| if x.abs() > best.1 { (i, x.abs()) } else { best })
+        .fold((0, 0.0f32), |best, (i, &x)| {
+            if x.abs() > best.1 {
+                (i, x.abs())
+            } else {
+                best
+            }
+        })
         .0;
     if onset_index == 0 {
         // A bare decay (synthetic or cut by hand): use it from the start.
@@ -395,7 +417,11 @@ fn noise_rms(record: &[f32], onset_index: usize, offset: f64) -> f64 {
     if quiet.is_empty() {
         return 0.0;
     }
-    let power = quiet.iter().map(|&x| (f64::from(x) - offset).powi(2)).sum::<f64>() / quiet.len() as f64;
+    let power = quiet
+        .iter()
+        .map(|&x| (f64::from(x) - offset).powi(2))
+        .sum::<f64>()
+        / quiet.len() as f64;
     power.sqrt()
 }
 
@@ -423,7 +449,9 @@ fn find_candidates(
         return Vec::new();
     }
     let low = spectrum.bin_of_hz(settings.band_low_hz).max(2);
-    let high = spectrum.bin_of_hz(settings.band_high_hz).min(power.len() - 3);
+    let high = spectrum
+        .bin_of_hz(settings.band_high_hz)
+        .min(power.len() - 3);
     if high <= low {
         return Vec::new();
     }
@@ -431,7 +459,11 @@ fn find_candidates(
     let threshold = floor * 10f32.powf((settings.min_above_floor_db / 10.0) as f32);
     let mut found: Vec<Candidate> = (low..=high)
         .filter(|&k| power[k] > threshold && power[k] >= power[k - 1] && power[k] > power[k + 1])
-        .filter(|&k| original.is_none_or(|o| power[k] >= o.power[o.bin_of_hz(k as f64 * spectrum.bin_hz)] * GHOST_RATIO))
+        .filter(|&k| {
+            original.is_none_or(|o| {
+                power[k] >= o.power[o.bin_of_hz(k as f64 * spectrum.bin_hz)] * GHOST_RATIO
+            })
+        })
         .filter_map(|k| {
             let prominence_db = prominence_db(power, k);
             (prominence_db >= settings.min_prominence_db).then(|| Candidate {
@@ -481,7 +513,11 @@ fn interpolated_peak_bin(power: &[f32], k: usize) -> f64 {
     let db = |i: usize| 10.0 * f64::from(power[i].max(1e-30)).log10();
     let (a, b, c) = (db(k - 1), db(k), db(k + 1));
     let denom = a - 2.0 * b + c;
-    let offset = if denom.abs() > 1e-12 { 0.5 * (a - c) / denom } else { 0.0 };
+    let offset = if denom.abs() > 1e-12 {
+        0.5 * (a - c) / denom
+    } else {
+        0.0
+    };
     k as f64 + offset.clamp(-0.5, 0.5)
 }
 
@@ -499,18 +535,27 @@ fn fit_length(tau_samples: f64, available: usize) -> usize {
 fn matched_estimate(signal: &[f64], own: &Pole) -> Option<Pole> {
     let min_len = min_record_len(own.z.arg(), signal.len());
     let wanted = (RECORD_TIME_CONSTANTS * own.tau_samples()).round() as usize;
-    three_bin_pole(signal, wanted.clamp(min_len, signal.len()), own.z.arg(), Some(own))
+    three_bin_pole(
+        signal,
+        wanted.clamp(min_len, signal.len()),
+        own.z.arg(),
+        Some(own),
+    )
 }
 
 /// At least eight periods and `MIN_DECAY_SAMPLES`, at most the data.
 fn min_record_len(omega: f64, available: usize) -> usize {
-    ((8.0 * 2.0 * PI / omega.max(1e-6)) as usize).max(MIN_DECAY_SAMPLES).min(available)
+    ((8.0 * 2.0 * PI / omega.max(1e-6)) as usize)
+        .max(MIN_DECAY_SAMPLES)
+        .min(available)
 }
 
 fn initial_estimate(signal: &[f64], omega: f64) -> Option<Pole> {
     let min_len = min_record_len(omega, signal.len());
     let periods_64 = (64.0 * 2.0 * PI / omega.max(1e-6)) as usize;
-    let mut len = periods_64.max(FIRST_RECORD_SAMPLES).clamp(min_len, signal.len());
+    let mut len = periods_64
+        .max(FIRST_RECORD_SAMPLES)
+        .clamp(min_len, signal.len());
     let mut pole = three_bin_pole(signal, len, omega, None)?;
     for _ in 0..3 {
         let wanted = (RECORD_TIME_CONSTANTS * pole.tau_samples()).round() as usize;
@@ -690,7 +735,11 @@ fn refine_poles(signal: &[f64], initial: &[Pole]) -> Option<Vec<Pole>> {
             };
             let trial: Vec<f64> = params.iter().zip(&step).map(|(p, s)| p + s).collect();
             let trial_cost = fit_cost(signal, &trial);
-            if trial_cost < cost && trial.chunks(4).all(|m| m[3] > 0.0 && m[2] > 0.0 && m[2] < PI) {
+            if trial_cost < cost
+                && trial
+                    .chunks(4)
+                    .all(|m| m[3] > 0.0 && m[2] > 0.0 && m[2] < PI)
+            {
                 let relative = (cost - trial_cost) / cost.max(1e-300);
                 params = trial;
                 cost = trial_cost;
@@ -714,7 +763,12 @@ fn refine_poles(signal: &[f64], initial: &[Pole]) -> Option<Vec<Pole>> {
 
 fn pole_to_params(pole: &Pole) -> [f64; 4] {
     // 2·Re(c·zⁿ) = e^{−dn}(2c_re cos wn − 2c_im sin wn)
-    [2.0 * pole.c.re, -2.0 * pole.c.im, pole.z.arg(), -pole.z.norm().ln()]
+    [
+        2.0 * pole.c.re,
+        -2.0 * pole.c.im,
+        pole.z.arg(),
+        -pole.z.norm().ln(),
+    ]
 }
 
 fn params_to_pole(m: &[f64]) -> Pole {
@@ -730,7 +784,11 @@ fn fit_cost(signal: &[f64], params: &[f64]) -> f64 {
     for m in params.chunks(4) {
         add_pole(&mut model, &params_to_pole(m), 1.0, 0.0);
     }
-    signal.iter().zip(&model).map(|(y, f)| (y - f).powi(2)).sum()
+    signal
+        .iter()
+        .zip(&model)
+        .map(|(y, f)| (y - f).powi(2))
+        .sum()
 }
 
 /// JᵀJ (row-major, n×n) and Jᵀr of the model at `params`.
@@ -782,7 +840,8 @@ fn drop_duplicates(modes: &mut Vec<Mode>) {
     let mut kept: Vec<Mode> = Vec::with_capacity(modes.len());
     for mode in modes.drain(..) {
         let twin = kept.iter().any(|k| {
-            (k.frequency_hz - mode.frequency_hz).abs() < 0.1 * k.bandwidth_hz().max(mode.bandwidth_hz())
+            (k.frequency_hz - mode.frequency_hz).abs()
+                < 0.1 * k.bandwidth_hz().max(mode.bandwidth_hz())
         });
         if !twin {
             kept.push(mode);
@@ -808,7 +867,11 @@ mod tests {
         let truth = SynthMode::new(312.3, 45.0, 0.5);
         let x = damped_modes(FS, 6000, &[truth], 0.0, &mut NoiseGenerator::new(1));
         let pole = three_bin_pole(&x, x.len(), 2.0 * PI * 312.3 / FS, None).expect("pole");
-        assert!((pole.frequency_hz(FS) - 312.3).abs() < 1e-6, "{}", pole.frequency_hz(FS));
+        assert!(
+            (pole.frequency_hz(FS) - 312.3).abs() < 1e-6,
+            "{}",
+            pole.frequency_hz(FS)
+        );
         assert!((pole.decay_per_s(FS) - truth.decay_per_s()).abs() < 1e-6);
         assert!((pole.amplitude() - 0.5).abs() < 1e-6);
     }
@@ -827,16 +890,31 @@ mod tests {
     #[test]
     fn separates_overlapping_modes() {
         let truth = [
-            SynthMode { phase_rad: 0.3, ..SynthMode::new(280.0, 18.0, 0.2) },
-            SynthMode { phase_rad: 1.1, ..SynthMode::new(350.0, 30.0, 0.3) },
-            SynthMode { phase_rad: 2.0, ..SynthMode::new(420.0, 25.0, 0.15) },
-            SynthMode { phase_rad: 4.0, ..SynthMode::new(490.0, 40.0, 0.25) },
+            SynthMode {
+                phase_rad: 0.3,
+                ..SynthMode::new(280.0, 18.0, 0.2)
+            },
+            SynthMode {
+                phase_rad: 1.1,
+                ..SynthMode::new(350.0, 30.0, 0.3)
+            },
+            SynthMode {
+                phase_rad: 2.0,
+                ..SynthMode::new(420.0, 25.0, 0.15)
+            },
+            SynthMode {
+                phase_rad: 4.0,
+                ..SynthMode::new(490.0, 40.0, 0.25)
+            },
         ];
         let x = damped_modes(FS, 48_000, &truth, 1e-4, &mut NoiseGenerator::new(3));
         let found = analyze(&x);
         assert_eq!(found.modes.len(), 4, "{:?}", found.modes);
         for (m, t) in found.modes.iter().zip(&truth) {
-            assert!((m.frequency_hz - t.frequency_hz).abs() < 0.1, "{m:?} vs {t:?}");
+            assert!(
+                (m.frequency_hz - t.frequency_hz).abs() < 0.1,
+                "{m:?} vs {t:?}"
+            );
             assert!((m.q / t.q - 1.0).abs() < 0.1, "{m:?} vs {t:?}");
         }
     }

@@ -47,7 +47,12 @@ impl RecordingReport {
     pub fn rejected(&self) -> Vec<RejectedTap> {
         self.taps
             .iter()
-            .filter_map(|t| t.rejected.map(|reason| RejectedTap { index: t.index, reason }))
+            .filter_map(|t| {
+                t.rejected.map(|reason| RejectedTap {
+                    index: t.index,
+                    reason,
+                })
+            })
             .collect()
     }
 }
@@ -71,7 +76,10 @@ pub fn analyze_recording(
             analysis: tap.rejected.is_none().then(|| analyzer.analyze(&tap)),
         })
         .collect();
-    let pass = aggregate_taps(taps.iter().filter_map(|t| t.analysis.as_ref()), analysis.max_modes);
+    let pass = aggregate_taps(
+        taps.iter().filter_map(|t| t.analysis.as_ref()),
+        analysis.max_modes,
+    );
     RecordingReport {
         sample_rate_hz,
         duration_s: samples.len() as f64 / sample_rate_hz,

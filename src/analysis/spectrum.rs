@@ -47,12 +47,17 @@ impl DisplaySpectrum {
 
     /// Power average of several spectra of the same grid; spectra on another
     /// grid are skipped. None when there is nothing to average.
-    pub fn power_average<'a>(spectra: impl IntoIterator<Item = &'a DisplaySpectrum>) -> Option<Self> {
+    pub fn power_average<'a>(
+        spectra: impl IntoIterator<Item = &'a DisplaySpectrum>,
+    ) -> Option<Self> {
         let mut sum: Option<(f64, Vec<f64>)> = None;
         let mut count = 0usize;
         for spectrum in spectra {
-            let (bin_hz, acc) = sum.get_or_insert_with(|| (spectrum.bin_hz, vec![0.0; spectrum.power.len()]));
-            if acc.len() != spectrum.power.len() || (*bin_hz - spectrum.bin_hz).abs() > 1e-9 * *bin_hz {
+            let (bin_hz, acc) =
+                sum.get_or_insert_with(|| (spectrum.bin_hz, vec![0.0; spectrum.power.len()]));
+            if acc.len() != spectrum.power.len()
+                || (*bin_hz - spectrum.bin_hz).abs() > 1e-9 * *bin_hz
+            {
                 continue;
             }
             for (a, &p) in acc.iter_mut().zip(&spectrum.power) {
@@ -84,9 +89,13 @@ impl DisplaySpectrum {
         while start <= high_bin {
             edge *= ratio;
             let end = (edge.round() as usize).clamp(start, high_bin);
-            let (best, power) = (start..=end)
-                .map(|i| (i, self.power[i]))
-                .fold((start, f32::MIN), |acc, x| if x.1 > acc.1 { x } else { acc });
+            let (best, power) =
+                (start..=end)
+                    .map(|i| (i, self.power[i]))
+                    .fold(
+                        (start, f32::MIN),
+                        |acc, x| if x.1 > acc.1 { x } else { acc },
+                    );
             out.push((self.frequency_hz(best), power_to_db(power)));
             start = end + 1;
         }
@@ -113,7 +122,9 @@ pub struct SpectrumMaker {
 
 impl std::fmt::Debug for SpectrumMaker {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        f.debug_struct("SpectrumMaker").field("fft_len", &self.fft_len).finish()
+        f.debug_struct("SpectrumMaker")
+            .field("fft_len", &self.fft_len)
+            .finish()
     }
 }
 
@@ -145,18 +156,31 @@ impl SpectrumMaker {
 
     /// Display spectrum of a record whose strike is at `onset_index`.
     /// Samples past the FFT length are ignored.
-    pub fn spectrum(&mut self, record: &[f32], onset_index: usize, sample_rate_hz: f64) -> DisplaySpectrum {
+    pub fn spectrum(
+        &mut self,
+        record: &[f32],
+        onset_index: usize,
+        sample_rate_hz: f64,
+    ) -> DisplaySpectrum {
         let used = record.len().min(self.fft_len);
         let onset = onset_index.min(used);
         let fade_len = used - onset;
         if self.fade.len() != fade_len {
             self.fade = (0..fade_len)
-                .map(|i| (std::f32::consts::FRAC_PI_2 * i as f32 / fade_len as f32).cos().powi(2))
+                .map(|i| {
+                    (std::f32::consts::FRAC_PI_2 * i as f32 / fade_len as f32)
+                        .cos()
+                        .powi(2)
+                })
                 .collect();
         }
         self.input.fill(0.0);
         self.input[..onset].copy_from_slice(&record[..onset]);
-        for ((slot, &x), &w) in self.input[onset..used].iter_mut().zip(&record[onset..used]).zip(&self.fade) {
+        for ((slot, &x), &w) in self.input[onset..used]
+            .iter_mut()
+            .zip(&record[onset..used])
+            .zip(&self.fade)
+        {
             *slot = x * w;
         }
         let window_sum = onset as f64 + self.fade.iter().map(|&w| f64::from(w)).sum::<f64>();
@@ -203,8 +227,14 @@ mod tests {
 
     #[test]
     fn average_and_log_points() {
-        let a = DisplaySpectrum { bin_hz: 1.0, power: vec![1.0; 1000] };
-        let b = DisplaySpectrum { bin_hz: 1.0, power: vec![3.0; 1000] };
+        let a = DisplaySpectrum {
+            bin_hz: 1.0,
+            power: vec![1.0; 1000],
+        };
+        let b = DisplaySpectrum {
+            bin_hz: 1.0,
+            power: vec![3.0; 1000],
+        };
         let avg = DisplaySpectrum::power_average([&a, &b]).expect("two spectra");
         assert!(avg.power.iter().all(|&p| (p - 2.0).abs() < 1e-6));
         let points = avg.log_spaced_db(10.0, 900.0, 50);

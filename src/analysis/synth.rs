@@ -109,16 +109,19 @@ pub fn damped_modes(
 
 /// Converts to f32 samples, clipping at full scale as an ADC would.
 pub fn to_f32_clipped(samples: &[f64]) -> Vec<f32> {
-    samples
-        .iter()
-        .map(|&x| x.clamp(-1.0, 1.0) as f32)
-        .collect()
+    samples.iter().map(|&x| x.clamp(-1.0, 1.0) as f32).collect()
 }
 
 /// A strike: a short raised-cosine pulse (the mallet contact) of the given
 /// length, which excites the modes; returned as the modes' phases unchanged.
 /// Used to make recordings that start like a real tap rather than at a peak.
-pub fn contact_pulse(out: &mut [f64], sample_rate_hz: f64, start: usize, contact_ms: f64, amplitude: f64) {
+pub fn contact_pulse(
+    out: &mut [f64],
+    sample_rate_hz: f64,
+    start: usize,
+    contact_ms: f64,
+    amplitude: f64,
+) {
     let length = ((contact_ms * 1e-3 * sample_rate_hz).round() as usize).max(1);
     for i in 0..length {
         if let Some(sample) = out.get_mut(start + i) {

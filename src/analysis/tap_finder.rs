@@ -179,9 +179,15 @@ const DECAY_ENVELOPE_MS: f64 = 10.0;
 enum State {
     Armed,
     /// A rise above half the margin that has not reached the margin yet.
-    Rising { blocks: usize, peak_db: f64 },
+    Rising {
+        blocks: usize,
+        peak_db: f64,
+    },
     Recording(Recording),
-    Settling { blocks: usize, min_db: f64 },
+    Settling {
+        blocks: usize,
+        min_db: f64,
+    },
 }
 
 #[derive(Clone, Debug, PartialEq)]
@@ -283,8 +289,10 @@ impl TapTrigger {
         };
         let block_len = ms_to_samples(settings.envelope_ms, sample_rate_hz).max(1);
         let pre_len = ms_to_samples(settings.pre_trigger_ms, sample_rate_hz);
-        let floor_blocks = (settings.floor_window_ms / settings.envelope_ms.max(0.1)).round() as usize;
-        let recent_len = ((DECAY_ENVELOPE_MS / settings.envelope_ms.max(0.1)).round() as usize).max(1);
+        let floor_blocks =
+            (settings.floor_window_ms / settings.envelope_ms.max(0.1)).round() as usize;
+        let recent_len =
+            ((DECAY_ENVELOPE_MS / settings.envelope_ms.max(0.1)).round() as usize).max(1);
         Self {
             recent_powers: VecDeque::with_capacity(recent_len + 1),
             recent_sum: 0.0,
@@ -321,7 +329,8 @@ impl TapTrigger {
         self.position = position;
         self.state = match state {
             State::Recording(mut rec) => {
-                rec.target_len = rec.onset_index + ms_to_samples(self.settings.record_ms, self.sample_rate_hz);
+                rec.target_len =
+                    rec.onset_index + ms_to_samples(self.settings.record_ms, self.sample_rate_hz);
                 State::Recording(rec)
             }
             other => other,
@@ -408,7 +417,10 @@ impl TapTrigger {
                 if level_db > floor_db + margin {
                     self.start_record(floor_db, slow_db, events)
                 } else if level_db > floor_db + margin / 2.0 {
-                    State::Rising { blocks: 1, peak_db: level_db }
+                    State::Rising {
+                        blocks: 1,
+                        peak_db: level_db,
+                    }
                 } else {
                     self.floor.push(level_db);
                     State::Armed
@@ -418,10 +430,16 @@ impl TapTrigger {
                 if level_db > floor_db + margin {
                     self.start_record(floor_db, slow_db, events)
                 } else if level_db > floor_db + margin / 2.0 {
-                    State::Rising { blocks: blocks + 1, peak_db: peak_db.max(level_db) }
+                    State::Rising {
+                        blocks: blocks + 1,
+                        peak_db: peak_db.max(level_db),
+                    }
                 } else if self.blocks_to_ms(blocks) <= QUIET_RISE_MS {
                     events.push(TriggerEvent::Tap(self.quiet_tap(blocks, floor_db, peak_db)));
-                    State::Settling { blocks: 0, min_db: slow_db }
+                    State::Settling {
+                        blocks: 0,
+                        min_db: slow_db,
+                    }
                 } else {
                     // A slow swell (a voice, a door): not a tap at all.
                     State::Armed
@@ -434,16 +452,29 @@ impl TapTrigger {
         };
     }
 
-    fn start_record(&mut self, floor_db: f64, slow_db: f64, events: &mut Vec<TriggerEvent>) -> State {
+    fn start_record(
+        &mut self,
+        floor_db: f64,
+        slow_db: f64,
+        events: &mut Vec<TriggerEvent>,
+    ) -> State {
         let samples: Vec<f32> = self.history.iter().copied().collect();
         let onset_index = samples.len().saturating_sub(self.block_len);
         let start_sample = self.position - samples.len() as u64;
         let record_len = ms_to_samples(self.settings.record_ms, self.sample_rate_hz);
         let mut all = Vec::with_capacity(onset_index + record_len + self.block_len);
         all.extend_from_slice(&samples);
-        let clip_run = samples.iter().rev().take_while(|s| s.abs() >= CLIP_LEVEL).count();
-        let clipped = samples.windows(2).any(|w| w[0].abs() >= CLIP_LEVEL && w[1].abs() >= CLIP_LEVEL);
-        events.push(TriggerEvent::Started { onset_sample: start_sample + onset_index as u64 });
+        let clip_run = samples
+            .iter()
+            .rev()
+            .take_while(|s| s.abs() >= CLIP_LEVEL)
+            .count();
+        let clipped = samples
+            .windows(2)
+            .any(|w| w[0].abs() >= CLIP_LEVEL && w[1].abs() >= CLIP_LEVEL);
+        events.push(TriggerEvent::Started {
+            onset_sample: start_sample + onset_index as u64,
+        });
         State::Recording(Recording {
             start_sample,
             onset_index,
@@ -461,7 +492,12 @@ impl TapTrigger {
         })
     }
 
-    fn continue_record(&mut self, mut rec: Recording, level_db: f64, events: &mut Vec<TriggerEvent>) -> State {
+    fn continue_record(
+        &mut self,
+        mut rec: Recording,
+        level_db: f64,
+        events: &mut Vec<TriggerEvent>,
+    ) -> State {
         rec.blocks += 1;
         if level_db > rec.peak_db && !self.past_contact(rec.blocks_since_peak, rec.blocks) {
             rec.peak_db = level_db;
@@ -472,7 +508,10 @@ impl TapTrigger {
             rec.min_db_since_peak = rec.min_db_since_peak.min(level_db);
             let rise = level_db - rec.min_db_since_peak;
             let loud = level_db > rec.floor_db + self.settings.margin_db / 2.0;
-            if self.past_contact(rec.blocks_since_peak, rec.blocks) && loud && rise > self.settings.double_strike_rise_db {
+            if self.past_contact(rec.blocks_since_peak, rec.blocks)
+                && loud
+                && rise > self.settings.double_strike_rise_db
+            {
                 rec.double = true;
             }
         }
@@ -482,7 +521,10 @@ impl TapTrigger {
         if rec.samples.len() >= rec.target_len {
             rec.samples.truncate(rec.target_len);
             events.push(TriggerEvent::Tap(self.close_record(rec)));
-            State::Settling { blocks: 0, min_db: level_db }
+            State::Settling {
+                blocks: 0,
+                min_db: level_db,
+            }
         } else {
             State::Recording(rec)
         }
@@ -502,7 +544,8 @@ impl TapTrigger {
             return State::Settling { blocks, min_db };
         }
         let new_strike = level_db > floor_db + self.settings.margin_db
-            && level_db > min_db + self.settings.double_strike_rise_db + self.settings.margin_db / 2.0;
+            && level_db
+                > min_db + self.settings.double_strike_rise_db + self.settings.margin_db / 2.0;
         if new_strike {
             self.start_record(floor_db, slow_db, events)
         } else if slow_db < floor_db + self.settings.settle_db {
@@ -518,7 +561,8 @@ impl TapTrigger {
 
     fn close_record(&self, rec: Recording) -> FoundTap {
         let after_onset = rec.samples.len().saturating_sub(rec.onset_index);
-        let too_short_record = after_onset < ms_to_samples(self.settings.min_record_ms, self.sample_rate_hz);
+        let too_short_record =
+            after_onset < ms_to_samples(self.settings.min_record_ms, self.sample_rate_hz);
         let died_at_once = rec
             .died_after_blocks
             .is_some_and(|blocks| self.blocks_to_ms(blocks) < self.settings.min_ring_ms);
@@ -560,7 +604,11 @@ impl TapTrigger {
 }
 
 /// Finds every tap in a whole recording.
-pub fn find_taps(samples: &[f32], sample_rate_hz: f64, settings: &TriggerSettings) -> Vec<FoundTap> {
+pub fn find_taps(
+    samples: &[f32],
+    sample_rate_hz: f64,
+    settings: &TriggerSettings,
+) -> Vec<FoundTap> {
     let mut trigger = TapTrigger::new(settings.clone(), sample_rate_hz);
     let mut events = Vec::new();
     trigger.push(samples, &mut events);
@@ -638,7 +686,12 @@ mod tests {
         let reasons: Vec<_> = taps.iter().map(|t| t.rejected).collect();
         assert_eq!(
             reasons,
-            vec![None, Some(RejectReason::Clipped), Some(RejectReason::DoubleStrike), None]
+            vec![
+                None,
+                Some(RejectReason::Clipped),
+                Some(RejectReason::DoubleStrike),
+                None
+            ]
         );
     }
 

@@ -36,15 +36,25 @@ pub struct AnalyzeArgs {
 
 pub fn run(args: &AnalyzeArgs) -> anyhow::Result<()> {
     if !(args.margin_db.is_finite() && (3.0..=60.0).contains(&args.margin_db)) {
-        bail!("--margin-db must be between 3 and 60 dB, not {}", args.margin_db);
+        bail!(
+            "--margin-db must be between 3 and 60 dB, not {}",
+            args.margin_db
+        );
     }
     if !(args.record_ms.is_finite() && (100.0..=10_000.0).contains(&args.record_ms)) {
-        bail!("--record-ms must be between 100 and 10000 ms, not {}", args.record_ms);
+        bail!(
+            "--record-ms must be between 100 and 10000 ms, not {}",
+            args.record_ms
+        );
     }
     let recording = read_mono(&args.file)?;
     let fs = f64::from(recording.sample_rate_hz);
     let band = band_for(args.band, fs, &args.file.display().to_string())?;
-    let trigger = TriggerSettings { margin_db: args.margin_db, record_ms: args.record_ms, ..Default::default() };
+    let trigger = TriggerSettings {
+        margin_db: args.margin_db,
+        record_ms: args.record_ms,
+        ..Default::default()
+    };
     let analysis = AnalysisSettings {
         band_low_hz: band.0,
         band_high_hz: band.1,
@@ -54,13 +64,21 @@ pub fn run(args: &AnalyzeArgs) -> anyhow::Result<()> {
     let report = analyze_recording(&recording.samples, fs, &trigger, &analysis);
     let name = args.file.display();
     if report.taps.is_empty() {
-        bail!("{name} has no tap in it: nothing rose {} dB above the background", args.margin_db);
+        bail!(
+            "{name} has no tap in it: nothing rose {} dB above the background",
+            args.margin_db
+        );
     }
     if report.taps_used() == 0 {
         bail!(
             "{name} has no usable tap: all {} were rejected ({})",
             report.taps.len(),
-            report.rejected().iter().map(|r| r.reason.short_text()).collect::<Vec<_>>().join(", ")
+            report
+                .rejected()
+                .iter()
+                .map(|r| r.reason.short_text())
+                .collect::<Vec<_>>()
+                .join(", ")
         );
     }
     let input = ReportInput {
@@ -68,11 +86,16 @@ pub fn run(args: &AnalyzeArgs) -> anyhow::Result<()> {
         sample_rate_hz: fs,
         a4_hz: args.a4,
         taps_found: report.taps.len(),
-        rejected: report.rejected().into_iter().map(|r| (r.index, r.reason)).collect(),
+        rejected: report
+            .rejected()
+            .into_iter()
+            .map(|r| (r.index, r.reason))
+            .collect(),
         modes: &report.pass.modes,
     };
     if args.json {
-        let text = serde_json::to_string_pretty(&input.to_json()).context("formatting the JSON report")?;
+        let text =
+            serde_json::to_string_pretty(&input.to_json()).context("formatting the JSON report")?;
         println!("{text}");
     } else {
         print!("{}", input.to_table());
@@ -82,7 +105,11 @@ pub fn run(args: &AnalyzeArgs) -> anyhow::Result<()> {
 
 /// The band to search: the user's, checked against the sample rate, or the
 /// default 40–4000 Hz trimmed to 45 % of the sample rate.
-pub fn band_for(requested: Option<(f64, f64)>, sample_rate_hz: f64, source: &str) -> anyhow::Result<(f64, f64)> {
+pub fn band_for(
+    requested: Option<(f64, f64)>,
+    sample_rate_hz: f64,
+    source: &str,
+) -> anyhow::Result<(f64, f64)> {
     const DEFAULT_BAND_HZ: (f64, f64) = (40.0, 4000.0);
     let nyquist_hz = sample_rate_hz / 2.0;
     match requested {
@@ -96,17 +123,28 @@ pub fn band_for(requested: Option<(f64, f64)>, sample_rate_hz: f64, source: &str
 
 /// Parses "LOW:HIGH" in Hz.
 pub fn parse_band_hz(text: &str) -> Result<(f64, f64), String> {
-    let (low, high) = text.split_once(':').ok_or_else(|| format!("'{text}' is not LOW:HIGH in Hz, e.g. 40:4000"))?;
-    let parse = |s: &str| s.trim().parse::<f64>().map_err(|_| format!("'{s}' is not a number of Hz"));
+    let (low, high) = text
+        .split_once(':')
+        .ok_or_else(|| format!("'{text}' is not LOW:HIGH in Hz, e.g. 40:4000"))?;
+    let parse = |s: &str| {
+        s.trim()
+            .parse::<f64>()
+            .map_err(|_| format!("'{s}' is not a number of Hz"))
+    };
     let (low, high) = (parse(low)?, parse(high)?);
     if !(low.is_finite() && high.is_finite() && low >= 10.0 && high > low * 1.5) {
-        return Err(format!("band {low}:{high} Hz must start at 10 Hz or above and span at least half an octave"));
+        return Err(format!(
+            "band {low}:{high} Hz must start at 10 Hz or above and span at least half an octave"
+        ));
     }
     Ok((low, high))
 }
 
 fn parse_a4_hz(text: &str) -> Result<f64, String> {
-    let hz: f64 = text.trim().parse().map_err(|_| format!("'{text}' is not a frequency in Hz"))?;
+    let hz: f64 = text
+        .trim()
+        .parse()
+        .map_err(|_| format!("'{text}' is not a frequency in Hz"))?;
     if (380.0..=500.0).contains(&hz) {
         Ok(hz)
     } else {

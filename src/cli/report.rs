@@ -61,7 +61,11 @@ impl ReportInput<'_> {
             a4_hz: self.a4_hz,
             taps_found: self.taps_found,
             taps_used: self.taps_used(),
-            taps_rejected: self.rejected.iter().map(|&(index, reason)| JsonRejected { index, reason }).collect(),
+            taps_rejected: self
+                .rejected
+                .iter()
+                .map(|&(index, reason)| JsonRejected { index, reason })
+                .collect(),
             modes: self
                 .modes
                 .iter()

@@ -316,7 +316,10 @@ impl TapwrightApp {
     /// Opens the bundled sample build when the options ask for it and no
     /// build is open or requested.
     fn open_sample_build_if_wanted(&mut self) {
-        if !self.options.sample_build_with_demo || self.options.build.is_some() || self.build.is_some() {
+        if !self.options.sample_build_with_demo
+            || self.options.build.is_some()
+            || self.build.is_some()
+        {
             return;
         }
         match crate::demo::sample_build() {
@@ -836,7 +839,8 @@ impl TapwrightApp {
         }
         // Autosave after every recorded pass once the build has a file.
         if let Some((build, path)) = autosave {
-            self.jobs.spawn("save-build", move || jobs::save_build(path, build));
+            self.jobs
+                .spawn("save-build", move || jobs::save_build(path, build));
         }
     }
 
