@@ -173,11 +173,11 @@ impl OpeningDraft {
     pub fn to_opening(&self, position: usize) -> Result<Opening, String> {
         let (first_name, second_name) = self.kind.size_names();
         let first = parse_number(
-            &format!("opening {position}'s {first_name}"),
+            &format!("{first_name} of opening {position}"),
             &self.first_mm,
         )?;
         let second = match second_name {
-            Some(name) => parse_number(&format!("opening {position}'s {name}"), &self.second_mm)?,
+            Some(name) => parse_number(&format!("{name} of opening {position}"), &self.second_mm)?,
             None => 0.0,
         };
         Ok(match self.kind {
@@ -549,7 +549,7 @@ mod tests {
         draft.openings[1].second_mm = "wide".to_owned();
         assert_eq!(
             draft.to_geometry().unwrap_err(),
-            "Opening 2's mean width \"wide\" is not a number."
+            "The mean width of opening 2 \"wide\" is not a number."
         );
     }
 
