@@ -146,8 +146,8 @@ pub fn show(ui: &mut egui::Ui, state: &mut LedgerAreaState, ctx: &mut AreaContex
     };
     egui::Panel::left("ledger side")
         .resizable(true)
-        .default_size(330.0)
-        .size_range(280.0..=460.0)
+        .default_size(305.0)
+        .size_range(260.0..=460.0)
         .show(ui, |ui| {
             egui::ScrollArea::vertical()
                 .id_salt("ledger side scroll")
@@ -220,7 +220,7 @@ fn build_bar(ui: &mut egui::Ui, state: &mut LedgerAreaState, ctx: &mut AreaConte
                 date_text(&build.created.to_string())
             ));
             if ctx.build_unsaved {
-                ui.colored_label(ui.visuals().warn_fg_color, "● unsaved changes");
+                ui.colored_label(ui.visuals().warn_fg_color, "unsaved changes");
             } else {
                 ui.weak("all changes saved");
             }
@@ -502,11 +502,11 @@ fn side_panel(
     ui.separator();
     parts::part_list(ui, state, build, ctx);
     ui.separator();
-    if let Some(part) = selected_part(state, build) {
-        record::record_form(ui, &mut state.record, part, ctx);
-        ui.separator();
-    }
     parts::top_against_back(ui, build);
+    if let Some(part) = selected_part(state, build) {
+        ui.separator();
+        record::record_form(ui, &mut state.record, part, ctx);
+    }
 }
 
 fn build_details(

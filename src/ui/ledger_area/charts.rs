@@ -131,7 +131,7 @@ fn mode_chart(ui: &mut egui::Ui, part: &Part, by_mass: bool) {
             );
             if let Some(target_hz) = part.targets().get(*label) {
                 plot_ui.hline(
-                    HLine::new(format!("{label} target"), *target_hz)
+                    HLine::new("", *target_hz)
                         .color(colour.gamma_multiply(0.8))
                         .style(LineStyle::dashed_loose())
                         .width(1.0),
@@ -139,7 +139,7 @@ fn mode_chart(ui: &mut egui::Ui, part: &Part, by_mass: bool) {
             }
             if by_mass {
                 if let Some(f) = forecasts.iter().find(|f| f.label == *label) {
-                    forecast_marks(plot_ui, label, colour, f);
+                    forecast_marks(plot_ui, colour, f);
                 }
             }
         }
@@ -153,12 +153,7 @@ fn mode_chart(ui: &mut egui::Ui, part: &Part, by_mass: bool) {
     }
 }
 
-fn forecast_marks(
-    plot_ui: &mut egui_plot::PlotUi,
-    label: &str,
-    colour: Color32,
-    f: &crate::ledger::Forecast,
-) {
+fn forecast_marks(plot_ui: &mut egui_plot::PlotUi, colour: Color32, f: &crate::ledger::Forecast) {
     let (low, high) = f.target_mass_range_g;
     let finite = [f.target_mass_g, f.target_hz, low, high]
         .iter()
@@ -166,7 +161,8 @@ fn forecast_marks(
     if !finite {
         return;
     }
-    let name = format!("{label} forecast");
+    // No name: the marks stay out of the legend, beside their mode's line.
+    let name = String::new();
     plot_ui.points(
         Points::new(name.clone(), vec![[f.target_mass_g, f.target_hz]])
             .color(colour)

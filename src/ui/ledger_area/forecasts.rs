@@ -38,7 +38,7 @@ pub fn forecast_lines(f: &Forecast) -> Vec<(String, bool)> {
     if let Some(t) = &f.thickness {
         lines.push((
             format!(
-                "Mean thickness {} mm → about {} mm ({} mm, between {} and {} mm).",
+                "Mean thickness from {} mm to about {} mm ({} mm, between {} and {} mm).",
                 num(t.mean_now_mm, 2),
                 num(t.mean_target_mm, 2),
                 signed(t.change_mm, 2),
@@ -65,7 +65,7 @@ fn method_text(method: &ForecastMethod, from_pass: u32) -> String {
             exponent_std_error,
             passes_used,
         } => format!(
-            "fitted to this part's own {passes_used} passes (frequency ∝ mass^k, k = {} ± {}), starting from pass {from_pass}.",
+            "fitted to this part's own {passes_used} passes (frequency follows mass to the power k, k = {} ± {}), starting from pass {from_pass}.",
             num(*exponent, 2),
             num(*exponent_std_error, 2)
         ),

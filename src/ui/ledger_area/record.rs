@@ -252,33 +252,30 @@ fn take_points_from(form: &mut RecordForm, part: &Part) {
 fn readings_editor(ui: &mut egui::Ui, form: &mut RecordForm) {
     ui.label("Thickness readings (mm)");
     let mut remove = None;
-    egui::Grid::new("readings grid")
-        .num_columns(3)
-        .show(ui, |ui| {
-            for (index, row) in form.readings.iter_mut().enumerate() {
-                let n = index + 1;
-                ui.add(
-                    egui::TextEdit::singleline(&mut row.point)
-                        .hint_text("point")
-                        .desired_width(110.0),
-                )
-                .accessible_name(format!("Point {n}"));
-                ui.add(
-                    egui::TextEdit::singleline(&mut row.thickness_mm)
-                        .hint_text("mm")
-                        .desired_width(60.0),
-                )
-                .accessible_name(format!("Thickness at point {n} (mm)"));
-                if ui
-                    .small_button("Remove")
-                    .accessible_name(format!("Remove reading {n}"))
-                    .clicked()
-                {
-                    remove = Some(index);
-                }
-                ui.end_row();
+    for (index, row) in form.readings.iter_mut().enumerate() {
+        let n = index + 1;
+        ui.horizontal(|ui| {
+            ui.add(
+                egui::TextEdit::singleline(&mut row.point)
+                    .hint_text("point")
+                    .desired_width(120.0),
+            )
+            .accessible_name(format!("Point {n}"));
+            ui.add(
+                egui::TextEdit::singleline(&mut row.thickness_mm)
+                    .hint_text("mm")
+                    .desired_width(60.0),
+            )
+            .accessible_name(format!("Thickness at point {n} (mm)"));
+            if ui
+                .small_button("Remove")
+                .accessible_name(format!("Remove reading {n}"))
+                .clicked()
+            {
+                remove = Some(index);
             }
         });
+    }
     if let Some(index) = remove {
         form.readings.remove(index);
     }

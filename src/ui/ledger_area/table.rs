@@ -16,7 +16,7 @@ const TABLE_MAX_HEIGHT: f32 = 320.0;
 /// "−2.21 Hz −1.29 % −22 ct".
 pub fn change_text(change: &FrequencyChange) -> String {
     format!(
-        "{} Hz {} % {} ct",
+        "{} Hz {}% {} ct",
         signed(change.hz, 2),
         signed(change.percent, 2),
         signed(change.cents, 0)
@@ -56,9 +56,12 @@ pub fn pass_table(
                 .min_col_width(40.0)
                 .spacing([14.0, 4.0])
                 .show(ui, |ui| {
-                    for title in ["Pass", "Time (UTC)", "Mass", "Mean thickness"] {
-                        ui.strong(title);
-                    }
+                    ui.strong("Pass");
+                    ui.strong("Time (UTC)");
+                    ui.strong("Mass");
+                    ui.strong("Thickness").on_hover_text(
+                        "Mean of the pass's thickness readings (point to a value to see them)",
+                    );
                     for label in &labels {
                         ui.strong(*label);
                     }
@@ -70,7 +73,10 @@ pub fn pass_table(
                     }
                 });
         });
-    ui.weak("Newest pass first. Changes: against the previous pass, then against the first.");
+    ui.weak(
+        "Newest pass first. Under each frequency: its change against the previous pass, then \
+         against the first pass (Hz, %, cents).",
+    );
     if let Some(note) = &state.table_note {
         note.show(ui);
     }
@@ -93,7 +99,12 @@ fn pass_row(
     {
         state.selected_pass = if chosen { None } else { Some(number) };
     }
-    ui.monospace(date_text(&pass.time.to_string()));
+    let when = date_text(&pass.time.to_string());
+    let (day, time) = when.split_once(' ').unwrap_or((when.as_str(), ""));
+    ui.vertical(|ui| {
+        ui.add(egui::Label::new(egui::RichText::new(day).monospace()).extend());
+        ui.add(egui::Label::new(egui::RichText::new(time).monospace().size(11.5)).extend());
+    });
     ui.monospace(format!("{} g", num(pass.mass_g, 2)));
     match pass.mean_thickness_mm() {
         Some(mm) => ui
@@ -144,17 +155,20 @@ fn label_cell(
             }
         }
     });
-    let small = |ui: &mut egui::Ui, prefix: &str, change: &Option<FrequencyChange>| {
+    let small = |ui: &mut egui::Ui, against: &str, change: &Option<FrequencyChange>| {
         if let Some(c) = change {
-            ui.label(
-                egui::RichText::new(format!("{prefix} {}", change_text(c)))
-                    .small()
-                    .monospace(),
-            );
+            ui.add(
+                egui::Label::new(egui::RichText::new(change_text(c)).monospace().size(11.5))
+                    .extend(),
+            )
+            .on_hover_text(format!(
+                "{label}: change against {against} (pass {})",
+                c.from_pass
+            ));
         }
     };
-    small(ui, "vs prev", &change.vs_previous);
-    small(ui, "vs first", &change.vs_first);
+    small(ui, "the previous pass", &change.vs_previous);
+    small(ui, "the first pass", &change.vs_first);
 }
 
 fn confirm(
@@ -332,7 +346,7 @@ mod tests {
         };
         assert_eq!(
             change_text(&change),
-            "\u{2212}2.21 Hz \u{2212}1.29 % \u{2212}22 ct"
+            "\u{2212}2.21 Hz \u{2212}1.29% \u{2212}22 ct"
         );
     }
 }
