@@ -99,7 +99,7 @@ fn openings_list(ui: &mut egui::Ui, draft: &mut GeometryDraft) -> bool {
     ui.label("Openings, in mm: diameter, or length × (mean) width");
     let mut remove = None;
     egui::Grid::new("air openings grid")
-        .num_columns(4)
+        .num_columns(6)
         .spacing([6.0, 4.0])
         .show(ui, |ui| {
             for (index, opening) in draft.openings.iter_mut().enumerate() {
@@ -121,19 +121,25 @@ fn openings_list(ui: &mut egui::Ui, draft: &mut GeometryDraft) -> bool {
                     changed = true;
                 }
                 let (first_name, second_name) = opening.kind.size_names();
-                ui.horizontal(|ui| {
-                    changed |= number_field(ui, &mut opening.first_mm)
-                        .accessible_name(format!("Opening {number} {first_name}"))
-                        .on_hover_text(capitalised(first_name))
-                        .changed();
-                    if let Some(second_name) = second_name {
+                // Each size in its own grid cell: a field inside a
+                // horizontal cell is squeezed to the cell's width.
+                changed |= number_field(ui, &mut opening.first_mm)
+                    .accessible_name(format!("Opening {number} {first_name}"))
+                    .on_hover_text(format!("{}, mm", capitalised(first_name)))
+                    .changed();
+                match second_name {
+                    Some(second_name) => {
                         ui.label("×");
                         changed |= number_field(ui, &mut opening.second_mm)
                             .accessible_name(format!("Opening {number} {second_name}"))
-                            .on_hover_text(capitalised(second_name))
+                            .on_hover_text(format!("{}, mm", capitalised(second_name)))
                             .changed();
                     }
-                });
+                    None => {
+                        ui.label("");
+                        ui.label("");
+                    }
+                }
                 if ui
                     .small_button("Remove")
                     .accessible_name(format!("Remove opening {number}"))

@@ -555,8 +555,10 @@ mod tests {
 
     #[test]
     fn iso_model_ignores_unfinished_humidity() {
-        let mut draft = GeometryDraft::default();
-        draft.relative_humidity_pct = "x".to_owned();
+        let mut draft = GeometryDraft {
+            relative_humidity_pct: "x".to_owned(),
+            ..GeometryDraft::default()
+        };
         assert!(draft.to_geometry().is_err());
         draft.sound_model = SpeedOfSoundModel::Iso9613;
         assert!(draft.to_geometry().is_ok());
