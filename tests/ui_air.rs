@@ -174,6 +174,23 @@ fn a_typed_volume_and_opening_give_the_estimate_of_the_acoustics_layer() {
     harness.run_ok();
     let conductances: Vec<_> = harness.query_all_by_label("86.0 mm").collect();
     assert_eq!(conductances.len(), 2, "opening 1 and the total");
+
+    // An oval added beside the round hole: conductances add.
+    harness.get_by_label("Add an oval").click();
+    harness.run_ok();
+    set_field(&mut harness, "Opening 2 length", "60");
+    set_field(&mut harness, "Opening 2 width", "40");
+    let mut two = guitar_geometry();
+    two.volume_m3 = typed_in3 * 16.387_064e-6;
+    two.wall_thickness_mm = 0.0;
+    two.end_correction = EndCorrection::ThinPlate;
+    two.openings.push(Opening::Oval {
+        length_mm: 60.0,
+        width_mm: 40.0,
+    });
+    let expected = estimate_cavity(&two).unwrap();
+    harness.get_by_label(&format!("{:.1} Hz", expected.helmholtz_hz));
+    harness.get_by_label(&format!("{:.1} mm", expected.conductance_m * 1e3));
     no_nan_on_screen(&harness);
 }
 
