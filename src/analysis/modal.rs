@@ -135,12 +135,15 @@ fn maker_for(slot: &mut Option<SpectrumMaker>, fft_len: usize) -> &mut SpectrumM
     slot.get_or_insert_with(|| SpectrumMaker::new(fft_len))
 }
 
-/// A candidate within two bins or one bandwidth of a mode already found.
+/// A candidate within two bins of a mode already found is that mode again.
+/// (Farther away, a peak left in the residual that keeps most of the
+/// original power is a real mode the first fit missed — for example one of
+/// a close pair fitted as a single broad mode — and gets its own estimate
+/// and a joint refinement with its neighbour.)
 fn near_existing(candidate: &Candidate, poles: &[(Pole, f64)], fs: f64, bin_hz: f64) -> bool {
-    poles.iter().any(|(p, _)| {
-        let width = (2.0 * bin_hz).max(p.decay_per_s(fs) / PI);
-        (p.frequency_hz(fs) - candidate.frequency_hz).abs() < width
-    })
+    poles
+        .iter()
+        .any(|(p, _)| (p.frequency_hz(fs) - candidate.frequency_hz).abs() < 2.0 * bin_hz)
 }
 
 /// Measures taps. Keeps its FFT plan and buffers between taps.
@@ -260,10 +263,96 @@ impl TapAnalyzer {
                 break;
             }
             let left = self.residual_spectrum();
+            let split = self.split_misfits(&mut poles, &left);
             candidates = find_candidates(&left, Some(original), &self.settings);
             candidates.retain(|c| !near_existing(c, &poles, self.sample_rate_hz, left.bin_hz));
+            if split && candidates.is_empty() {
+                // Refine the new pairs with their neighbours once more.
+                poles.sort_by(|a, b| a.0.z.arg().total_cmp(&b.0.z.arg()));
+                for group in overlapping_groups(&poles) {
+                    self.refine_group(&mut poles[group]);
+                }
+            }
         }
         poles
+    }
+
+    /// A lone mode whose neighbourhood still stands well above the floor
+    /// after its subtraction may be two modes closer than the record can
+    /// show as two peaks. Fit two there; keep them if they halve the
+    /// residual energy. Returns true if any mode was split.
+    fn split_misfits(&mut self, poles: &mut Vec<(Pole, f64)>, left: &DisplaySpectrum) -> bool {
+        let fs = self.sample_rate_hz;
+        let (low, high) = (
+            left.bin_of_hz(self.settings.band_low_hz),
+            left.bin_of_hz(self.settings.band_high_hz),
+        );
+        if high <= low + 2 {
+            return false;
+        }
+        let floor = median(&left.power[low..=high]);
+        let threshold = floor * 10f32.powf((self.settings.min_above_floor_db / 10.0) as f32);
+        let mut added = Vec::new();
+        for (pole, prominence_db) in poles.iter_mut() {
+            let width_hz = (2.0 * pole.decay_per_s(fs) / PI).max(2.0 * left.bin_hz);
+            let around = left.bin_of_hz(pole.frequency_hz(fs) - width_hz)
+                ..=left.bin_of_hz(pole.frequency_hz(fs) + width_hz);
+            let misfit = left.power[around].iter().any(|&p| p > threshold);
+            if !misfit {
+                continue;
+            }
+            if let Some((first, second)) = self.try_split(pole, true) {
+                *pole = first;
+                added.push((second, *prominence_db));
+            }
+        }
+        let split = !added.is_empty();
+        poles.extend(added);
+        split
+    }
+
+    /// Two-mode fit in place of `pole` (already subtracted from the
+    /// residual if `subtracted`, else only a starting guess); applied to the
+    /// residual and returned when it is clearly better than what was there.
+    fn try_split(&mut self, pole: &Pole, subtracted: bool) -> Option<(Pole, Pole)> {
+        let len = fit_length(pole.tau_samples(), self.residual.len());
+        let mut signal = self.residual[..len].to_vec();
+        if subtracted {
+            add_pole(&mut signal, pole, 1.0, 0.0);
+        }
+        let single_cost: f64 = if subtracted {
+            self.residual[..len].iter().map(|x| x * x).sum()
+        } else {
+            signal.iter().map(|x| x * x).sum()
+        };
+        let offset = (-pole.z.norm().ln()).max(PI / len as f64);
+        let rotate = |p: &Pole, d_omega: f64, gain: Complex64| Pole {
+            z: p.z * Complex64::from_polar(1.0, d_omega),
+            c: p.c * gain,
+        };
+        let initial = [
+            rotate(pole, -offset, Complex64::new(0.7, 0.0)),
+            rotate(pole, offset, Complex64::new(0.0, 0.5)),
+        ];
+        let pair = refine_poles(&signal, &initial)?;
+        let pair_cost = fit_cost(
+            &signal,
+            &pair.iter().flat_map(pole_to_params).collect::<Vec<_>>(),
+        );
+        let sensible = pair
+            .iter()
+            .all(|p| p.z.norm() < 1.0 && p.amplitude() < 3.0 * pole.amplitude())
+            && (pair[0].z.arg() - pair[1].z.arg()).abs() > 0.2 * offset;
+        if !(sensible && pair_cost < SPLIT_GAIN * single_cost) {
+            return None;
+        }
+        if subtracted {
+            add_pole(&mut self.residual, pole, 1.0, self.tail_floor);
+        }
+        for p in &pair {
+            add_pole(&mut self.residual, p, -1.0, self.tail_floor);
+        }
+        Some((pair[0], pair[1]))
     }
 
     /// Estimates one candidate on the residual and subtracts it, if the
@@ -360,6 +449,9 @@ const MIN_DECAY_SAMPLES: usize = 256;
 /// added nor subtracted: they are invisible under the noise, and a mode's
 /// own re-estimate looks only three time constants (26 dB) into its decay.
 const TAIL_BELOW_NOISE: f64 = 0.05;
+/// Two modes replace one only if they leave at most this fraction of the
+/// one-mode residual energy.
+const SPLIT_GAIN: f64 = 0.5;
 /// Passes of group refinement per round.
 const REFINE_SWEEPS: usize = 2;
 /// Rounds of looking again in the residual.
