@@ -221,12 +221,12 @@ fn build_bar(ui: &mut egui::Ui, state: &mut LedgerAreaState, ctx: &mut AreaConte
             ));
             if ctx.build_unsaved {
                 ui.colored_label(ui.visuals().warn_fg_color, "unsaved changes");
-            } else {
+            } else if ctx.build_path.is_some() {
                 ui.weak("all changes saved");
             }
             match ctx.build_path {
                 Some(path) => ui.weak(format!("File: {}", path.display())),
-                None => ui.weak("Not saved to a file yet"),
+                None => ui.weak("not saved to a file yet (Save as… keeps it)"),
             };
         }
         None => {

@@ -332,7 +332,7 @@ pub fn top_against_back(ui: &mut egui::Ui, build: &Build) {
         let semitones = mode5_interval_semitones(&t, &b);
         let direction = if semitones >= 0.0 { "above" } else { "below" };
         ui.label(format!(
-            "Mode 5 interval: {} semitones (the back is {} {} the top)",
+            "Mode 5 interval: {} semitones (the back's mode 5 is {} semitones {} the top's)",
             signed(semitones, 2),
             num(semitones.abs(), 2),
             direction

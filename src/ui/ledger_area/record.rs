@@ -191,7 +191,7 @@ pub fn record_form(ui: &mut egui::Ui, form: &mut RecordForm, part: &Part, ctx: &
                 "optional",
                 90.0,
             );
-            field_row(ui, "Note", &mut form.note, "what was done", 170.0);
+            field_row(ui, "Note", &mut form.note, "what was done", 130.0);
         });
     readings_editor(ui, form);
     let can_record = ctx.pass.is_some();
@@ -349,11 +349,7 @@ fn record(form: &mut RecordForm, part: &Part, ctx: &mut AreaContext) -> Result<(
         input,
         labels,
     });
-    // The app does not save after a recorded pass; ask for it when the
-    // build has a file, so a recorded pass is never only in memory.
-    if ctx.build_path.is_some() {
-        ctx.push(AppCommand::SaveBuild);
-    }
+    // The app saves the build after a recorded pass when it has a file.
     form.awaiting = Some(Awaiting {
         part: part_name,
         mass_g,
