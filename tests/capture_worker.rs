@@ -718,7 +718,10 @@ fn quiet_synthetic_source_gives_levels_and_no_taps() {
             _ => None,
         })
         .collect();
-    assert!(levels.len() >= 3, "{levels:?}");
+    // Steady noise moves the meter by less than 1 dB, so after the first
+    // reading the worker stays quiet until a second has passed (50 ms
+    // readings would otherwise be ten in half a second).
+    assert!(!levels.is_empty() && levels.len() <= 2, "{levels:?}");
     // Gaussian noise of RMS 1e-3 is −60 dBFS (common practice, no source).
     assert!(
         levels.iter().all(|db| (db + 60.0).abs() < 1.5),

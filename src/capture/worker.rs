@@ -17,7 +17,7 @@ use std::thread::JoinHandle;
 use std::time::{Duration, Instant};
 
 use super::device::DeviceOpener;
-use super::events::CaptureEvent;
+use super::events::{CaptureEvent, InputLevel};
 use super::pipeline::TapPipeline;
 use super::replay::{ReplayGenerator, ReplayOpener};
 use super::source::{OpenSource, SampleSource, SourceRead};
@@ -269,6 +269,7 @@ fn run_worker(
         taps_seen: 0,
         dropped_before: 0,
         dropped_reported: 0,
+        last_level_sent: None,
     };
     loop {
         if !worker.announce(source.as_ref()) {
@@ -309,6 +310,10 @@ struct Worker {
     /// Samples dropped by sources already closed.
     dropped_before: u64,
     dropped_reported: u64,
+    /// The last level sent, and when: a level that has not moved is not
+    /// sent again for a while, so an armed input in a quiet room does not
+    /// wake the window five times a second.
+    last_level_sent: Option<(InputLevel, Instant)>,
 }
 
 impl Worker {
@@ -403,8 +408,15 @@ impl Worker {
         source: &dyn SampleSource,
     ) -> bool {
         if let Some(level) = pipeline.take_level() {
-            if !self.outlet.send_droppable(CaptureEvent::Level(level)) {
-                return false;
+            let news = self
+                .last_level_sent
+                .as_ref()
+                .is_none_or(|(last, at)| level_is_news(last, &level, at.elapsed()));
+            if news {
+                self.last_level_sent = Some((level.clone(), Instant::now()));
+                if !self.outlet.send_droppable(CaptureEvent::Level(level)) {
+                    return false;
+                }
             }
         }
         let dropped = self.dropped_before + source.dropped_samples();
@@ -461,5 +473,53 @@ impl Worker {
                 Err(RecvTimeoutError::Timeout) => {}
             }
         }
+    }
+}
+
+/// A level reading worth sending: the meter would visibly move (RMS by
+/// 1 dB or more, peak by 6 dB or more), clipping or recording changed, or
+/// a second has passed since the last one.
+fn level_is_news(last: &InputLevel, level: &InputLevel, since_last: Duration) -> bool {
+    (level.rms_dbfs - last.rms_dbfs).abs() >= 1.0
+        || (level.peak_dbfs - last.peak_dbfs).abs() >= 6.0
+        || level.clipped
+        || level.clipped != last.clipped
+        || level.recording != last.recording
+        || since_last >= Duration::from_secs(1)
+}
+
+#[cfg(test)]
+mod level_news_tests {
+    use super::*;
+
+    fn level(rms_dbfs: f64, peak_dbfs: f64) -> InputLevel {
+        InputLevel {
+            rms_dbfs,
+            peak_dbfs,
+            clipped: false,
+            floor_dbfs: Some(-70.0),
+            recording: false,
+        }
+    }
+
+    #[test]
+    fn steady_noise_is_not_news_until_a_second_passes() {
+        let quiet = level(-70.0, -58.0);
+        let short = Duration::from_millis(200);
+        assert!(!level_is_news(&quiet, &level(-70.4, -56.0), short));
+        assert!(level_is_news(
+            &quiet,
+            &level(-70.4, -56.0),
+            Duration::from_millis(1000)
+        ));
+        assert!(level_is_news(&quiet, &level(-40.0, -20.0), short));
+        assert!(level_is_news(
+            &quiet,
+            &InputLevel {
+                recording: true,
+                ..quiet.clone()
+            },
+            short
+        ));
     }
 }
