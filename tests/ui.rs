@@ -348,7 +348,10 @@ fn recorded_pass_is_saved_at_once_when_the_build_has_a_file() {
     let mut harness = demo_harness();
     demo_finished(&mut harness);
     let app = harness.state_mut();
-    app.queue(AppCommand::NewBuild { name: "Invented viola".into(), family: Family::Viola });
+    app.queue(AppCommand::NewBuild {
+        name: "Invented viola".into(),
+        family: Family::Viola,
+    });
     app.queue(AppCommand::EditBuild {
         description: "adding the back".into(),
         edit: Box::new(|build| {
@@ -358,7 +361,9 @@ fn recorded_pass_is_saved_at_once_when_the_build_has_a_file() {
     });
     app.queue(AppCommand::SaveBuildAs(path.clone()));
     harness.run_ok();
-    step_until(&mut harness, "the first save", |app| !app.is_busy() && path.exists());
+    step_until(&mut harness, "the first save", |app| {
+        !app.is_busy() && path.exists()
+    });
     let modes = harness
         .state()
         .pass()
