@@ -700,7 +700,7 @@ mod tests {
     #[test]
     fn typed_paths_get_their_extension_and_refuse_another() {
         assert_eq!(
-            typed_path(" /tmp/violin ", "ron").unwrap(),
+            typed_path(" /tmp/violin ", "ron").expect("test value"),
             std::path::PathBuf::from("/tmp/violin.ron")
         );
         assert!(typed_path("/tmp/violin.ron", "csv").is_err());

@@ -324,14 +324,19 @@ mod tests {
     fn leaving_a_tap_out_changes_the_average_and_taking_it_back_restores_it() {
         let mut session = ListenSession::default();
         session.replace_taps(demo_taps());
-        let all = session.pass().unwrap().clone();
-        let first_kept = session.taps().iter().find(|t| t.is_kept()).unwrap().index;
+        let all = session.pass().expect("test value").clone();
+        let first_kept = session
+            .taps()
+            .iter()
+            .find(|t| t.is_kept())
+            .expect("test value")
+            .index;
         assert!(session.set_left_out(first_kept, true));
-        let fewer = session.pass().unwrap().clone();
+        let fewer = session.pass().expect("test value").clone();
         assert_eq!(fewer.taps_used + 1, all.taps_used);
         assert_ne!(fewer.spectrum, all.spectrum);
         assert!(session.set_left_out(first_kept, false));
-        assert_eq!(session.pass().unwrap(), &all);
+        assert_eq!(session.pass().expect("test value"), &all);
     }
 
     #[test]
@@ -341,9 +346,14 @@ mod tests {
         // The demo plate's mode 5 is at 338 Hz (src/demo.rs, invented plate).
         let i = mode_near(&session, 338.0).expect("mode near 338 Hz");
         assert!(session.set_label(i, Some("mode 5".into())));
-        let first_kept = session.taps().iter().find(|t| t.is_kept()).unwrap().index;
+        let first_kept = session
+            .taps()
+            .iter()
+            .find(|t| t.is_kept())
+            .expect("test value")
+            .index;
         session.set_left_out(first_kept, true);
-        let j = mode_near(&session, 338.0).unwrap();
+        let j = mode_near(&session, 338.0).expect("test value");
         assert_eq!(session.mode_labels()[j].as_deref(), Some("mode 5"));
         assert_eq!(session.mode_labels().iter().flatten().count(), 1);
     }
@@ -352,8 +362,8 @@ mod tests {
     fn a_label_moves_rather_than_doubles() {
         let mut session = ListenSession::default();
         session.replace_taps(demo_taps());
-        let a = mode_near(&session, 168.0).unwrap();
-        let b = mode_near(&session, 338.0).unwrap();
+        let a = mode_near(&session, 168.0).expect("test value");
+        let b = mode_near(&session, 338.0).expect("test value");
         session.set_label(a, Some("mode 5".into()));
         session.set_label(b, Some("mode 5".into()));
         assert_eq!(session.mode_labels()[a], None);
@@ -367,7 +377,7 @@ mod tests {
         let mut session = ListenSession::default();
         session.replace_taps(demo_taps());
         session.set_taps_to_average(2);
-        assert_eq!(session.pass().unwrap().taps_used, 2);
+        assert_eq!(session.pass().expect("test value").taps_used, 2);
         let kept: Vec<usize> = session
             .taps()
             .iter()
@@ -375,7 +385,7 @@ mod tests {
             .map(|t| t.index)
             .collect();
         assert!(!session.is_averaged(kept[0]));
-        assert!(session.is_averaged(*kept.last().unwrap()));
+        assert!(session.is_averaged(*kept.last().expect("test value")));
     }
 
     #[test]

@@ -522,14 +522,14 @@ mod tests {
     #[test]
     fn the_default_is_the_violin_like_body_and_round_trips() {
         let draft = GeometryDraft::default();
-        let geometry = draft.to_geometry().unwrap();
+        let geometry = draft.to_geometry().expect("test value");
         assert_eq!(geometry.volume_m3, 2.0e-3);
         assert_eq!(geometry.openings.len(), 2);
         assert_eq!(geometry.wall_thickness_mm, 2.5);
         assert_eq!(geometry.air, AirConditions::default());
         let again = GeometryDraft::from_geometry(&geometry)
             .to_geometry()
-            .unwrap();
+            .expect("test value");
         assert!(same_geometry(&geometry, &again));
     }
 
@@ -539,7 +539,7 @@ mod tests {
         draft.set_volume_unit(VolumeUnit::CubicCentimetre);
         assert_eq!(draft.volume, "2000");
         draft.set_volume_unit(VolumeUnit::CubicInch);
-        let volume_m3 = draft.to_geometry().unwrap().volume_m3;
+        let volume_m3 = draft.to_geometry().expect("test value").volume_m3;
         assert!((volume_m3 - 2.0e-3).abs() < 1e-8, "{volume_m3}");
     }
 

@@ -229,7 +229,7 @@ mod tests {
     #[test]
     fn every_sample_build_loads() {
         for index in 0..SAMPLE_BUILDS.len() {
-            let build = load_sample(index).unwrap();
+            let build = load_sample(index).expect("test value");
             assert!(!build.parts().is_empty());
         }
         assert!(load_sample(SAMPLE_BUILDS.len()).is_err());
@@ -243,14 +243,22 @@ mod tests {
 
     #[test]
     fn csv_is_written_whole_or_not_at_all() {
-        let folder = tempfile::tempdir().unwrap();
+        let folder = tempfile::tempdir().expect("test value");
         let path = folder.path().join("t.csv");
-        write_csv(path.clone(), "a,b\n1,2\n").unwrap();
-        assert_eq!(std::fs::read_to_string(&path).unwrap(), "a,b\n1,2\n");
+        write_csv(path.clone(), "a,b\n1,2\n").expect("test value");
+        assert_eq!(
+            std::fs::read_to_string(&path).expect("test value"),
+            "a,b\n1,2\n"
+        );
         let missing = folder.path().join("no such folder").join("t.csv");
         let problem = write_csv(missing, "x").unwrap_err();
         assert!(problem.contains("no such folder"), "{problem}");
         // Only the CSV is left in the folder (no stray temporary file).
-        assert_eq!(std::fs::read_dir(folder.path()).unwrap().count(), 1);
+        assert_eq!(
+            std::fs::read_dir(folder.path())
+                .expect("test value")
+                .count(),
+            1
+        );
     }
 }

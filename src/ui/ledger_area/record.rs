@@ -382,7 +382,7 @@ mod tests {
         assert!(typed_values(&form("")).unwrap_err().contains("mass"));
         assert!(typed_values(&form("0")).unwrap_err().contains("0 g"));
         assert!(typed_values(&form("-2")).is_err());
-        assert_eq!(typed_values(&form("71,5")).unwrap().0, 71.5);
+        assert_eq!(typed_values(&form("71,5")).expect("test value").0, 71.5);
     }
 
     #[test]
@@ -399,7 +399,7 @@ mod tests {
                 thickness_mm: String::new(),
             },
         ];
-        let (_, input) = typed_values(&f).unwrap();
+        let (_, input) = typed_values(&f).expect("test value");
         assert_eq!(input.thickness.len(), 1);
         assert_eq!(input.thickness[0].point, "centre");
         f.readings[0].thickness_mm = "thin".into();
