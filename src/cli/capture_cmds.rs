@@ -6,11 +6,9 @@ use std::time::{Duration, Instant};
 
 use anyhow::{bail, Context};
 
-use super::analyze::parse_band_hz;
+use super::measure::{band_for, MeasureArgs};
 use super::report::ReportInput;
-use crate::analysis::{
-    aggregate_taps, AnalysisSettings, RejectReason, TapAnalysis, TriggerSettings, DEFAULT_A4_HZ,
-};
+use crate::analysis::{aggregate_taps, RejectReason, TapAnalysis};
 use crate::capture::{
     list_input_devices, CaptureEvent, CaptureHandle, CaptureSettings, DeviceInfo, SourceChoice,
 };
@@ -33,27 +31,11 @@ pub struct ListenArgs {
     /// Stop after this many seconds, whatever the count.
     #[arg(long, value_name = "S", default_value_t = 60.0)]
     pub seconds: f64,
-    /// Print one JSON object instead of the table.
-    #[arg(long)]
-    pub json: bool,
     /// Keep each raw tap as a WAV file in this folder (tap_001.wav …).
     #[arg(long, value_name = "DIR")]
     pub save_wav: Option<PathBuf>,
-    /// Frequency band to search, LOW:HIGH in Hz.
-    #[arg(long, value_name = "LOW:HIGH", default_value = "40:4000", value_parser = parse_band_hz)]
-    pub band: (f64, f64),
-    /// At most this many modes.
-    #[arg(long, value_name = "N", default_value_t = 16, value_parser = clap::value_parser!(u16).range(1..=64))]
-    pub max_modes: u16,
-    /// Reference A4 for note names, Hz.
-    #[arg(long, value_name = "HZ", default_value_t = DEFAULT_A4_HZ, value_parser = parse_a4_hz)]
-    pub a4: f64,
-    /// Trigger margin above the noise floor, dB.
-    #[arg(long, value_name = "DB", default_value_t = 20.0)]
-    pub margin_db: f64,
-    /// Record length after each strike, ms.
-    #[arg(long, value_name = "MS", default_value_t = 1000.0)]
-    pub record_ms: f64,
+    #[command(flatten)]
+    pub measure: MeasureArgs,
 }
 
 /// `tapwright devices`: one line per input device, the default marked.
@@ -107,17 +89,27 @@ struct Collected {
 /// `tapwright listen`: capture until enough taps are accepted or time is up,
 /// then print the report.
 pub fn run_listen(args: &ListenArgs) -> anyhow::Result<()> {
-    let settings = listen_settings(args)?;
-    let mut handle =
-        CaptureHandle::start(SourceChoice::Device(args.device.clone()), settings, None)?;
+    let mut settings = listen_settings(args)?;
+    let mut handle = CaptureHandle::start(
+        SourceChoice::Device(args.device.clone()),
+        settings.clone(),
+        None,
+    )?;
     let sample_rate_hz = handle.sample_rate_hz();
     let source = handle.description().to_owned();
-    if args.band.1 >= f64::from(sample_rate_hz) / 2.0 {
-        bail!(
-            "the band's upper edge {} Hz is at or above half the sample rate of {source} ({} Hz)",
-            args.band.1,
-            f64::from(sample_rate_hz) / 2.0
-        );
+    // The band is checked against the rate the device actually gave.
+    let band = band_for(args.measure.band, f64::from(sample_rate_hz), &source)?;
+    if band
+        != (
+            settings.analysis.band_low_hz,
+            settings.analysis.band_high_hz,
+        )
+    {
+        (
+            settings.analysis.band_low_hz,
+            settings.analysis.band_high_hz,
+        ) = band;
+        handle.set_settings(settings)?;
     }
     if let Some(dir) = &args.save_wav {
         std::fs::create_dir_all(dir)
@@ -140,36 +132,18 @@ pub fn run_listen(args: &ListenArgs) -> anyhow::Result<()> {
 }
 
 fn listen_settings(args: &ListenArgs) -> anyhow::Result<CaptureSettings> {
-    if !(args.margin_db.is_finite() && (3.0..=60.0).contains(&args.margin_db)) {
-        bail!(
-            "--margin-db must be between 3 and 60 dB, not {}",
-            args.margin_db
-        );
-    }
-    if !(args.record_ms.is_finite() && (100.0..=10_000.0).contains(&args.record_ms)) {
-        bail!(
-            "--record-ms must be between 100 and 10000 ms, not {}",
-            args.record_ms
-        );
-    }
+    let trigger = args.measure.trigger_settings()?;
     if !(args.seconds.is_finite() && args.seconds > 0.0 && args.seconds <= 86_400.0) {
         bail!(
             "--seconds must be more than 0 and at most 86400, not {}",
             args.seconds
         );
     }
+    // Until the device tells its rate, assume the usual 48 kHz.
+    let analysis = args.measure.analysis_settings(48_000.0, "the input")?;
     Ok(CaptureSettings {
-        trigger: TriggerSettings {
-            margin_db: args.margin_db,
-            record_ms: args.record_ms,
-            ..Default::default()
-        },
-        analysis: AnalysisSettings {
-            band_low_hz: args.band.0,
-            band_high_hz: args.band.1,
-            max_modes: usize::from(args.max_modes),
-            ..Default::default()
-        },
+        trigger,
+        analysis,
         ..Default::default()
     })
 }
@@ -270,7 +244,7 @@ fn print_report(
         bail!(
             "no tap was heard from {source} in {} s: nothing rose {} dB above the background",
             args.seconds,
-            args.margin_db
+            args.measure.margin_db
         );
     }
     if collected.accepted.is_empty() {
@@ -285,16 +259,19 @@ fn print_report(
             reasons.join(", ")
         );
     }
-    let pass = aggregate_taps(collected.accepted.iter(), usize::from(args.max_modes));
+    let pass = aggregate_taps(
+        collected.accepted.iter(),
+        usize::from(args.measure.max_modes),
+    );
     let input = ReportInput {
         source: source.to_owned(),
         sample_rate_hz: f64::from(sample_rate_hz),
-        a4_hz: args.a4,
+        a4_hz: args.measure.a4,
         taps_found: collected.taps_found,
         rejected: collected.rejected.clone(),
         modes: &pass.modes,
     };
-    if args.json {
+    if args.measure.json {
         let text =
             serde_json::to_string_pretty(&input.to_json()).context("formatting the JSON report")?;
         println!("{text}");
@@ -302,17 +279,4 @@ fn print_report(
         print!("{}", input.to_table());
     }
     Ok(())
-}
-
-/// Parses the reference A4 in Hz (380–500), as `analyze` does.
-fn parse_a4_hz(text: &str) -> Result<f64, String> {
-    let hz: f64 = text
-        .trim()
-        .parse()
-        .map_err(|_| format!("'{text}' is not a frequency in Hz"))?;
-    if (380.0..=500.0).contains(&hz) {
-        Ok(hz)
-    } else {
-        Err(format!("A4 of {hz} Hz is outside 380–500 Hz"))
-    }
 }

@@ -5,6 +5,7 @@ mod air;
 mod analyze;
 mod capture_cmds;
 mod ledger_cmd;
+mod measure;
 mod report;
 
 use std::process::ExitCode;
