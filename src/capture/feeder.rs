@@ -14,8 +14,9 @@ use super::{check_sample_rate, ring_capacity_samples, CaptureError, Pacing};
 
 /// Block length the feeder works in (like a device period).
 const FEED_BLOCK_MS: f64 = 5.0;
-/// Sleep while waiting for room (lossless pacing) or data (reads).
-const POLL_SLEEP: Duration = Duration::from_micros(500);
+/// Sleep while waiting for room (lossless pacing) or data (reads): about
+/// one feed block, so a paced source wakes the worker once per block.
+const POLL_SLEEP: Duration = Duration::from_millis(4);
 
 /// Makes samples on demand.
 pub trait SampleGenerator: Send {
