@@ -239,7 +239,7 @@ fn peak_near(spectrum: &DisplaySpectrum, frequency_hz: f64) -> f64 {
 
 /// Grid marks at 1, 2, 5 × 10ⁿ Hz (strong at decades), and at every
 /// integer multiple when zoomed in far.
-fn log_frequency_marks(input: GridInput) -> Vec<GridMark> {
+pub(crate) fn log_frequency_marks(input: GridInput) -> Vec<GridMark> {
     let (min, max) = input.bounds;
     if !(min.is_finite() && max.is_finite()) || max <= min {
         return Vec::new();
@@ -273,7 +273,7 @@ fn log_frequency_marks(input: GridInput) -> Vec<GridMark> {
 }
 
 /// "50", "200", "1k", "2.5k".
-fn frequency_label(frequency_hz: f64) -> String {
+pub(crate) fn frequency_label(frequency_hz: f64) -> String {
     if frequency_hz >= 1000.0 {
         let k = frequency_hz / 1000.0;
         if (k - k.round()).abs() < 1e-6 {

@@ -424,19 +424,7 @@ pub fn fixed(value: f64, decimals: usize) -> String {
     }
 }
 
-/// One sentence: capital first letter, full stop at the end.
-pub fn sentence(text: &str) -> String {
-    let text = text.trim();
-    let mut chars = text.chars();
-    let mut out: String = match chars.next() {
-        Some(first) => first.to_uppercase().chain(chars).collect(),
-        None => String::new(),
-    };
-    if !out.ends_with(['.', '!', '?']) {
-        out.push('.');
-    }
-    out
-}
+pub(crate) use crate::ui::app::sentence;
 
 /// True when two geometries agree to nine significant digits (a geometry
 /// shown as text and read back is not bit-for-bit the same).

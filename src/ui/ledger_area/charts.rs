@@ -6,11 +6,12 @@
 use std::collections::BTreeSet;
 
 use eframe::egui::{self, Color32};
-use egui_plot::{GridInput, GridMark, HLine, Legend, Line, LineStyle, MarkerShape, Plot, Points};
+use egui_plot::{HLine, Legend, Line, LineStyle, MarkerShape, Plot, Points};
 
 use crate::ledger::Part;
 
 use super::{num, LedgerAreaState};
+use crate::ui::spectrum_plot::{frequency_label, log_frequency_marks};
 
 /// Which chart is shown.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Default)]
@@ -287,62 +288,4 @@ fn spectra_chart(ui: &mut egui::Ui, part: &Part, chosen: &mut BTreeSet<u32>) {
             }
         });
     ui.weak("Each pass's averaged spectrum as it was kept with the pass.");
-}
-
-/// Grid marks at 1, 2, 5 × 10ⁿ Hz (more when zoomed in).
-fn log_frequency_marks(input: GridInput) -> Vec<GridMark> {
-    let (min, max) = input.bounds;
-    if !(min.is_finite() && max.is_finite()) || max <= min {
-        return Vec::new();
-    }
-    let steps: &[f64] = if max - min > 1.2 {
-        &[1.0, 2.0, 5.0]
-    } else {
-        &[1.0, 1.5, 2.0, 3.0, 4.0, 5.0, 6.0, 7.0, 8.0, 9.0]
-    };
-    let mut marks = Vec::new();
-    for decade in (min.floor() as i32 - 1)..=(max.ceil() as i32) {
-        for (k, step) in steps.iter().enumerate() {
-            let value = (step * 10f64.powi(decade)).log10();
-            if (min..=max).contains(&value) {
-                let step_size = if k == 0 { 1.0 } else { 0.1 };
-                marks.push(GridMark { value, step_size });
-            }
-        }
-    }
-    marks
-}
-
-/// "50", "200", "1k", "2.5k".
-fn frequency_label(frequency_hz: f64) -> String {
-    if !frequency_hz.is_finite() {
-        return String::new();
-    }
-    if frequency_hz >= 1000.0 {
-        let k = frequency_hz / 1000.0;
-        if (k - k.round()).abs() < 1e-6 {
-            format!("{k:.0}k")
-        } else {
-            format!("{k:.1}k")
-        }
-    } else {
-        format!("{frequency_hz:.0}")
-    }
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn log_marks_fall_on_one_two_five() {
-        let marks = log_frequency_marks(GridInput {
-            bounds: (40f64.log10(), 4000f64.log10()),
-            base_step_size: 0.01,
-        });
-        let hz: Vec<f64> = marks.iter().map(|m| 10f64.powf(m.value).round()).collect();
-        assert!(hz.contains(&50.0) && hz.contains(&100.0) && hz.contains(&2000.0));
-        assert!(!hz.contains(&30.0));
-        assert_eq!(frequency_label(2500.0), "2.5k");
-    }
 }
