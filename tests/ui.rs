@@ -2,58 +2,15 @@
 //! egui_kittest (no GPU, no display): the real app on the demo recording,
 //! taps and modes, labels, leaving a tap out, opening a WAV by path, errors.
 
-use std::time::{Duration, Instant};
+mod common;
+use common::*;
 
 use eframe::egui;
 use egui_kittest::kittest::Queryable;
-use egui_kittest::Harness;
 use tapwright::analysis::synth::{add_modes, NoiseGenerator, SynthMode};
 use tapwright::capture::Pacing;
 use tapwright::ledger::{Family, PartKind};
 use tapwright::ui::{AppCommand, AppOptions, SourceState, StartSource, TapwrightApp};
-
-/// Upper bound on waiting for background work, so a broken build fails
-/// instead of hanging (not a speed check).
-const PATIENCE: Duration = Duration::from_secs(60);
-
-fn harness_with(options: AppOptions) -> Harness<'static, TapwrightApp> {
-    Harness::builder()
-        .with_size(egui::vec2(1280.0, 800.0))
-        .build_ui_state(
-            |ui, app: &mut TapwrightApp| app.show(ui),
-            TapwrightApp::new(options),
-        )
-}
-
-/// The real app on the bundled demo recording, delivered as fast as the
-/// capture worker takes it.
-fn demo_harness() -> Harness<'static, TapwrightApp> {
-    harness_with(AppOptions {
-        source: StartSource::Demo,
-        demo_pacing: Pacing::AsFastAsPossible,
-        ..AppOptions::default()
-    })
-}
-
-fn step_until(
-    harness: &mut Harness<'_, TapwrightApp>,
-    what: &str,
-    done: impl Fn(&TapwrightApp) -> bool,
-) {
-    let deadline = Instant::now() + PATIENCE;
-    while !done(harness.state()) {
-        assert!(Instant::now() < deadline, "gave up waiting for {what}");
-        harness.step();
-        std::thread::sleep(Duration::from_millis(5));
-    }
-    harness.run_ok();
-}
-
-fn demo_finished(harness: &mut Harness<'_, TapwrightApp>) {
-    step_until(harness, "the demo taps", |app| {
-        app.input().state == SourceState::Ended && !app.is_busy()
-    });
-}
 
 fn mode_near(app: &TapwrightApp, frequency_hz: f64) -> Option<(usize, f64)> {
     app.pass()?

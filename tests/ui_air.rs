@@ -7,53 +7,22 @@
 //! Expected values are computed with `tapwright::acoustics` for the same
 //! geometry, or come from `shared/design/references.md` where named.
 
-use std::path::{Path, PathBuf};
-use std::time::{Duration, Instant};
+mod common;
+use common::*;
 
-use eframe::egui;
+use std::path::{Path, PathBuf};
+
 use egui_kittest::kittest::Queryable;
 use egui_kittest::Harness;
 use tapwright::acoustics::{
     compare_with_measured, estimate_cavity, solve_round_diameter_mm, AirConditions, CavityGeometry,
     EndCorrection, Opening,
 };
-use tapwright::capture::Pacing;
-use tapwright::ui::{AppCommand, AppOptions, Area, SourceState, StartSource, TapwrightApp};
-
-/// Upper bound on waiting for background work, so a broken build fails
-/// instead of hanging (not a speed check).
-const PATIENCE: Duration = Duration::from_secs(60);
-
-fn harness() -> Harness<'static, TapwrightApp> {
-    Harness::builder()
-        .with_size(egui::vec2(1280.0, 800.0))
-        .build_ui_state(
-            |ui, app: &mut TapwrightApp| app.show(ui),
-            TapwrightApp::new(AppOptions {
-                source: StartSource::Demo,
-                demo_pacing: Pacing::AsFastAsPossible,
-                ..AppOptions::default()
-            }),
-        )
-}
-
-fn step_until(
-    harness: &mut Harness<'_, TapwrightApp>,
-    what: &str,
-    done: impl Fn(&TapwrightApp) -> bool,
-) {
-    let deadline = Instant::now() + PATIENCE;
-    while !done(harness.state()) {
-        assert!(Instant::now() < deadline, "gave up waiting for {what}");
-        harness.step();
-        std::thread::sleep(Duration::from_millis(5));
-    }
-    harness.run_ok();
-}
+use tapwright::ui::{AppCommand, Area, SourceState, TapwrightApp};
 
 /// A harness showing the Air area.
 fn air_harness() -> Harness<'static, TapwrightApp> {
-    let mut harness = harness();
+    let mut harness = demo_harness();
     harness.run_ok();
     harness.get_by_label("Air").click();
     harness.run_ok();
@@ -357,7 +326,7 @@ fn the_air_check_against_a_typed_a0_shows_cents() {
 
 #[test]
 fn the_air_check_takes_a0_from_listen_or_from_a_body_pass() {
-    let mut harness = harness();
+    let mut harness = demo_harness();
     step_until(&mut harness, "the demo taps", |app| {
         app.input().state == SourceState::Ended && !app.is_busy()
     });

@@ -4,59 +4,16 @@
 //! and a pass recorded from the Listen result; a target and its forecast;
 //! saving, closing and opening again; labels to confirm; refusals inline.
 
-use std::path::Path;
-use std::time::{Duration, Instant};
+mod common;
+use common::*;
 
-use eframe::egui;
+use std::path::Path;
+
 use egui_kittest::kittest::Queryable;
 use egui_kittest::Harness;
-use tapwright::capture::Pacing;
 use tapwright::ledger::{store, Build};
 use tapwright::ui::ledger_area::SAMPLE_BUILDS;
-use tapwright::ui::{AppCommand, AppOptions, SourceState, StartSource, TapwrightApp};
-
-/// Upper bound on waiting for background work, so a broken build fails
-/// instead of hanging (not a speed check).
-const PATIENCE: Duration = Duration::from_secs(60);
-
-fn harness_with(options: AppOptions) -> Harness<'static, TapwrightApp> {
-    Harness::builder()
-        .with_size(egui::vec2(1280.0, 800.0))
-        .build_ui_state(
-            |ui, app: &mut TapwrightApp| app.show(ui),
-            TapwrightApp::new(options),
-        )
-}
-
-/// The real app on the bundled demo recording, delivered as fast as the
-/// capture worker takes it (no sound device needed).
-fn demo_options() -> AppOptions {
-    AppOptions {
-        source: StartSource::Demo,
-        demo_pacing: Pacing::AsFastAsPossible,
-        ..AppOptions::default()
-    }
-}
-
-fn step_until(
-    harness: &mut Harness<'_, TapwrightApp>,
-    what: &str,
-    done: impl Fn(&TapwrightApp) -> bool,
-) {
-    let deadline = Instant::now() + PATIENCE;
-    while !done(harness.state()) {
-        assert!(Instant::now() < deadline, "gave up waiting for {what}");
-        harness.step();
-        std::thread::sleep(Duration::from_millis(5));
-    }
-    harness.run_ok();
-}
-
-fn demo_finished(harness: &mut Harness<'_, TapwrightApp>) {
-    step_until(harness, "the demo taps", |app| {
-        app.input().state == SourceState::Ended && !app.is_busy()
-    });
-}
+use tapwright::ui::{AppCommand, AppOptions, TapwrightApp};
 
 fn click(harness: &mut Harness<'_, TapwrightApp>, label: &str) {
     harness.get_by_label(label).click();
