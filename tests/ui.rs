@@ -216,6 +216,8 @@ fn a_file_that_is_not_a_recording_gives_one_clear_sentence() {
 fn help_has_the_caution_note_and_the_theme_switches() {
     let mut harness = demo_harness();
     harness.run_ok();
+    // A standing pointer to the cautions on every screen.
+    harness.get_by_label_contains("see Help for the cautions");
     harness.get_by_label("Help").click();
     harness.run_ok();
     // NIOSH recommended exposure limit, 85 dBA over 8 h; IARC Group 1 for

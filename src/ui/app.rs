@@ -671,6 +671,8 @@ impl TapwrightApp {
     }
 
     fn draw_status_line(&mut self, ui: &mut egui::Ui) {
+        const CAUTION_LINE: &str =
+            "Keep sound levels low, tools guarded and dust extracted; see Help for the cautions.";
         ui.horizontal(|ui| {
             match &self.status {
                 Some(status) if status.is_error => {
@@ -686,6 +688,9 @@ impl TapwrightApp {
             if self.status.is_some() && ui.small_button("Dismiss").clicked() {
                 self.status = None;
             }
+            ui.with_layout(egui::Layout::right_to_left(egui::Align::Center), |ui| {
+                ui.weak(CAUTION_LINE);
+            });
         });
     }
 
