@@ -476,7 +476,7 @@ fn notify_is_called_for_events() {
     let notify: tapwright::capture::Notify = std::sync::Arc::new(move || {
         seen.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
     });
-    let handle = CaptureHandle::start(
+    let mut handle = CaptureHandle::start(
         SourceChoice::Synthetic {
             taps: taps_at(&[(0.5, 1.0)], Some(2.0), None),
             pacing: Pacing::AsFastAsPossible,
@@ -486,6 +486,9 @@ fn notify_is_called_for_events() {
     )
     .expect("start");
     let events = collect_until(&handle, |_| false);
+    // The worker calls notify just after it sends; joining it makes sure
+    // the call for the last event has happened before counting.
+    handle.stop();
     // Every event (those dropped aside, and none are here) was announced.
     assert_eq!(
         count.load(std::sync::atomic::Ordering::Relaxed),

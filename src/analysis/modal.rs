@@ -742,10 +742,21 @@ fn dft_bins(signal: &[f64], bins: [i64; 3], own: Option<&Pole>) -> [Complex64; 3
     match own {
         None => signal.iter().for_each(|&x| step(x)),
         Some(pole) => {
-            let mut phasor = pole.c * 2.0;
-            for &x in signal {
-                step(x + phasor.re);
-                phasor *= pole.z;
+            // The model in four interleaved phasors (see `add_phasor_sum`).
+            let mut p = [pole.c * 2.0; 4];
+            for lane in 1..4 {
+                p[lane] = p[lane - 1] * pole.z;
+            }
+            let z4 = pole.z.powu(4);
+            let mut chunks = signal.chunks_exact(4);
+            for chunk in chunks.by_ref() {
+                for lane in 0..4 {
+                    step(chunk[lane] + p[lane].re);
+                    p[lane] *= z4;
+                }
+            }
+            for (lane, &x) in chunks.remainder().iter().enumerate() {
+                step(x + p[lane].re);
             }
         }
     }
@@ -756,31 +767,50 @@ fn dft_bins(signal: &[f64], bins: [i64; 3], own: Option<&Pole>) -> [Complex64; 3
 /// away below 1e-7 (−140 dB) of its start or below `floor` (an amplitude
 /// far under the noise, where the tail no longer matters).
 fn add_pole(signal: &mut [f64], pole: &Pole, sign: f64, floor: f64) {
-    let mut phasor = pole.c * (2.0 * sign);
-    let limit = (phasor.norm() * 1e-7).max(floor);
-    for (i, x) in signal.iter_mut().enumerate() {
-        *x += phasor.re;
-        phasor *= pole.z;
-        if i % 256 == 255 && phasor.norm() < limit {
-            break;
+    let start = pole.c * (2.0 * sign);
+    let limit = (start.norm() * 1e-7).max(floor);
+    add_phasor_sum(signal, &[(start, pole.z)], limit);
+}
+
+/// Adds Σ Re(a·zⁿ) over the given (a, z) pairs to the signal, stopping
+/// once every term is below `limit`. Each term runs as four interleaved
+/// phasors stepped by z⁴, so the multiplications do not wait on each
+/// other (a single chained phasor is latency-bound).
+fn add_phasor_sum(signal: &mut [f64], terms: &[(Complex64, Complex64)], limit: f64) {
+    const LANES: usize = 4;
+    let mut lanes: Vec<([Complex64; LANES], Complex64)> = terms
+        .iter()
+        .map(|&(a, z)| {
+            let mut p = [a; LANES];
+            for lane in 1..LANES {
+                p[lane] = p[lane - 1] * z;
+            }
+            (p, z.powu(LANES as u32))
+        })
+        .collect();
+    let mut chunks = signal.chunks_exact_mut(LANES);
+    for (k, chunk) in chunks.by_ref().enumerate() {
+        for (p, step) in lanes.iter_mut() {
+            for lane in 0..LANES {
+                chunk[lane] += p[lane].re;
+                p[lane] *= *step;
+            }
         }
+        if k % 64 == 63 && lanes.iter().all(|(p, _)| p[0].norm() < limit) {
+            return;
+        }
+    }
+    for (lane, x) in chunks.into_remainder().iter_mut().enumerate() {
+        *x += lanes.iter().map(|(p, _)| p[lane].re).sum::<f64>();
     }
 }
 
 /// Replaces one fitted mode by another in the residual, in one pass:
 /// adds 2·Re(c_old·z_oldⁿ) − 2·Re(c_new·z_newⁿ).
 fn replace_pole(signal: &mut [f64], old: &Pole, new: &Pole, floor: f64) {
-    let mut p_old = old.c * 2.0;
-    let mut p_new = new.c * 2.0;
+    let (p_old, p_new) = (old.c * 2.0, new.c * -2.0);
     let limit = (p_old.norm().max(p_new.norm()) * 1e-7).max(floor);
-    for (i, x) in signal.iter_mut().enumerate() {
-        *x += p_old.re - p_new.re;
-        p_old *= old.z;
-        p_new *= new.z;
-        if i % 256 == 255 && p_old.norm().max(p_new.norm()) < limit {
-            break;
-        }
-    }
+    add_phasor_sum(signal, &[(p_old, old.z), (p_new, new.z)], limit);
 }
 
 /// Index ranges of poles (sorted by frequency) whose peaks overlap.
