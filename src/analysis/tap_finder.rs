@@ -492,22 +492,24 @@ impl TapTrigger {
         })
     }
 
+    /// One envelope block of a record under way; `slow_db` is the decay
+    /// envelope (10 ms), which follows low modes without swinging per cycle.
     fn continue_record(
         &mut self,
         mut rec: Recording,
-        level_db: f64,
+        slow_db: f64,
         events: &mut Vec<TriggerEvent>,
     ) -> State {
         rec.blocks += 1;
-        if level_db > rec.peak_db && !self.past_contact(rec.blocks_since_peak, rec.blocks) {
-            rec.peak_db = level_db;
+        if slow_db > rec.peak_db && !self.past_contact(rec.blocks_since_peak, rec.blocks) {
+            rec.peak_db = slow_db;
             rec.blocks_since_peak = 0;
-            rec.min_db_since_peak = level_db;
+            rec.min_db_since_peak = slow_db;
         } else {
             rec.blocks_since_peak += 1;
-            rec.min_db_since_peak = rec.min_db_since_peak.min(level_db);
-            let rise = level_db - rec.min_db_since_peak;
-            let loud = level_db > rec.floor_db + self.settings.margin_db / 2.0;
+            rec.min_db_since_peak = rec.min_db_since_peak.min(slow_db);
+            let rise = slow_db - rec.min_db_since_peak;
+            let loud = slow_db > rec.floor_db + self.settings.margin_db / 2.0;
             if self.past_contact(rec.blocks_since_peak, rec.blocks)
                 && loud
                 && rise > self.settings.double_strike_rise_db
@@ -515,7 +517,7 @@ impl TapTrigger {
                 rec.double = true;
             }
         }
-        if rec.died_after_blocks.is_none() && level_db < rec.floor_db + self.settings.settle_db {
+        if rec.died_after_blocks.is_none() && slow_db < rec.floor_db + self.settings.settle_db {
             rec.died_after_blocks = Some(rec.blocks);
         }
         if rec.samples.len() >= rec.target_len {
@@ -523,7 +525,7 @@ impl TapTrigger {
             events.push(TriggerEvent::Tap(self.close_record(rec)));
             State::Settling {
                 blocks: 0,
-                min_db: level_db,
+                min_db: slow_db,
             }
         } else {
             State::Recording(rec)
