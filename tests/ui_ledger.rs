@@ -343,3 +343,30 @@ fn refusals_are_one_sentence_beside_the_form() {
     click(&mut harness, "Open this file");
     harness.get_by_label_contains("but this needs a .ron file.");
 }
+
+#[test]
+fn the_latest_pass_and_a_part_can_be_taken_out_after_asking() {
+    let mut harness = demo_harness();
+    harness.run_ok();
+    open_sample_violin(&mut harness);
+    click(&mut harness, "Top — top plate, 7 passes");
+    let top_passes = |h: &Harness<'_, TapwrightApp>| build(h).part("Top").map(|p| p.passes().len());
+    assert_eq!(top_passes(&harness), Some(7));
+
+    // Asking first: "No" keeps everything.
+    click(&mut harness, "Undo the latest pass");
+    harness.get_by_label("Take pass 7 out of \"Top\"?");
+    click(&mut harness, "No, keep it");
+    assert_eq!(top_passes(&harness), Some(7));
+
+    click(&mut harness, "Undo the latest pass");
+    click(&mut harness, "Yes, take it out");
+    assert_eq!(top_passes(&harness), Some(6));
+    assert!(harness.state().build_unsaved());
+
+    click(&mut harness, "Top — top plate, 6 passes");
+    click(&mut harness, "Remove this part");
+    click(&mut harness, "Yes, take it out");
+    assert_eq!(top_passes(&harness), None);
+    assert!(build(&harness).part("Back").is_some());
+}

@@ -236,6 +236,11 @@ impl TapwrightApp {
         self.build.as_ref()
     }
 
+    /// True when the open build has changes not saved to its file.
+    pub fn build_unsaved(&self) -> bool {
+        self.build_unsaved
+    }
+
     /// Queues a command as if an area had pushed it; it is applied at the
     /// end of the next frame (for tests and for code driving the window).
     pub fn queue(&mut self, command: AppCommand) {

@@ -53,6 +53,8 @@ pub struct LedgerAreaState {
     details: Option<DetailsForm>,
     /// The add-part form.
     add_part: parts::AddPartForm,
+    /// A removal waiting for the maker's word.
+    pending_removal: Option<parts::Removal>,
     /// The record-a-pass form.
     record: record::RecordForm,
     /// Target frequencies being typed, per (part, label).

@@ -57,6 +57,96 @@ pub struct AddPartForm {
     width_mm: String,
 }
 
+/// Something to take out of the build, once the maker confirms.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub enum Removal {
+    /// The latest pass of the part (a pass recorded by mistake).
+    LatestPass { part: String, pass: u32 },
+    /// The whole part with all its passes.
+    Part(String),
+}
+
+impl Removal {
+    fn question(&self) -> String {
+        match self {
+            Self::LatestPass { part, pass } => format!("Take pass {pass} out of \"{part}\"?"),
+            Self::Part(part) => format!("Remove \"{part}\" and all its passes?"),
+        }
+    }
+}
+
+/// "Undo the latest pass" and "Remove this part", each asking first. The
+/// change is an ordinary build edit: it marks the build unsaved, and the
+/// previous file stays as it was until the maker saves.
+fn removal_buttons(
+    ui: &mut egui::Ui,
+    pending: &mut Option<Removal>,
+    note: &mut Option<Note>,
+    part: &Part,
+    ctx: &mut AreaContext,
+) {
+    if let Some(removal) = pending.clone() {
+        ui.label(removal.question());
+        ui.horizontal(|ui| {
+            if ui.button("Yes, take it out").clicked() {
+                *note = Some(apply_removal(&removal, ctx));
+                *pending = None;
+            }
+            if ui.button("No, keep it").clicked() {
+                *pending = None;
+            }
+        });
+        return;
+    }
+    ui.horizontal(|ui| {
+        if let Some(latest) = part.latest_pass() {
+            if ui.small_button("Undo the latest pass").clicked() {
+                *pending = Some(Removal::LatestPass {
+                    part: part.name().to_owned(),
+                    pass: latest.number(),
+                });
+            }
+        }
+        if ui.small_button("Remove this part").clicked() {
+            *pending = Some(Removal::Part(part.name().to_owned()));
+        }
+    });
+}
+
+fn apply_removal(removal: &Removal, ctx: &mut AreaContext) -> Note {
+    let outcome = match removal.clone() {
+        Removal::LatestPass { part, pass } => {
+            try_edit(ctx, "taking out the latest pass", move |build| {
+                let found = build
+                    .part_mut(&part)
+                    .ok_or_else(|| LedgerError::NoSuchPart(part.clone()))?;
+                match found.latest_pass().map(|p| p.number()) {
+                    Some(latest) if latest == pass => {
+                        found.remove_latest_pass();
+                        Ok(format!(
+                            "Took pass {pass} out of \"{part}\"; save to keep the change."
+                        ))
+                    }
+                    _ => Ok(format!(
+                        "Pass {pass} of \"{part}\" is no longer the latest; nothing was taken out."
+                    )),
+                }
+            })
+        }
+        Removal::Part(part) => try_edit(ctx, "removing the part", move |build| {
+            build.remove_part(&part)?;
+            Ok(format!("Removed \"{part}\"; save to keep the change."))
+        }),
+    };
+    match outcome {
+        Ok(()) => Note::info(match removal {
+            Removal::LatestPass { pass, .. } => format!("Pass {pass} taken out."),
+            Removal::Part(part) => format!("\"{part}\" removed."),
+        }),
+        Err(problem) => Note::error(problem),
+    }
+}
+
 /// The list of parts, with the add-part form under it.
 pub fn part_list(
     ui: &mut egui::Ui,
@@ -95,6 +185,19 @@ pub fn part_list(
         if let Some(part) = ctx.listen_part {
             ui.weak(format!("Listen offers the labels of \"{part}\"."));
         }
+    }
+    if let Some(part) = state
+        .selected_part
+        .as_deref()
+        .and_then(|name| build.part(name))
+    {
+        removal_buttons(
+            ui,
+            &mut state.pending_removal,
+            &mut state.part_note,
+            part,
+            ctx,
+        );
     }
     ui.add_space(4.0);
     add_part_form(ui, state, build, ctx);
