@@ -367,3 +367,33 @@ fn the_demo_opens_with_the_sample_build_when_asked() {
     let plain = demo_harness();
     assert!(plain.state().build().is_none());
 }
+
+#[test]
+fn a_new_band_measures_the_taps_already_heard_again() {
+    let mut harness = demo_harness();
+    demo_finished(&mut harness);
+    assert_eq!(harness.state().pass().unwrap().modes.len(), 7);
+    let mut settings = tapwright::capture::CaptureSettings::default();
+    settings.analysis.band_low_hz = 300.0;
+    settings.analysis.band_high_hz = 600.0;
+    harness.state_mut().queue(AppCommand::Listen(
+        tapwright::ui::ListenCommand::SetSettings(settings),
+    ));
+    harness.run_ok();
+    step_until(&mut harness, "the taps measured again", |app| {
+        !app.is_busy() && app.pass().is_some_and(|p| p.modes.len() == 2)
+    });
+    let modes: Vec<f64> = harness
+        .state()
+        .pass()
+        .unwrap()
+        .modes
+        .iter()
+        .map(|m| m.frequency_hz)
+        .collect();
+    // The invented plate has 338 and 486 Hz in that band (src/demo.rs).
+    assert!(
+        (modes[0] - 338.0).abs() < 0.5 && (modes[1] - 486.0).abs() < 0.5,
+        "{modes:?}"
+    );
+}

@@ -381,6 +381,7 @@ impl TapwrightApp {
                     }
                     Err(problem) => self.set_error(problem),
                 },
+                JobDone::TapsRemeasured(measured) => self.session.replace_measurements(measured),
                 JobDone::Saved(Ok(text)) => self.set_message(text),
                 JobDone::Saved(Err(problem)) => self.set_error(problem),
                 JobDone::BuildLoaded { path, result } => match result {
@@ -863,6 +864,16 @@ impl TapwrightApp {
             ListenCommand::RefreshDevices => self.jobs.spawn("devices", jobs::list_devices),
             ListenCommand::SetSettings(settings) => {
                 self.session.set_max_modes(settings.analysis.max_modes);
+                if settings.analysis != self.settings.analysis {
+                    // The taps already heard are measured again in the new
+                    // band; the trigger settings only apply to new taps.
+                    let records = self.session.measured_records();
+                    if !records.is_empty() {
+                        let analysis = settings.analysis.clone();
+                        self.jobs
+                            .spawn("remeasure", move || jobs::remeasure_taps(records, analysis));
+                    }
+                }
                 if let Some(handle) = &self.capture {
                     if handle.set_settings(settings.clone()).is_err() {
                         self.set_error(

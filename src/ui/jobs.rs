@@ -10,7 +10,9 @@ use std::time::SystemTime;
 use anyhow::Context as _;
 use eframe::egui;
 
-use crate::analysis::{find_taps, AnalysisSettings, TapAnalyzer, TriggerSettings};
+use crate::analysis::{
+    find_taps, AnalysisSettings, FoundTap, TapAnalysis, TapAnalyzer, TriggerSettings,
+};
 use crate::capture::{CaptureError, CaptureHandle, CaptureSettings, DeviceInfo, SourceChoice};
 use crate::ledger::Build;
 
@@ -47,6 +49,9 @@ pub enum JobDone {
         path: PathBuf,
         result: Result<Vec<TapEntry>, String>,
     },
+    /// Taps already heard, measured again with new analysis settings:
+    /// (tap number, new measurement).
+    TapsRemeasured(Vec<(usize, TapAnalysis)>),
     /// A file was written: the sentence to show, or the problem.
     Saved(Result<String, String>),
     /// A build file was read.
@@ -170,6 +175,24 @@ pub fn analyse_recording(
     let result =
         read_and_analyse(&path, &trigger, &analysis).map_err(|e| crate::cli::one_sentence(&e));
     JobDone::RecordingAnalysed { path, result }
+}
+
+/// Measures the given tap records again with `analysis` (after the maker
+/// changed the band or the number of modes).
+pub fn remeasure_taps(records: Vec<(usize, FoundTap, u32)>, analysis: AnalysisSettings) -> JobDone {
+    let mut analyzer: Option<TapAnalyzer> = None;
+    let measured = records
+        .into_iter()
+        .map(|(index, record, sample_rate_hz)| {
+            let fs = f64::from(sample_rate_hz);
+            let analyzer = match &mut analyzer {
+                Some(a) if a.sample_rate_hz() == fs => a,
+                slot => slot.insert(TapAnalyzer::new(analysis.clone(), fs)),
+            };
+            (index, analyzer.analyze(&record))
+        })
+        .collect();
+    JobDone::TapsRemeasured(measured)
 }
 
 fn read_and_analyse(

@@ -180,7 +180,7 @@ fn settings_panel(
             listen(ctx, ListenCommand::SetA4(view.a4_hz));
         }
     });
-    ui.weak("New settings apply to the taps that follow.");
+    ui.weak("A new band or mode count measures the taps again; trigger settings apply to the taps that follow.");
     if changed && view.draft != *facts.settings {
         listen(ctx, ListenCommand::SetSettings(view.draft.clone()));
     }

@@ -167,6 +167,31 @@ impl ListenSession {
         self.recombine();
     }
 
+    /// The records of the measured taps, to measure again with new analysis
+    /// settings: (tap number, record, sample rate).
+    pub fn measured_records(&self) -> Vec<(usize, FoundTap, u32)> {
+        self.taps
+            .iter()
+            .filter(|t| t.analysis.is_some())
+            .map(|t| (t.index, t.record.clone(), t.sample_rate_hz))
+            .collect()
+    }
+
+    /// Puts new measurements on the taps with those numbers (taps that have
+    /// gone meanwhile are skipped) and recombines.
+    pub fn replace_measurements(&mut self, measured: Vec<(usize, TapAnalysis)>) {
+        for (index, analysis) in measured {
+            if let Some(tap) = self
+                .taps
+                .iter_mut()
+                .find(|t| t.index == index && t.analysis.is_some())
+            {
+                tap.analysis = Some(analysis);
+            }
+        }
+        self.recombine();
+    }
+
     /// Changes how many modes a pass keeps.
     pub fn set_max_modes(&mut self, count: usize) {
         self.max_modes = count.max(1);
