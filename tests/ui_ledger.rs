@@ -370,3 +370,32 @@ fn the_latest_pass_and_a_part_can_be_taken_out_after_asking() {
     assert_eq!(top_passes(&harness), None);
     assert!(build(&harness).part("Back").is_some());
 }
+
+#[test]
+fn a_mistyped_mass_can_be_corrected() {
+    let mut harness = demo_harness();
+    harness.run_ok();
+    open_sample_violin(&mut harness);
+    click(&mut harness, "Top — top plate, 7 passes");
+    click(&mut harness, "Pass 7");
+    click(&mut harness, "Correct the mass or note");
+    harness
+        .get_by_label("Corrected mass (g)")
+        .set_text_value_accesskit("0");
+    harness.run_ok();
+    click(&mut harness, "Save the changes to pass 7");
+    // Refused inline; the build keeps its mass.
+    harness.get_by_label("The mass must be a number of grams above 0.");
+    harness
+        .get_by_label("Corrected mass (g)")
+        .set_text_value_accesskit("66.9");
+    harness
+        .get_by_label("Corrected note")
+        .set_text_value_accesskit("Reweighed on the bench scale.");
+    harness.run_ok();
+    click(&mut harness, "Save the changes to pass 7");
+    let top = build(&harness).part("Top").unwrap().clone();
+    let pass = top.pass(7).unwrap();
+    assert_eq!(pass.mass_g, 66.9);
+    assert_eq!(pass.note, "Reweighed on the bench scale.");
+}

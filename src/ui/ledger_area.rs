@@ -55,6 +55,8 @@ pub struct LedgerAreaState {
     add_part: parts::AddPartForm,
     /// A removal waiting for the maker's word.
     pending_removal: Option<parts::Removal>,
+    /// The mass and note of a recorded pass being corrected.
+    pass_edit: Option<table::PassEdit>,
     /// The record-a-pass form.
     record: record::RecordForm,
     /// Target frequencies being typed, per (part, label).

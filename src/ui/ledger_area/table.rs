@@ -5,10 +5,10 @@
 
 use eframe::egui;
 
-use crate::ledger::{FrequencyChange, Part, Pass};
+use crate::ledger::{FrequencyChange, LedgerError, Part, Pass};
 
 use super::super::commands::AreaContext;
-use super::{date_text, num, signed, try_edit, LedgerAreaState, Note};
+use super::{date_text, num, parse_number, signed, try_edit, LedgerAreaState, Note};
 
 /// Tallest the table grows before it scrolls, points.
 const TABLE_MAX_HEIGHT: f32 = 320.0;
@@ -221,6 +221,92 @@ fn air_text(pass: &Pass) -> String {
 
 /// The chosen pass: its modes with their labels (confirm, move, clear, or
 /// put a label on an unlabelled mode), its readings and air.
+/// A recorded pass's mass and note being corrected (a mistyped weight
+/// would throw every forecast off).
+#[derive(Clone, Debug, PartialEq)]
+pub struct PassEdit {
+    part: String,
+    number: u32,
+    mass_text: String,
+    note: String,
+}
+
+fn pass_edit_form(
+    ui: &mut egui::Ui,
+    state: &mut LedgerAreaState,
+    part: &Part,
+    pass: &Pass,
+    ctx: &mut AreaContext,
+) {
+    let number = pass.number();
+    let editing = state
+        .pass_edit
+        .as_ref()
+        .is_some_and(|e| e.part == part.name() && e.number == number);
+    if !editing {
+        if ui.small_button("Correct the mass or note").clicked() {
+            state.pass_edit = Some(PassEdit {
+                part: part.name().to_owned(),
+                number,
+                mass_text: num(pass.mass_g, 2),
+                note: pass.note.clone(),
+            });
+        }
+        return;
+    }
+    let Some(edit) = state.pass_edit.as_mut() else {
+        return;
+    };
+    let mut done = false;
+    ui.horizontal(|ui| {
+        let label = ui.label("Corrected mass (g)");
+        ui.add(egui::TextEdit::singleline(&mut edit.mass_text).desired_width(70.0))
+            .labelled_by(label.id);
+        let label = ui.label("Corrected note");
+        ui.add(egui::TextEdit::singleline(&mut edit.note).desired_width(220.0))
+            .labelled_by(label.id);
+    });
+    ui.horizontal(|ui| {
+        if ui
+            .button(format!("Save the changes to pass {number}"))
+            .clicked()
+        {
+            state.table_note = Some(match apply_pass_edit(edit, ctx) {
+                Ok(()) => {
+                    done = true;
+                    Note::info(format!(
+                        "Pass {number} corrected; save the build to keep it."
+                    ))
+                }
+                Err(problem) => Note::error(problem),
+            });
+        }
+        if ui.button("Cancel").clicked() {
+            done = true;
+        }
+    });
+    if done {
+        state.pass_edit = None;
+    }
+}
+
+fn apply_pass_edit(edit: &PassEdit, ctx: &mut AreaContext) -> Result<(), String> {
+    let mass_g = parse_number(&edit.mass_text, "The mass")?
+        .filter(|m| *m > 0.0)
+        .ok_or_else(|| "The mass must be a number of grams above 0.".to_owned())?;
+    let (part, number, note) = (edit.part.clone(), edit.number, edit.note.trim().to_owned());
+    try_edit(ctx, "correcting the pass", move |build| {
+        let pass = build
+            .part_mut(&part)
+            .and_then(|p| p.pass_mut(number))
+            .ok_or_else(|| LedgerError::NoSuchPart(part.clone()))?;
+        pass.mass_g = mass_g;
+        pass.note = note.clone();
+        build.validate()?;
+        Ok(String::new())
+    })
+}
+
 pub fn pass_details(
     ui: &mut egui::Ui,
     state: &mut LedgerAreaState,
@@ -254,6 +340,7 @@ pub fn pass_details(
             readings_text(pass).replace('\n', "; ")
         ));
     }
+    pass_edit_form(ui, state, part, pass, ctx);
     if pass.modes().is_empty() {
         ui.weak("This pass has no modes.");
         return;
