@@ -464,9 +464,6 @@ const GHOST_RATIO: f32 = 0.1;
 const GROUP_BANDWIDTHS: f64 = 6.0;
 /// At most this many modes in one joint fit.
 const MAX_GROUP: usize = 8;
-/// The first three-bin estimate of a candidate uses this many samples (or 64
-/// periods, if longer) before the record is matched to the decay.
-const FIRST_RECORD_SAMPLES: usize = 8192;
 /// Records for the three-bin estimate span this many time constants.
 const RECORD_TIME_CONSTANTS: f64 = 3.0;
 /// Joint fits span this many time constants of the slowest mode.
@@ -642,12 +639,12 @@ fn min_record_len(omega: f64, available: usize) -> usize {
         .min(available)
 }
 
+/// Three-bin estimate of a new candidate: first over 64 periods, then over
+/// about three time constants of what that found, until the length settles.
 fn initial_estimate(signal: &[f64], omega: f64) -> Option<Pole> {
     let min_len = min_record_len(omega, signal.len());
     let periods_64 = (64.0 * 2.0 * PI / omega.max(1e-6)) as usize;
-    let mut len = periods_64
-        .max(FIRST_RECORD_SAMPLES)
-        .clamp(min_len, signal.len());
+    let mut len = periods_64.clamp(min_len, signal.len());
     let mut pole = three_bin_pole(signal, len, omega, None)?;
     for _ in 0..3 {
         let wanted = (RECORD_TIME_CONSTANTS * pole.tau_samples()).round() as usize;
