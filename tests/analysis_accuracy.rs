@@ -342,8 +342,10 @@ fn close_pairs_are_two_modes() {
 /// A steady tone under a tap (mains hum at 50 Hz, or a 150 Hz harmonic
 /// 20 Hz below a mode) is not reported as a mode, and the tap's modes are
 /// measured as without it (steady tones do not decay: common practice, no
-/// source). Known limit, not covered: with both tones at once a biased
-/// slow "mode" near 150 Hz can appear.
+/// source). Known limit, not covered: a steady tone can still be fitted
+/// as a slowly decaying "mode" (Q in the hundreds) — seen with 50 and
+/// 150 Hz hum together. Telling a tone from a mode needs the sound before
+/// the strike, which the 5 ms pre-trigger is too short to show at 50 Hz.
 #[test]
 fn steady_hum_is_not_a_mode() {
     let truth = [
