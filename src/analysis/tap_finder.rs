@@ -76,7 +76,9 @@ impl fmt::Display for RejectReason {
 pub struct TriggerSettings {
     /// How far above the noise floor a strike must rise.
     pub margin_db: f64,
-    /// How much of the sound before the strike each record keeps.
+    /// How much of the sound before the strike each record keeps: the
+    /// analysis measures the noise there, and tells a steady tone (hum)
+    /// from a mode the strike set ringing.
     pub pre_trigger_ms: f64,
     /// Length of each record after the strike.
     pub record_ms: f64,
@@ -100,7 +102,7 @@ impl Default for TriggerSettings {
     fn default() -> Self {
         Self {
             margin_db: 20.0,
-            pre_trigger_ms: 5.0,
+            pre_trigger_ms: 100.0,
             record_ms: 1000.0,
             refractory_ms: 100.0,
             min_record_ms: 100.0,
