@@ -805,9 +805,36 @@ fn add_phasor_sum(signal: &mut [f64], terms: &[(Complex64, Complex64)], limit: f
 /// Replaces one fitted mode by another in the residual, in one pass:
 /// adds 2·Re(c_old·z_oldⁿ) − 2·Re(c_new·z_newⁿ).
 fn replace_pole(signal: &mut [f64], old: &Pole, new: &Pole, floor: f64) {
-    let (p_old, p_new) = (old.c * 2.0, new.c * -2.0);
-    let limit = (p_old.norm().max(p_new.norm()) * 1e-7).max(floor);
-    add_phasor_sum(signal, &[(p_old, old.z), (p_new, new.z)], limit);
+    const LANES: usize = 4;
+    let limit = (2.0 * old.c.norm().max(new.c.norm()) * 1e-7).max(floor);
+    // The difference of two close damped exponentials is r^n times a term
+    // linear in n: it peaks near one time constant and only falls after
+    // two, so past that point it may stop as soon as it is below `limit`.
+    let settled_after = 2.0 * old.tau_samples().max(new.tau_samples());
+    let mut p_old = [old.c * 2.0; LANES];
+    let mut p_new = [new.c * 2.0; LANES];
+    for lane in 1..LANES {
+        p_old[lane] = p_old[lane - 1] * old.z;
+        p_new[lane] = p_new[lane - 1] * new.z;
+    }
+    let (step_old, step_new) = (old.z.powu(LANES as u32), new.z.powu(LANES as u32));
+    let mut chunks = signal.chunks_exact_mut(LANES);
+    for (k, chunk) in chunks.by_ref().enumerate() {
+        for lane in 0..LANES {
+            chunk[lane] += p_old[lane].re - p_new[lane].re;
+            p_old[lane] *= step_old;
+            p_new[lane] *= step_new;
+        }
+        if k % 64 == 63
+            && (k * LANES) as f64 > settled_after
+            && (0..LANES).all(|lane| (p_old[lane] - p_new[lane]).norm() < limit)
+        {
+            return;
+        }
+    }
+    for (lane, x) in chunks.into_remainder().iter_mut().enumerate() {
+        *x += p_old[lane].re - p_new[lane].re;
+    }
 }
 
 /// Index ranges of poles (sorted by frequency) whose peaks overlap.
