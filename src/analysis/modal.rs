@@ -229,9 +229,13 @@ impl TapAnalyzer {
     /// Spectrum of the analysed decay (or of what is left of it), faded out
     /// from its start, for finding candidate peaks.
     fn residual_spectrum(&mut self) -> DisplaySpectrum {
-        let fft_len = self.residual.len().next_power_of_two().max(1024);
+        // Half a second holds what is left of any mode worth finding; a
+        // longer residual is mostly noise and only costs a bigger FFT.
+        let used = self.residual.len().min(RESIDUAL_SPECTRUM_SAMPLES);
+        let fft_len = used.next_power_of_two().max(1024);
         self.scratch.clear();
-        self.scratch.extend(self.residual.iter().map(|&x| x as f32));
+        self.scratch
+            .extend(self.residual[..used].iter().map(|&x| x as f32));
         maker_for(&mut self.candidate_maker, fft_len).spectrum(
             &self.scratch,
             0,
@@ -443,6 +447,8 @@ impl TapAnalyzer {
     }
 }
 
+/// The residual is searched again over at most this many samples.
+const RESIDUAL_SPECTRUM_SAMPLES: usize = 32_768;
 /// Records shorter than this after the strike give no modes.
 const MIN_DECAY_SAMPLES: usize = 256;
 /// Tails weaker than this fraction of the noise RMS (−26 dB) are neither
