@@ -5,18 +5,15 @@
 
 use std::path::{Path, PathBuf};
 use std::sync::mpsc::{self, Receiver, Sender};
-use std::time::SystemTime;
 
 use anyhow::Context as _;
 use eframe::egui;
 
-use crate::analysis::{
-    find_taps, AnalysisSettings, FoundTap, TapAnalysis, TapAnalyzer, TriggerSettings,
-};
+use crate::analysis::{AnalysisSettings, FoundTap, TapAnalysis, TapAnalyzer, TriggerSettings};
 use crate::capture::{CaptureError, CaptureHandle, CaptureSettings, DeviceInfo, SourceChoice};
 use crate::ledger::Build;
 
-use super::session::TapEntry;
+use super::session::{taps_of_recording, TapEntry};
 
 /// What a file dialog was opened for.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -201,23 +198,12 @@ fn read_and_analyse(
     analysis: &AnalysisSettings,
 ) -> anyhow::Result<Vec<TapEntry>> {
     let recording = crate::wav_io::read_mono(path)?;
-    let fs = f64::from(recording.sample_rate_hz);
-    let mut analyzer = TapAnalyzer::new(analysis.clone(), fs);
-    let taps: Vec<TapEntry> = find_taps(&recording.samples, fs, trigger)
-        .into_iter()
-        .enumerate()
-        .map(|(i, tap)| TapEntry {
-            index: i + 1,
-            onset_s: tap.onset_sample() as f64 / fs,
-            time: SystemTime::now(),
-            peak_dbfs: tap.peak_dbfs,
-            sample_rate_hz: recording.sample_rate_hz,
-            analysis: tap.rejected.is_none().then(|| analyzer.analyze(&tap)),
-            rejected: tap.rejected,
-            record: tap,
-            left_out: false,
-        })
-        .collect();
+    let taps = taps_of_recording(
+        &recording.samples,
+        recording.sample_rate_hz,
+        trigger,
+        analysis,
+    );
     if taps.is_empty() {
         anyhow::bail!(
             "no taps were found in {} (is the trigger margin of {:.0} dB too high for it?)",

@@ -6,7 +6,8 @@
 use std::time::SystemTime;
 
 use crate::analysis::{
-    aggregate_taps, DisplaySpectrum, FoundTap, PassResult, RejectReason, TapAnalysis,
+    aggregate_taps, find_taps, AnalysisSettings, DisplaySpectrum, FoundTap, PassResult,
+    RejectReason, TapAnalysis, TapAnalyzer, TriggerSettings,
 };
 
 /// A label stays on a mode after the pass is recombined if the mode moved
@@ -35,6 +36,33 @@ pub struct TapEntry {
     pub rejected: Option<RejectReason>,
     /// True when the maker left it out by hand.
     pub left_out: bool,
+}
+
+/// Every tap of a whole recording, found and (if accepted) measured, as
+/// entries of the tap list.
+pub fn taps_of_recording(
+    samples: &[f32],
+    sample_rate_hz: u32,
+    trigger: &TriggerSettings,
+    analysis: &AnalysisSettings,
+) -> Vec<TapEntry> {
+    let fs = f64::from(sample_rate_hz);
+    let mut analyzer = TapAnalyzer::new(analysis.clone(), fs);
+    find_taps(samples, fs, trigger)
+        .into_iter()
+        .enumerate()
+        .map(|(i, tap)| TapEntry {
+            index: i + 1,
+            onset_s: tap.onset_sample() as f64 / fs,
+            time: SystemTime::now(),
+            peak_dbfs: tap.peak_dbfs,
+            sample_rate_hz,
+            analysis: tap.rejected.is_none().then(|| analyzer.analyze(&tap)),
+            rejected: tap.rejected,
+            record: tap,
+            left_out: false,
+        })
+        .collect()
 }
 
 impl TapEntry {
@@ -313,28 +341,15 @@ fn near(a_hz: f64, b_hz: f64) -> bool {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::analysis::{find_taps, TriggerSettings};
-    use crate::analysis::{AnalysisSettings, TapAnalyzer};
 
     fn demo_taps() -> Vec<TapEntry> {
         let recording = crate::demo::synthesize_demo_plate();
-        let fs = f64::from(recording.sample_rate_hz);
-        let mut analyzer = TapAnalyzer::new(AnalysisSettings::default(), fs);
-        find_taps(&recording.samples, fs, &TriggerSettings::default())
-            .into_iter()
-            .enumerate()
-            .map(|(i, tap)| TapEntry {
-                index: i + 1,
-                onset_s: tap.onset_sample() as f64 / fs,
-                time: SystemTime::now(),
-                peak_dbfs: tap.peak_dbfs,
-                sample_rate_hz: recording.sample_rate_hz,
-                analysis: tap.rejected.is_none().then(|| analyzer.analyze(&tap)),
-                rejected: tap.rejected,
-                record: tap,
-                left_out: false,
-            })
-            .collect()
+        taps_of_recording(
+            &recording.samples,
+            recording.sample_rate_hz,
+            &TriggerSettings::default(),
+            &AnalysisSettings::default(),
+        )
     }
 
     fn mode_near(session: &ListenSession, hz: f64) -> Option<usize> {
