@@ -10,11 +10,7 @@ use tapwright::acoustics::{
     CavityGeometry, EndCorrection, Opening, SpeedOfSoundModel,
 };
 
-const ALL_END_CORRECTIONS: [EndCorrection; 3] = [
-    EndCorrection::Flanged,
-    EndCorrection::Unflanged,
-    EndCorrection::ThinPlate,
-];
+const ALL_END_CORRECTIONS: [EndCorrection; 4] = EndCorrection::ALL;
 
 fn air(temp_c: f64, relative_humidity_pct: f64) -> AirConditions {
     AirConditions {

@@ -68,7 +68,7 @@ fn open_build(harness: &mut Harness<'_, TapwrightApp>, path: &Path) {
     });
 }
 
-/// 13 L, one round hole Ø 86 mm, 2.5 mm wall, flanged, default air (the
+/// 13 L, one round hole Ø 86 mm, 2.5 mm wall, default end correction and air (the
 /// guitar case of references.md, "Cavity (Helmholtz) resonance").
 fn guitar_geometry() -> CavityGeometry {
     let mut geometry = CavityGeometry::new(13.0e-3, vec![Opening::Round { diameter_mm: 86.0 }]);
@@ -407,7 +407,7 @@ fn the_geometry_is_stored_with_the_build_and_loaded_from_it() {
     assert_eq!(stored.volume_m3, 13.0e-3);
     assert_eq!(stored.openings, vec![Opening::Round { diameter_mm: 86.0 }]);
     assert_eq!(stored.wall_thickness_mm, 2.5);
-    assert_eq!(stored.end_correction, EndCorrection::Flanged);
+    assert_eq!(stored.end_correction, EndCorrection::AcrossWall);
     harness.get_by_label("The build holds the geometry shown here.");
 
     // Changed here, then taken back from the build.

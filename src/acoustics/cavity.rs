@@ -30,14 +30,23 @@
 //! - [`EndCorrection::Unflanged`]: δ = 0.6133a (Levine & Schwinger, Phys.
 //!   Rev. 73:383, 1948), s ≈ 0.781;
 //! - [`EndCorrection::ThinPlate`]: δ = πa/4 (Rayleigh), s = 1, so the
-//!   thin-wall limit is exactly K = 2a and K = πa²/(t + πa/2) in general.
+//!   thin-wall limit is exactly K = 2a and K = πa²/(t + πa/2) in general;
+//! - [`EndCorrection::AcrossWall`] (the default): s goes from Rayleigh's
+//!   orifice value at zero thickness to the flanged-pipe value for a long
+//!   neck, s(t) = 1 + (s_flanged − 1)·(1 − e^(−t/r)), where r is the
+//!   opening's smaller half-size (the radius of a round hole, the half
+//!   width of an oval or slot). The two limits are the sourced values
+//!   above; the exponential between them, with its scale of one half-size,
+//!   is tapwright's own interpolation (no source): a zero-thickness hole
+//!   gives Rayleigh's K = 2a exactly, a neck longer than a few radii the
+//!   flanged-pipe end correction on both ends.
 //!
 //! The same s is applied to ovals and slots: a consistent extension chosen
-//! for tapwright (no separate source), exact for round holes. Note that with
-//! the flanged or unflanged choice a round hole in a wall of zero thickness
+//! for tapwright (no separate source), exact for round holes. With the
+//! flanged or unflanged choice a round hole in a wall of zero thickness
 //! gives K = 2a/s (1.91a flanged), not Rayleigh's 2a; those corrections
-//! describe the end of a neck, and only `ThinPlate` reduces to Rayleigh's
-//! orifice.
+//! describe the end of a neck. `ThinPlate` keeps Rayleigh's orifice value
+//! at every thickness.
 //!
 //! # What is accepted
 //!
@@ -165,6 +174,19 @@ impl Opening {
         }
     }
 
+    /// Half the opening's smaller size, metres: the radius of a round hole,
+    /// the half width of an oval or a slot.
+    pub fn smaller_half_size_m(&self) -> f64 {
+        match *self {
+            Opening::Round { diameter_mm } => 0.5e-3 * diameter_mm,
+            Opening::Oval {
+                length_mm,
+                width_mm,
+            } => 0.5e-3 * length_mm.min(width_mm),
+            Opening::Slot { mean_width_mm, .. } => 0.5e-3 * mean_width_mm,
+        }
+    }
+
     /// Conductance in a wall of zero thickness with Rayleigh's end effects,
     /// metres (see the module notes).
     pub fn thin_wall_conductance_m(&self) -> f64 {
@@ -244,9 +266,13 @@ fn arithmetic_geometric_mean(mut x: f64, mut y: f64) -> f64 {
 /// The end correction used at the openings (see the module notes).
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize)]
 pub enum EndCorrection {
+    /// Rayleigh's orifice value at zero wall thickness, moving to the
+    /// flanged-pipe value (Norris & Sheng 1989) as the wall grows past the
+    /// opening's half-size: right for a thin top and for a thick one.
+    #[default]
+    AcrossWall,
     /// 0.8216a per side (Norris & Sheng 1989): the opening sits in a wide
     /// plate on both faces, as a sound hole in a top does.
-    #[default]
     Flanged,
     /// 0.6133a per side (Levine & Schwinger 1948): the opening ends in free
     /// air, like the end of a tube.
@@ -256,28 +282,52 @@ pub enum EndCorrection {
     ThinPlate,
 }
 
+/// Flanged-pipe end correction per side over the radius (Norris & Sheng,
+/// J. Sound Vib. 135:85, 1989).
+const FLANGED_PER_SIDE_OVER_RADIUS: f64 = 0.8216;
+
 impl EndCorrection {
-    /// End correction per side as a multiple of the radius a.
-    pub fn per_side_over_radius(self) -> f64 {
+    /// Every choice, in the order the window and the command line list them.
+    pub const ALL: [EndCorrection; 4] = [
+        EndCorrection::AcrossWall,
+        EndCorrection::Flanged,
+        EndCorrection::Unflanged,
+        EndCorrection::ThinPlate,
+    ];
+
+    /// End correction per side as a multiple of the radius a, for a wall
+    /// `thickness_over_radius` radii thick.
+    pub fn per_side_over_radius(self, thickness_over_radius: f64) -> f64 {
         match self {
-            EndCorrection::Flanged => 0.8216,
+            EndCorrection::AcrossWall => {
+                let thick = 1.0 - (-thickness_over_radius.max(0.0)).exp();
+                PI / 4.0 + (FLANGED_PER_SIDE_OVER_RADIUS - PI / 4.0) * thick
+            }
+            EndCorrection::Flanged => FLANGED_PER_SIDE_OVER_RADIUS,
             EndCorrection::Unflanged => 0.6133,
             EndCorrection::ThinPlate => PI / 4.0,
         }
     }
 
-    /// Short name used on the command line: "flanged", "unflanged", "thin-plate".
+    /// Short name used on the command line: "across-wall", "flanged",
+    /// "unflanged", "thin-plate".
     pub fn name(self) -> &'static str {
         match self {
+            EndCorrection::AcrossWall => "across-wall",
             EndCorrection::Flanged => "flanged",
             EndCorrection::Unflanged => "unflanged",
             EndCorrection::ThinPlate => "thin-plate",
         }
     }
 
+    /// The choice with this command-line name.
+    pub fn from_name(name: &str) -> Option<EndCorrection> {
+        EndCorrection::ALL.into_iter().find(|c| c.name() == name)
+    }
+
     /// Ratio of this end correction to Rayleigh's orifice value πa/4.
-    fn scale(self) -> f64 {
-        self.per_side_over_radius() / (PI / 4.0)
+    fn scale(self, thickness_over_radius: f64) -> f64 {
+        self.per_side_over_radius(thickness_over_radius) / (PI / 4.0)
     }
 }
 
@@ -290,7 +340,8 @@ pub fn opening_conductance_m(
 ) -> f64 {
     let area_m2 = opening.area_m2();
     let thickness_m = thickness_mm * 1e-3;
-    area_m2 / (thickness_m + end_correction.scale() * area_m2 / opening.thin_wall_conductance_m())
+    let scale = end_correction.scale(thickness_m / opening.smaller_half_size_m());
+    area_m2 / (thickness_m + scale * area_m2 / opening.thin_wall_conductance_m())
 }
 
 /// Rigid-wall Helmholtz frequency f = (c/2π)·√(K/V), Hz.
@@ -322,7 +373,7 @@ pub struct CavityGeometry {
 }
 
 impl CavityGeometry {
-    /// A geometry with thin walls, flanged end correction and default air
+    /// A geometry with thin walls, the across-wall end correction and default air
     /// (20 °C, 50 % RH, 101 325 Pa, Cramer).
     pub fn new(volume_m3: f64, openings: Vec<Opening>) -> Self {
         CavityGeometry {
@@ -574,6 +625,30 @@ mod tests {
         let hole = Opening::Round { diameter_mm: 50.0 };
         let k = opening_conductance_m(&hole, 0.0, EndCorrection::ThinPlate);
         assert!((k - 0.05).abs() < 1e-15);
+    }
+
+    #[test]
+    fn across_wall_default_has_both_limits() {
+        // Rayleigh, The Theory of Sound II: K = 2a for a circular hole in a
+        // wall of zero thickness.
+        let hole = Opening::Round { diameter_mm: 40.0 };
+        let thin = opening_conductance_m(&hole, 0.0, EndCorrection::default());
+        assert!((thin - 0.040).abs() < 1e-15, "{thin}");
+        // A long neck (t = 20a): the flanged-pipe end correction 0.8216a on
+        // each end (Norris & Sheng, J. Sound Vib. 135:85, 1989), within the
+        // e^(−20) left of the interpolation.
+        let (a, t) = (0.020, 0.400);
+        let flanged = PI * a * a / (t + 2.0 * 0.8216 * a);
+        let long = opening_conductance_m(&hole, 400.0, EndCorrection::AcrossWall);
+        assert!((long / flanged - 1.0).abs() < 1e-8, "{long} vs {flanged}");
+        // In between, the end correction lies between the two limits and
+        // grows with the wall.
+        let per_side: Vec<f64> = [0.0, 0.1, 0.5, 1.0, 3.0]
+            .iter()
+            .map(|&x| EndCorrection::AcrossWall.per_side_over_radius(x))
+            .collect();
+        assert!(per_side.windows(2).all(|w| w[0] < w[1]), "{per_side:?}");
+        assert!(per_side[0] == PI / 4.0 && per_side[4] < 0.8216);
     }
 
     #[test]

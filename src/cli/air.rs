@@ -55,8 +55,10 @@ pub struct AirOptions {
         allow_hyphen_values = true
     )]
     pub thickness_mm: String,
-    /// End correction at the openings: flanged, unflanged or thin-plate.
-    #[arg(long, value_name = "MODEL", default_value = "flanged")]
+    /// End correction at the openings: across-wall (Rayleigh's orifice for a
+    /// thin wall, the flanged pipe for a thick one), flanged, unflanged or
+    /// thin-plate.
+    #[arg(long, value_name = "MODEL", default_value = "across-wall")]
     pub end_correction: String,
     /// Air temperature, °C.
     #[arg(
@@ -372,12 +374,11 @@ fn parse_opening(text: &str) -> Result<Opening> {
 }
 
 fn parse_end_correction(text: &str) -> Result<EndCorrection> {
-    match text.trim().to_ascii_lowercase().as_str() {
-        "flanged" => Ok(EndCorrection::Flanged),
-        "unflanged" => Ok(EndCorrection::Unflanged),
-        "thin-plate" => Ok(EndCorrection::ThinPlate),
-        _ => bail!("--end-correction: \"{text}\" is not one of flanged, unflanged or thin-plate"),
-    }
+    EndCorrection::from_name(&text.trim().to_ascii_lowercase()).ok_or_else(|| {
+        anyhow::anyhow!(
+            "--end-correction: \"{text}\" is not one of across-wall, flanged, unflanged or thin-plate"
+        )
+    })
 }
 
 fn parse_sound_model(text: &str) -> Result<SpeedOfSoundModel> {
@@ -704,11 +705,15 @@ fn estimate_lines(geometry: &CavityGeometry, estimate: &CavityEstimate, a4_hz: f
         "  sensitivity          {:+.2} Hz per litre, {:+.3} Hz per °C, {:+.2} Hz per mm of wall thickness",
         s.hz_per_litre, s.hz_per_degree_c, s.hz_per_mm_of_thickness
     ));
-    if geometry.wall_thickness_mm == 0.0 && geometry.end_correction != EndCorrection::ThinPlate {
+    let orifice_limit = matches!(
+        geometry.end_correction,
+        EndCorrection::ThinPlate | EndCorrection::AcrossWall
+    );
+    if geometry.wall_thickness_mm == 0.0 && !orifice_limit {
         lines.push(format!(
             "  note                 with a 0 mm wall the {} end correction gives a round hole K = {:.2}a; --end-correction thin-plate gives Rayleigh's 2a",
             geometry.end_correction.name(),
-            2.0 * std::f64::consts::PI / 4.0 / geometry.end_correction.per_side_over_radius()
+            2.0 * std::f64::consts::PI / 4.0 / geometry.end_correction.per_side_over_radius(0.0)
         ));
     }
     lines

@@ -202,6 +202,7 @@ fn capitalised(text: &str) -> String {
 
 fn end_correction_name(choice: EndCorrection) -> &'static str {
     match choice {
+        EndCorrection::AcrossWall => "thin to thick wall",
         EndCorrection::Flanged => "flanged",
         EndCorrection::Unflanged => "unflanged",
         EndCorrection::ThinPlate => "thin plate",
@@ -210,6 +211,7 @@ fn end_correction_name(choice: EndCorrection) -> &'static str {
 
 fn end_correction_explanation(choice: EndCorrection) -> &'static str {
     match choice {
+        EndCorrection::AcrossWall => "Right for any wall: Rayleigh's thin-plate value at zero thickness (a round hole gives exactly K = 2a), moving to the flanged-pipe value (Norris & Sheng 1989) once the wall is thicker than the hole's half-width.",
         EndCorrection::Flanged => "The hole sits in a wide plate, as a sound hole in a top does: the air moving through it drags 0.82 × its radius of extra air on each side (Norris & Sheng 1989).",
         EndCorrection::Unflanged => "The hole ends in free air, like the open end of a tube: 0.61 × its radius of extra air on each side (Levine & Schwinger 1948).",
         EndCorrection::ThinPlate => "Rayleigh's value for a hole in a thin plate, π/4 × its radius on each side; at zero thickness a round hole gives exactly K = 2a.",
@@ -224,11 +226,7 @@ fn end_correction_picker(ui: &mut egui::Ui, draft: &mut GeometryDraft) -> bool {
             .selected_text(end_correction_name(choice))
             .width(120.0)
             .show_ui(ui, |ui| {
-                for option in [
-                    EndCorrection::Flanged,
-                    EndCorrection::Unflanged,
-                    EndCorrection::ThinPlate,
-                ] {
+                for option in EndCorrection::ALL {
                     ui.selectable_value(&mut choice, option, end_correction_name(option))
                         .on_hover_text(end_correction_explanation(option));
                 }
@@ -237,7 +235,6 @@ fn end_correction_picker(ui: &mut egui::Ui, draft: &mut GeometryDraft) -> bool {
             .labelled_by(label.id);
     });
     ui.weak(end_correction_explanation(choice));
-    ui.weak("Only the thin-plate choice returns Rayleigh's K = 2a for a round hole at zero wall thickness.");
     let changed = choice != draft.end_correction;
     draft.end_correction = choice;
     changed
