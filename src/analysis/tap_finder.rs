@@ -10,12 +10,18 @@
 //!   only while armed;
 //! - trigger when a block rises `margin_db` above the floor; the record starts
 //!   `pre_trigger_ms` before that block and runs `record_ms` after it;
+//! - before anything else, a DC blocker (two first-order high-pass stages at
+//!   5 Hz, started on the first sample) takes out any constant or drifting
+//!   offset of the input, so records, levels and the analysis see only
+//!   sound; clipping is judged on the raw input, where the converter
+//!   clipped;
 //! - reject, with the reason: clipped (two or more consecutive samples at
-//!   ≥ 99 % of full scale), double strike (the envelope rises again by more
-//!   than `double_strike_rise_db` during the decay), too quiet (a rise that
-//!   clears half the margin but never the margin), too short (the record
-//!   ends before `min_record_ms`, or the ringing dies within
-//!   `min_ring_ms`);
+//!   ≥ 99 % of full scale), double strike (sound that the decay so far does
+//!   not foretell arrives during the record; see `onset`: a beating pair
+//!   rises and falls but stays foretold, a second strike does not), too
+//!   quiet (a rise that clears half the margin but never the margin), too
+//!   short (the record ends before `min_record_ms`, or the ringing dies
+//!   within `min_ring_ms`);
 //! - re-arm only after `refractory_ms` and once the envelope is back within
 //!   `settle_db` of the floor (or a new strike clearly starts).
 
@@ -24,13 +30,15 @@ use std::fmt;
 
 use serde::{Deserialize, Serialize};
 
+use super::onset::NoveltyDetector;
+
 /// Why a tap was left out of a pass.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
 #[serde(rename_all = "snake_case")]
 pub enum RejectReason {
     /// Two or more consecutive samples at 99 % of full scale or more.
     Clipped,
-    /// The sound rose again during the decay: a second strike or a rattle.
+    /// New sound arrived during the decay: a second strike or a rattle.
     DoubleStrike,
     /// The strike rose above the noise but not by the trigger margin.
     TooQuiet,
@@ -88,7 +96,8 @@ pub struct TriggerSettings {
     pub min_record_ms: f64,
     /// Ringing shorter than this (back to the floor) is rejected.
     pub min_ring_ms: f64,
-    /// A rise by more than this during the decay is a double strike.
+    /// After a record, a rise by more than this (and past the margin) above
+    /// the lowest level since starts a new tap at once.
     pub double_strike_rise_db: f64,
     /// The envelope must fall back within this of the floor to re-arm.
     pub settle_db: f64,
@@ -171,6 +180,18 @@ const CONTACT_MS: f64 = 4.0;
 const QUIET_RISE_MS: f64 = 300.0;
 /// Full-scale fraction that counts as clipped.
 const CLIP_LEVEL: f32 = 0.99;
+/// Corner of each of the two DC-blocking high-pass stages, Hz: far below
+/// any band a maker measures (a 40 Hz mode loses 0.07 dB), fast enough
+/// (time constant 32 ms) to follow an offset that drifts.
+const DC_BLOCK_HZ: f64 = 5.0;
+/// The search for new sound starts this long after the trigger, when the
+/// first strike's contact is over and only its free decay is left.
+const NEW_SOUND_GUARD_MS: f64 = 5.0;
+/// A block of prediction error this many times (10 dB) its level of a
+/// moment before is new sound. The error of a decay, beating or not, stays
+/// at the room noise and wanders by a dB or two; a second strike, even at a
+/// third of the first's strength, lifts it by 20 dB or more.
+const NEW_SOUND_RATIO: f64 = 10.0;
 /// Averaging time of the slow envelope used to follow the decay: 10 ms
 /// averages the power of any mode above 40 Hz to within about 1 dB
 /// (sin² repeats every half period), where the 1 ms trigger envelope of a
@@ -201,12 +222,10 @@ struct Recording {
     floor_db: f64,
     peak_db: f64,
     blocks_since_peak: usize,
-    min_db_since_peak: f64,
     /// Block index (since onset) at which the envelope first fell back to
     /// the floor, if it has.
     died_after_blocks: Option<usize>,
     blocks: usize,
-    clip_run: usize,
     clipped: bool,
     double: bool,
 }
@@ -261,12 +280,56 @@ impl FloorTracker {
     }
 }
 
+/// Two first-order DC blockers in series, y[n] = x[n] − x[n−1] + R·y[n−1],
+/// each started as if its input had always been the first sample, so a
+/// constant offset gives no start-up transient.
+#[derive(Clone, Debug)]
+struct DcBlocker {
+    pole: f64,
+    previous_in: [f64; 2],
+    previous_out: [f64; 2],
+    started: bool,
+}
+
+impl DcBlocker {
+    fn new(sample_rate_hz: f64) -> Self {
+        Self {
+            pole: (-2.0 * std::f64::consts::PI * DC_BLOCK_HZ / sample_rate_hz).exp(),
+            previous_in: [0.0; 2],
+            previous_out: [0.0; 2],
+            started: false,
+        }
+    }
+
+    fn filter(&mut self, sample: f32) -> f32 {
+        let mut x = f64::from(sample);
+        if !self.started {
+            self.started = true;
+            self.previous_in = [x, 0.0];
+        }
+        for stage in 0..2 {
+            let y = x - self.previous_in[stage] + self.pole * self.previous_out[stage];
+            self.previous_in[stage] = x;
+            self.previous_out[stage] = y;
+            x = y;
+        }
+        x as f32
+    }
+}
+
 /// Streaming tap finder. Feed it samples with [`TapTrigger::push`]; call
 /// [`TapTrigger::finish`] at the end of a recording.
 #[derive(Clone, Debug)]
 pub struct TapTrigger {
     settings: TriggerSettings,
     sample_rate_hz: f64,
+    dc_blocker: DcBlocker,
+    /// Consecutive raw samples at the clip level, and the stream position
+    /// of the last sample of a run of two or more.
+    clip_run: usize,
+    last_clip_at: Option<u64>,
+    novelty: NoveltyDetector,
+    new_sound_guard: usize,
     block_len: usize,
     block_sum_sq: f64,
     block_fill: usize,
@@ -296,6 +359,11 @@ impl TapTrigger {
         let recent_len =
             ((DECAY_ENVELOPE_MS / settings.envelope_ms.max(0.1)).round() as usize).max(1);
         Self {
+            dc_blocker: DcBlocker::new(sample_rate_hz),
+            clip_run: 0,
+            last_clip_at: None,
+            novelty: NoveltyDetector::new(sample_rate_hz),
+            new_sound_guard: ms_to_samples(NEW_SOUND_GUARD_MS, sample_rate_hz),
             recent_powers: VecDeque::with_capacity(recent_len + 1),
             recent_sum: 0.0,
             recent_len,
@@ -326,9 +394,18 @@ impl TapTrigger {
         let floor = std::mem::replace(&mut self.floor, FloorTracker::new(1));
         let state = std::mem::replace(&mut self.state, State::Armed);
         let position = self.position;
+        let dc_blocker = self.dc_blocker.clone();
+        let (clip_run, last_clip_at) = (self.clip_run, self.last_clip_at);
+        let history = std::mem::take(&mut self.history);
         *self = Self::new(settings, self.sample_rate_hz);
         self.floor = floor;
         self.position = position;
+        self.dc_blocker = dc_blocker;
+        (self.clip_run, self.last_clip_at) = (clip_run, last_clip_at);
+        self.history = history;
+        while self.history.len() > self.pre_len + self.block_len {
+            self.history.pop_front();
+        }
         self.state = match state {
             State::Recording(mut rec) => {
                 rec.target_len =
@@ -369,19 +446,24 @@ impl TapTrigger {
         }
     }
 
-    fn push_sample(&mut self, sample: f32, events: &mut Vec<TriggerEvent>) {
+    fn push_sample(&mut self, raw: f32, events: &mut Vec<TriggerEvent>) {
         self.position += 1;
-        if self.history.len() == self.pre_len + self.block_len {
+        self.note_clipping(raw);
+        let sample = self.dc_blocker.filter(raw);
+        if self.history.len() >= self.pre_len + self.block_len {
             self.history.pop_front();
         }
         self.history.push_back(sample);
         if let State::Recording(rec) = &mut self.state {
             rec.samples.push(sample);
-            if sample.abs() >= CLIP_LEVEL {
-                rec.clip_run += 1;
-                rec.clipped |= rec.clip_run >= 2;
-            } else {
-                rec.clip_run = 0;
+            rec.clipped |= self.clip_run >= 2;
+            if rec.samples.len() > rec.onset_index + self.new_sound_guard {
+                if let Some(block) = self.novelty.push(sample) {
+                    let noise_power = 10f64.powf(rec.floor_db / 10.0);
+                    let audible = block.unforetold_power
+                        > noise_power * 10f64.powf(self.settings.margin_db / 20.0);
+                    rec.double |= audible && block.ratio() > NEW_SOUND_RATIO;
+                }
             }
         }
         self.block_sum_sq += f64::from(sample) * f64::from(sample);
@@ -392,6 +474,18 @@ impl TapTrigger {
             self.block_fill = 0;
             let slow_db = self.slow_envelope_db(power);
             self.on_block(power_to_db(power), slow_db, events);
+        }
+    }
+
+    /// Counts raw samples at the clip level: two in a row clip.
+    fn note_clipping(&mut self, raw: f32) {
+        if raw.abs() >= CLIP_LEVEL {
+            self.clip_run += 1;
+            if self.clip_run >= 2 {
+                self.last_clip_at = Some(self.position);
+            }
+        } else {
+            self.clip_run = 0;
         }
     }
 
@@ -466,14 +560,8 @@ impl TapTrigger {
         let record_len = ms_to_samples(self.settings.record_ms, self.sample_rate_hz);
         let mut all = Vec::with_capacity(onset_index + record_len + self.block_len);
         all.extend_from_slice(&samples);
-        let clip_run = samples
-            .iter()
-            .rev()
-            .take_while(|s| s.abs() >= CLIP_LEVEL)
-            .count();
-        let clipped = samples
-            .windows(2)
-            .any(|w| w[0].abs() >= CLIP_LEVEL && w[1].abs() >= CLIP_LEVEL);
+        let clipped = self.last_clip_at.is_some_and(|at| at > start_sample);
+        self.novelty.reset();
         events.push(TriggerEvent::Started {
             onset_sample: start_sample + onset_index as u64,
         });
@@ -485,10 +573,8 @@ impl TapTrigger {
             floor_db,
             peak_db: slow_db,
             blocks_since_peak: 0,
-            min_db_since_peak: slow_db,
             died_after_blocks: None,
             blocks: 1,
-            clip_run,
             clipped,
             double: false,
         })
@@ -496,6 +582,7 @@ impl TapTrigger {
 
     /// One envelope block of a record under way; `slow_db` is the decay
     /// envelope (10 ms), which follows low modes without swinging per cycle.
+    /// (Double strikes are found sample by sample, in `push_sample`.)
     fn continue_record(
         &mut self,
         mut rec: Recording,
@@ -506,18 +593,8 @@ impl TapTrigger {
         if slow_db > rec.peak_db && !self.past_contact(rec.blocks_since_peak, rec.blocks) {
             rec.peak_db = slow_db;
             rec.blocks_since_peak = 0;
-            rec.min_db_since_peak = slow_db;
         } else {
             rec.blocks_since_peak += 1;
-            rec.min_db_since_peak = rec.min_db_since_peak.min(slow_db);
-            let rise = slow_db - rec.min_db_since_peak;
-            let loud = slow_db > rec.floor_db + self.settings.margin_db / 2.0;
-            if self.past_contact(rec.blocks_since_peak, rec.blocks)
-                && loud
-                && rise > self.settings.double_strike_rise_db
-            {
-                rec.double = true;
-            }
         }
         if rec.died_after_blocks.is_none() && slow_db < rec.floor_db + self.settings.settle_db {
             rec.died_after_blocks = Some(rec.blocks);
