@@ -41,8 +41,10 @@ pub struct PassResult {
 /// less than the spacing of distinct low modes.
 const SAME_MODE_RELATIVE: f64 = 0.004;
 
-/// Combines taps into a pass. A mode is kept when at least half of the taps
-/// (and at least one) showed it; `max_modes` keeps the loudest.
+/// Combines taps into a pass. A mode is kept when most of the taps (more
+/// than half) showed it: a resonance of the plate rings in every tap, while
+/// what the strike or the room left in one tap's fit does not come back;
+/// `max_modes` keeps the loudest.
 pub fn aggregate_taps<'a>(
     taps: impl IntoIterator<Item = &'a TapAnalysis>,
     max_modes: usize,
@@ -55,7 +57,7 @@ pub fn aggregate_taps<'a>(
         .flat_map(|(i, t)| t.modes.iter().map(move |m| (i, m)))
         .collect();
     all.sort_by(|a, b| a.1.frequency_hz.total_cmp(&b.1.frequency_hz));
-    let needed = taps.len().div_ceil(2).max(1);
+    let needed = taps.len() / 2 + 1;
     let mut modes: Vec<PassMode> = cluster_by_frequency(&all)
         .into_iter()
         .filter_map(|cluster| combine(&cluster))

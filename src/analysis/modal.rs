@@ -438,12 +438,32 @@ impl TapAnalyzer {
                     && m.q.is_finite()
                     && m.q >= s.min_q
                     && m.q <= s.max_q
+                    && !is_strike_sound(m)
+                    && self.explains_more_than_noise(m)
             })
             .collect();
         drop_duplicates(&mut modes);
+        drop_skirts(&mut modes);
         modes.sort_by(|a, b| b.amplitude.total_cmp(&a.amplitude));
         modes.truncate(s.max_modes);
         modes
+    }
+}
+
+impl TapAnalyzer {
+    /// Model-order test: a mode is kept only if the energy it accounts for
+    /// in the analysed decay is more than four free parameters (amplitude,
+    /// phase, frequency, decay) would soak up from the noise alone, by the
+    /// Bayesian information criterion: ΔRSS > 4·ln(N)·σ² (G. Schwarz,
+    /// "Estimating the dimension of a model", Ann. Statist. 6(2), 1978).
+    fn explains_more_than_noise(&self, mode: &Mode) -> bool {
+        let samples = self.residual.len().max(2) as f64;
+        let noise_power = (self.tail_floor / TAIL_BELOW_NOISE).powi(2);
+        let decay_per_sample = mode.decay_per_s / self.sample_rate_hz;
+        let kept_fraction = 1.0 - (-2.0 * decay_per_sample * samples).exp();
+        let mode_energy =
+            mode.amplitude.powi(2) / 2.0 * kept_fraction / (1.0 - (-2.0 * decay_per_sample).exp());
+        mode_energy > 4.0 * samples.ln() * noise_power
     }
 }
 
@@ -983,6 +1003,40 @@ fn normal_equations(signal: &[f64], params: &[f64]) -> (Vec<f64>, Vec<f64>) {
         }
     }
     (jtj, jtr)
+}
+
+/// Below this Q, a mode that also dies within [`STRIKE_SOUND_S`] is the
+/// strike's own sound (the mallet's click, its first reflections), not a
+/// resonance worth tracking: tapwright's rule, no source. Plate and body
+/// modes a maker tracks ring longer (a body's A0 at 100 Hz with Q 10 has a
+/// time constant of 32 ms; mode 5 of a plate, Q 40–80, of 40 ms or more).
+const STRIKE_SOUND_MAX_Q: f64 = 15.0;
+/// See [`STRIKE_SOUND_MAX_Q`]: a time constant shorter than this.
+const STRIKE_SOUND_S: f64 = 0.015;
+
+fn is_strike_sound(mode: &Mode) -> bool {
+    mode.q < STRIKE_SOUND_MAX_Q && 1.0 / mode.decay_per_s < STRIKE_SOUND_S
+}
+
+/// A broad mode lying under the peak of a narrower, stronger one is the
+/// fit's way of bending that mode's decay where it is not quite
+/// exponential (early reflections from the room, a decay that changes
+/// rate, the strike's own ringing): no resonance of the plate. It is
+/// dropped when its Q is under half its neighbour's, its peak spectral
+/// density A/α is the lower, and the neighbour lies within one and a half
+/// of its bandwidths. (A genuine close pair has similar Q and is kept.)
+fn drop_skirts(modes: &mut Vec<Mode>) {
+    let density = |m: &Mode| m.amplitude / m.decay_per_s.max(1e-12);
+    let is_skirt = |weak: &Mode| {
+        modes.iter().any(|strong| {
+            strong.q > 2.0 * weak.q
+                && density(strong) > density(weak)
+                && (strong.frequency_hz - weak.frequency_hz).abs() < 1.5 * weak.bandwidth_hz()
+        })
+    };
+    let skirts: Vec<bool> = modes.iter().map(is_skirt).collect();
+    let mut flags = skirts.into_iter();
+    modes.retain(|_| !flags.next().unwrap_or(false));
 }
 
 /// Two modes within a tenth of a bandwidth are one mode found twice: keep

@@ -99,6 +99,34 @@ impl NoveltyDetector {
         }
     }
 
+    /// True once a predictor has been fitted to the decay.
+    pub fn has_predictor(&self) -> bool {
+        self.fitted_error.is_some()
+    }
+
+    /// Sum of squared prediction errors of the current predictor over
+    /// `samples` (from the `ORDER`-th on, which have a full past): applied
+    /// to the strike itself, the energy of what set the decay ringing.
+    pub fn unforetold_energy(&self, samples: &[f32]) -> f64 {
+        if self.fitted_error.is_none() || samples.len() <= ORDER {
+            return 0.0;
+        }
+        (ORDER..samples.len())
+            .map(|n| {
+                let error = f64::from(samples[n])
+                    + (0..ORDER)
+                        .map(|k| self.coefficients[k] * f64::from(samples[n - 1 - k]))
+                        .sum::<f64>();
+                error * error
+            })
+            .sum()
+    }
+
+    /// Samples per block.
+    pub fn block_len(&self) -> usize {
+        self.block_len
+    }
+
     /// Forgets everything seen: the next samples start a new decay.
     pub fn reset(&mut self) {
         self.write = 0;

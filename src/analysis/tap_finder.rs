@@ -192,6 +192,13 @@ const NEW_SOUND_GUARD_MS: f64 = 5.0;
 /// at the room noise and wanders by a dB or two; a second strike, even at a
 /// third of the first's strength, lifts it by 20 dB or more.
 const NEW_SOUND_RATIO: f64 = 10.0;
+/// New sound is a second strike when it carries at least this fraction
+/// (−10 dB) of the energy that set the decay ringing, as the same
+/// predictor measures both. An early reflection of the strike from a bench
+/// or a wall (a fifth of its pressure or less at a few milliseconds, from
+/// memory) stays below; a mallet that bounces back at a third of its first
+/// strength is above.
+const SECOND_STRIKE_ENERGY_RATIO: f64 = 0.1;
 /// Averaging time of the slow envelope used to follow the decay: 10 ms
 /// averages the power of any mode above 40 Hz to within about 1 dB
 /// (sin² repeats every half period), where the 1 ms trigger envelope of a
@@ -228,6 +235,11 @@ struct Recording {
     blocks: usize,
     clipped: bool,
     double: bool,
+    /// What set the decay ringing, as the first predictor of the decay
+    /// measures it (None until that predictor is fitted).
+    strike_energy: Option<f64>,
+    /// Unforetold energy of the previous block (a strike may straddle two).
+    previous_block_energy: f64,
 }
 
 /// Running median of block levels by a histogram of 0.25 dB bins.
@@ -458,12 +470,12 @@ impl TapTrigger {
             rec.samples.push(sample);
             rec.clipped |= self.clip_run >= 2;
             if rec.samples.len() > rec.onset_index + self.new_sound_guard {
-                if let Some(block) = self.novelty.push(sample) {
-                    let noise_power = 10f64.powf(rec.floor_db / 10.0);
-                    let audible = block.unforetold_power
-                        > noise_power * 10f64.powf(self.settings.margin_db / 20.0);
-                    rec.double |= audible && block.ratio() > NEW_SOUND_RATIO;
-                }
+                look_for_second_strike(
+                    &mut self.novelty,
+                    rec,
+                    &self.settings,
+                    self.new_sound_guard,
+                );
             }
         }
         self.block_sum_sq += f64::from(sample) * f64::from(sample);
@@ -576,6 +588,8 @@ impl TapTrigger {
             died_after_blocks: None,
             blocks: 1,
             clipped,
+            strike_energy: None,
+            previous_block_energy: 0.0,
             double: false,
         })
     }
@@ -682,6 +696,37 @@ impl TapTrigger {
     fn blocks_to_ms(&self, blocks: usize) -> f64 {
         blocks as f64 * self.block_len as f64 * 1000.0 / self.sample_rate_hz
     }
+}
+
+/// Feeds the newest sample of a record to the second-strike search: once
+/// the decay's first predictor is fitted it measures the strike with it,
+/// and from then on marks the record when a block brings new sound, clearly
+/// above the noise, with a good part of the strike's energy.
+fn look_for_second_strike(
+    novelty: &mut NoveltyDetector,
+    rec: &mut Recording,
+    settings: &TriggerSettings,
+    guard: usize,
+) {
+    let Some(&sample) = rec.samples.last() else {
+        return;
+    };
+    let block = novelty.push(sample);
+    if rec.strike_energy.is_none() && novelty.has_predictor() {
+        let from = rec.onset_index.saturating_sub(guard);
+        let to = (rec.onset_index + guard).min(rec.samples.len());
+        rec.strike_energy = Some(novelty.unforetold_energy(&rec.samples[from..to]));
+    }
+    let (Some(block), Some(strike_energy)) = (block, rec.strike_energy) else {
+        return;
+    };
+    let energy = block.unforetold_power * novelty.block_len() as f64;
+    let burst = energy + rec.previous_block_energy;
+    rec.previous_block_energy = energy;
+    let noise_power = 10f64.powf(rec.floor_db / 10.0);
+    let audible = block.unforetold_power > noise_power * 10f64.powf(settings.margin_db / 20.0);
+    let strong = burst > SECOND_STRIKE_ENERGY_RATIO * strike_energy;
+    rec.double |= audible && strong && block.ratio() > NEW_SOUND_RATIO;
 }
 
 /// Finds every tap in a whole recording.
