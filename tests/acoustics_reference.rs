@@ -192,6 +192,7 @@ fn helmholtz_hand_calculation() {
     //   f = c/(2π)·√(K/V) = 54.6218 · √11.8856 = 188.31 Hz
     let mut geometry = CavityGeometry::new(1e-3, vec![Opening::Round { diameter_mm: 20.0 }]);
     geometry.wall_thickness_mm = 10.0;
+    geometry.end_correction = EndCorrection::Flanged;
     geometry.sound_model = SpeedOfSoundModel::Iso9613;
     let estimate = estimate_cavity(&geometry).unwrap();
     assert!(
