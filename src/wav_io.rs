@@ -49,7 +49,9 @@ pub enum WavError {
         path: PathBuf,
         source: std::io::Error,
     },
-    #[error("{path} is {kind}, not a regular file: save the recording to a file and give its path")]
+    #[error(
+        "{path} is {kind}, not a regular file: save the recording to a file and give its path"
+    )]
     NotRegularFile { path: PathBuf, kind: &'static str },
     #[error("{path} is empty")]
     Empty { path: PathBuf },
@@ -76,7 +78,10 @@ pub enum WavError {
 pub enum SampleEncoding {
     /// Integer PCM: `valid_bits` significant bits at the top of a
     /// `container_bytes`-byte little-endian word (8-bit is unsigned).
-    Int { container_bytes: u8, valid_bits: u16 },
+    Int {
+        container_bytes: u8,
+        valid_bits: u16,
+    },
     /// IEEE float, 32 bits.
     Float32,
     /// IEEE float, 64 bits.
@@ -220,7 +225,7 @@ fn not_regular_kind(file_type: &std::fs::FileType) -> Option<&'static str> {
     {
         use std::os::unix::fs::FileTypeExt;
         if file_type.is_fifo() {
-            return Some("a named pipe");
+            return Some("a pipe");
         }
         if file_type.is_socket() {
             return Some("a socket");
@@ -297,13 +302,21 @@ impl<R: Read> WavStream<R> {
         let channels = usize::from(self.format.channels);
         let scale = 1.0 / channels as f32;
         let frame_bytes = width * channels;
-        out.extend(self.bytes[..frames * frame_bytes].chunks_exact(frame_bytes).map(|frame| {
-            if channels == 1 {
-                encoding.decode(frame)
-            } else {
-                frame.chunks_exact(width).map(|s| encoding.decode(s)).sum::<f32>() * scale
-            }
-        }));
+        out.extend(
+            self.bytes[..frames * frame_bytes]
+                .chunks_exact(frame_bytes)
+                .map(|frame| {
+                    if channels == 1 {
+                        encoding.decode(frame)
+                    } else {
+                        frame
+                            .chunks_exact(width)
+                            .map(|s| encoding.decode(s))
+                            .sum::<f32>()
+                            * scale
+                    }
+                }),
+        );
     }
 
     fn truncated(&self, detail: String) -> WavError {
@@ -404,7 +417,9 @@ fn read_header(reader: &mut impl Read) -> Result<Header, HeaderProblem> {
         _ => return Err(HeaderProblem::NotWav("it does not start with RIFF".into())),
     }
     if &riff[8..12] != b"WAVE" {
-        return Err(HeaderProblem::NotWav("it is a RIFF file but not WAVE".into()));
+        return Err(HeaderProblem::NotWav(
+            "it is a RIFF file but not WAVE".into(),
+        ));
     }
     let mut format = None;
     loop {
@@ -491,7 +506,9 @@ fn parse_fmt(body: &[u8]) -> Result<WavFormat, HeaderProblem> {
         return Err(HeaderProblem::Unsupported(format_tag_name(tag)));
     }
     if channels == 0 {
-        return Err(HeaderProblem::NotWav("its fmt chunk says 0 channels".into()));
+        return Err(HeaderProblem::NotWav(
+            "its fmt chunk says 0 channels".into(),
+        ));
     }
     if block_align == 0 || block_align % channels != 0 {
         return Err(HeaderProblem::NotWav(format!(

@@ -47,7 +47,7 @@ fn parse_taps(text: &str) -> Result<u32, String> {
 fn parse_seconds(text: &str) -> Result<f64, String> {
     match text.trim().parse::<f64>() {
         Ok(s) if s.is_finite() && s > 0.0 && s <= 86_400.0 => Ok(s),
-        Ok(s) => Err(format!("{s} s is outside more than 0 to 86400 s")),
+        Ok(s) => Err(format!("{s} s is not more than 0 and at most 86400 s")),
         Err(_) => Err(format!(
             "'{text}' is not a number of seconds; give more than 0, at most 86400"
         )),
@@ -222,12 +222,10 @@ fn collect_taps(handle: &mut CaptureHandle, args: &ListenArgs) -> anyhow::Result
             CaptureEvent::DeviceLost { message } => note(&format!("tapwright: {message}.")),
             CaptureEvent::Retrying {
                 attempt, delay_ms, ..
-            } => {
-                note(&format!(
-                    "tapwright: trying the input again in {:.1} s (attempt {attempt}).",
-                    delay_ms as f64 / 1000.0
-                ))
-            }
+            } => note(&format!(
+                "tapwright: trying the input again in {:.1} s (attempt {attempt}).",
+                delay_ms as f64 / 1000.0
+            )),
             CaptureEvent::Status { message } => note(&format!("tapwright: {message}.")),
             CaptureEvent::SourceEnded => break,
             CaptureEvent::SourceStarted { .. }

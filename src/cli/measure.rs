@@ -41,7 +41,7 @@ impl MeasureArgs {
         }
     }
 
-/// Analysis settings for a source at `sample_rate_hz` (named `source`
+    /// Analysis settings for a source at `sample_rate_hz` (named `source`
     /// in the error when the band does not fit it).
     pub fn analysis_settings(
         &self,
@@ -152,7 +152,9 @@ pub fn parse_count(text: &str, range: std::ops::RangeInclusive<u32>) -> Result<u
     match text.trim().parse::<i64>() {
         Ok(value) if (i64::from(*low)..=i64::from(*high)).contains(&value) => Ok(value as u32),
         Ok(value) => Err(format!("{value} is outside {low} to {high}")),
-        Err(_) => Err(format!("'{text}' is not a whole number from {low} to {high}")),
+        Err(_) => Err(format!(
+            "'{text}' is not a whole number from {low} to {high}"
+        )),
     }
 }
 

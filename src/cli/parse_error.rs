@@ -38,7 +38,9 @@ pub fn one_sentence(error: &clap::Error, command: &str) -> String {
             format!("tapwright has no command '{word}'{suggestion}; see tapwright --help")
         }
         ErrorKind::MissingRequiredArgument => {
-            let missing = context(ContextKind::InvalidArg).unwrap_or_default();
+            let missing = context(ContextKind::InvalidArg)
+                .unwrap_or_default()
+                .replace(['<', '>'], "");
             format!("{command} needs {missing}; {see_help}")
         }
         ErrorKind::ArgumentConflict => {
