@@ -392,3 +392,61 @@ fn refuses_what_is_not_a_regular_file() {
         assert!(error.to_string().contains("pipe.wav"));
     }
 }
+
+#[test]
+fn a_long_file_read_in_blocks_gives_what_the_whole_file_gives() {
+    use tapwright::analysis::synth::NoiseGenerator;
+    use tapwright::analysis::RecordingAnalyzer;
+    use tapwright::wav_io::WavStream;
+    // Ten minutes at 16 kHz, quiet but for four taps, the last near the end.
+    const FS: u32 = 16_000;
+    let fs = f64::from(FS);
+    let mut x = vec![0.0; 600 * FS as usize];
+    for at_s in [2.0, 150.0, 420.0, 597.5] {
+        add_modes(
+            &mut x,
+            fs,
+            (at_s * fs) as usize,
+            &[
+                SynthMode::new(210.0, 40.0, 0.3),
+                SynthMode::new(530.0, 50.0, 0.2),
+            ],
+        );
+    }
+    let mut noise = NoiseGenerator::new(7);
+    for v in &mut x {
+        *v += 1e-4 * noise.gaussian();
+    }
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("ten_minutes.wav");
+    let spec = hound::WavSpec {
+        channels: 1,
+        sample_rate: FS,
+        bits_per_sample: 16,
+        sample_format: hound::SampleFormat::Int,
+    };
+    write(&path, spec, &x);
+    drop(x);
+
+    let trigger = TriggerSettings::default();
+    let analysis = AnalysisSettings::default();
+    let whole = read_mono(&path).unwrap();
+    let in_memory = analyze_recording(&whole.samples, fs, &trigger, &analysis);
+    drop(whole);
+
+    let mut stream = WavStream::open(&path).unwrap();
+    assert_eq!(stream.frames_total(), 600 * u64::from(FS));
+    let mut analyzer = RecordingAnalyzer::new(&trigger, &analysis, fs);
+    let mut block = Vec::new();
+    // An odd block length, so taps straddle blocks.
+    while stream.read_block(&mut block, 10_007).unwrap() > 0 {
+        analyzer.push(&block);
+    }
+    let streamed = analyzer.finish();
+
+    assert_eq!(streamed.taps.len(), 4, "{:?}", streamed.taps);
+    assert_eq!(streamed.taps_used(), 4);
+    assert!((streamed.taps[3].onset_s - 597.5).abs() < 0.01);
+    assert!((streamed.duration_s - 600.0).abs() < 1e-9);
+    assert_eq!(streamed, in_memory);
+}
