@@ -575,7 +575,7 @@ fn format_tag_name(tag: u16) -> String {
         0x0031 => "GSM 6.10",
         0x0050 => "MPEG audio",
         0x0055 => "MP3",
-        0x0160 | 0x0161 | 0x0162 => "Windows Media Audio",
+        0x0160..=0x0162 => "Windows Media Audio",
         0x2000 => "AC-3",
         0xF1AC => "FLAC",
         _ => return format!("format tag 0x{tag:04X}"),
