@@ -662,4 +662,19 @@ mod tests {
             }
         }
     }
+
+    #[test]
+    fn data_cut_short_is_truncated_after_the_whole_frames() {
+        let dir = tempfile::tempdir().expect("temp dir");
+        let path = dir.path().join("cut.wav");
+        write_mono(&path, 48_000, &[0.25; 1000], true).expect("write");
+        let bytes = std::fs::read(&path).expect("read back");
+        // Keep the header and 100.5 frames of 16-bit mono.
+        let header_len = bytes.len() - 2000;
+        std::fs::write(&path, &bytes[..header_len + 201]).expect("cut");
+        match read_mono(&path) {
+            Err(WavError::Truncated { frames_read, .. }) => assert_eq!(frames_read, 100),
+            other => panic!("{other:?}"),
+        }
+    }
 }
