@@ -289,3 +289,62 @@ fn listen_without_an_input_device_says_so() {
     assert!(last.contains("input"), "{last}");
     assert!(run.stdout.is_empty(), "{}", run.stdout);
 }
+
+#[test]
+fn without_a_sound_card_alsa_prints_nothing_of_its_own() {
+    check_alsa_installed();
+    let home = tempfile::tempdir().expect("temp HOME");
+    // A default device on a card that does not exist: alsa-lib's own
+    // error printing would add lines such as "ALSA lib pcm.c:...".
+    std::fs::write(
+        home.path().join(".asoundrc"),
+        "pcm.!default { type hw card 97 }\n",
+    )
+    .expect("write .asoundrc");
+    for args in [
+        &["devices"][..],
+        &["listen", "--taps", "1", "--seconds", "2"][..],
+    ] {
+        let run = run_tapwright(home.path(), args, Duration::from_secs(60));
+        assert!(
+            !run.stderr.contains("ALSA lib"),
+            "{args:?}:\n{}",
+            run.stderr
+        );
+        for line in run.stderr.lines() {
+            assert!(line.starts_with("tapwright: "), "{args:?}: {line}");
+        }
+    }
+}
+
+#[test]
+fn the_null_device_is_named_for_what_it_is_not_as_losing_samples() {
+    check_alsa_installed();
+    let home = tempfile::tempdir().expect("temp HOME");
+    // ALSA's `null` capture device returns zeros as fast as they are read
+    // (alsa-lib pcm_null.c: it has no clock): far faster than real time,
+    // so the ring overfills at once. That is not sound the computer lost.
+    let run = run_tapwright(
+        home.path(),
+        &[
+            "listen",
+            "--device",
+            "null",
+            "--taps",
+            "1",
+            "--seconds",
+            "2",
+        ],
+        Duration::from_secs(60),
+    );
+    assert_eq!(run.code, Some(2), "stderr:\n{}", run.stderr);
+    assert!(!run.stderr.contains("were lost"), "{}", run.stderr);
+    assert!(
+        run.stderr.contains("faster than real time"),
+        "{}",
+        run.stderr
+    );
+    let last = run.stderr.lines().last().unwrap_or_default();
+    assert!(last.contains("no tap was heard"), "{last}");
+    assert!(run.stdout.is_empty(), "{}", run.stdout);
+}

@@ -291,3 +291,30 @@ fn bad_input_is_one_sentence_and_exit_2() {
     assert_refused(&["--coupled", "100,200"], "--coupled");
     assert_refused(&with_hole(&["--measured-a0-hz", "-5"]), "--measured-a0-hz");
 }
+
+#[test]
+fn the_air_is_checked_even_when_only_the_coupled_correction_is_asked_for() {
+    // -300 °C is below absolute zero (−273.15 °C, SI definition of the
+    // kelvin); it must never be taken in silence.
+    assert_refused(
+        &["--coupled", "100,200,180", "--temp-c", "-300"],
+        "--temp-c",
+    );
+    assert_refused(&["--coupled", "100,200,180", "--rh", "140"], "--rh");
+    assert_refused(
+        &[
+            "--volume-l",
+            "13",
+            "--opening",
+            "round:86",
+            "--temp-c",
+            "-300",
+            "--sound-model",
+            "iso9613",
+        ],
+        "--temp-c",
+    );
+    // The same correction with sensible air still works.
+    let output = air(&["--coupled", "100,200,180", "--temp-c", "22"]);
+    assert_eq!(output.status.code(), Some(0), "{}", stderr(&output));
+}

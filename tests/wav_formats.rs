@@ -177,3 +177,276 @@ fn wav_header_bytes(format_tag: u16, bits: u16, rate: u32, data_len: u32) -> Vec
     b.extend(std::iter::repeat_n(0u8, data_len as usize));
     b
 }
+
+/// A RIFF/WAVE file from its `fmt ` chunk body, any chunks to put between
+/// `fmt ` and `data` (id, body; an odd body gets its pad byte), and the
+/// sample bytes.
+fn riff_wave(fmt: &[u8], extra_chunks: &[(&[u8; 4], &[u8])], data: &[u8]) -> Vec<u8> {
+    let mut body = Vec::new();
+    body.extend_from_slice(b"WAVE");
+    let mut chunk = |id: &[u8; 4], bytes: &[u8]| {
+        body.extend_from_slice(id);
+        body.extend_from_slice(&(bytes.len() as u32).to_le_bytes());
+        body.extend_from_slice(bytes);
+        if bytes.len() % 2 == 1 {
+            body.push(0); // the pad byte after a chunk of odd length
+        }
+    };
+    chunk(b"fmt ", fmt);
+    for (id, bytes) in extra_chunks {
+        chunk(id, bytes);
+    }
+    chunk(b"data", data);
+    let mut file = Vec::new();
+    file.extend_from_slice(b"RIFF");
+    file.extend_from_slice(&(body.len() as u32).to_le_bytes());
+    file.extend_from_slice(&body);
+    file
+}
+
+/// A 16-byte (WAVEFORMAT) or 40-byte (WAVEFORMATEXTENSIBLE) fmt body.
+/// Layout from Microsoft's WAVEFORMATEX / WAVEFORMATEXTENSIBLE structures
+/// (mmreg.h; from memory).
+fn fmt_body(
+    tag: u16,
+    channels: u16,
+    rate: u32,
+    container_bits: u16,
+    extensible: Option<(u16, u16)>,
+) -> Vec<u8> {
+    let block_align = channels * container_bits / 8;
+    let mut b = Vec::new();
+    let stored_tag = if extensible.is_some() { 0xFFFE } else { tag };
+    b.extend_from_slice(&stored_tag.to_le_bytes());
+    b.extend_from_slice(&channels.to_le_bytes());
+    b.extend_from_slice(&rate.to_le_bytes());
+    b.extend_from_slice(&(rate * u32::from(block_align)).to_le_bytes());
+    b.extend_from_slice(&block_align.to_le_bytes());
+    b.extend_from_slice(&container_bits.to_le_bytes());
+    if let Some((valid_bits, sub_tag)) = extensible {
+        b.extend_from_slice(&22u16.to_le_bytes());
+        b.extend_from_slice(&valid_bits.to_le_bytes());
+        b.extend_from_slice(&0x4u32.to_le_bytes()); // front centre
+                                                    // KSDATAFORMAT_SUBTYPE_*: sub_tag-0000-0010-8000-00aa00389b71.
+        b.extend_from_slice(&u32::from(sub_tag).to_le_bytes());
+        b.extend_from_slice(&[
+            0x00, 0x00, 0x10, 0x00, 0x80, 0x00, 0x00, 0xAA, 0x00, 0x38, 0x9B, 0x71,
+        ]);
+    }
+    b
+}
+
+/// The tap signal as 24-bit values.
+fn as_i24(signal: &[f64]) -> Vec<i32> {
+    signal
+        .iter()
+        .map(|v| (v * 8_388_607.0).round() as i32)
+        .collect()
+}
+
+fn assert_close_to(
+    recording: &tapwright::wav_io::MonoRecording,
+    signal: &[f64],
+    tolerance: f64,
+    what: &str,
+) {
+    assert_eq!(recording.samples.len(), signal.len(), "{what}");
+    let worst = recording
+        .samples
+        .iter()
+        .zip(signal)
+        .map(|(a, b)| (f64::from(*a) - b).abs())
+        .fold(0.0, f64::max);
+    assert!(worst < tolerance, "{what}: worst sample error {worst}");
+}
+
+#[test]
+fn reads_24_bit_samples_in_32_bit_extensible_words() {
+    // WAVE_FORMAT_EXTENSIBLE puts the valid bits at the top of the
+    // container and zero in the rest (Microsoft, "Multiple channel audio
+    // data and WAVE files"; from memory).
+    let dir = tempfile::tempdir().unwrap();
+    let signal = tap_signal(48_000, 1.5);
+    let data: Vec<u8> = as_i24(&signal)
+        .iter()
+        .flat_map(|&v| (v << 8).to_le_bytes())
+        .collect();
+    let path = dir.path().join("24_in_32.wav");
+    std::fs::write(
+        &path,
+        riff_wave(&fmt_body(1, 1, 48_000, 32, Some((24, 1))), &[], &data),
+    )
+    .unwrap();
+    let recording = read_mono(&path).unwrap();
+    assert_close_to(&recording, &signal, 2e-7, "24 in 32");
+    // Nothing near full scale: the old misreading made every sample clip.
+    assert!(recording.samples.iter().all(|s| s.abs() < 0.6));
+}
+
+#[test]
+fn skips_the_pad_byte_after_an_odd_chunk() {
+    let dir = tempfile::tempdir().unwrap();
+    let signal = tap_signal(44_100, 1.5);
+    let data: Vec<u8> = signal
+        .iter()
+        .flat_map(|v| ((v * 32_767.0).round() as i16).to_le_bytes())
+        .collect();
+    let path = dir.path().join("odd_chunk.wav");
+    let note: &[u8] = b"an odd note"; // 11 bytes, then a pad byte
+    std::fs::write(
+        &path,
+        riff_wave(&fmt_body(1, 1, 44_100, 16, None), &[(b"note", note)], &data),
+    )
+    .unwrap();
+    assert_close_to(&read_mono(&path).unwrap(), &signal, 5e-5, "odd chunk");
+}
+
+#[test]
+fn reads_64_bit_float() {
+    let dir = tempfile::tempdir().unwrap();
+    let signal = tap_signal(96_000, 1.5);
+    for (name, extensible) in [("f64.wav", None), ("f64_ext.wav", Some((64, 3)))] {
+        let data: Vec<u8> = signal
+            .iter()
+            .flat_map(|v| [*v, *v])
+            .flat_map(f64::to_le_bytes)
+            .collect();
+        let path = dir.path().join(name);
+        std::fs::write(
+            &path,
+            riff_wave(&fmt_body(3, 2, 96_000, 64, extensible), &[], &data),
+        )
+        .unwrap();
+        let recording = read_mono(&path).unwrap();
+        assert_eq!(recording.sample_rate_hz, 96_000);
+        assert_close_to(&recording, &signal, 1e-7, name);
+        let report = analyze_recording(
+            &recording.samples,
+            96_000.0,
+            &TriggerSettings::default(),
+            &AnalysisSettings::default(),
+        );
+        assert_eq!(report.taps_used(), 1, "{name}");
+    }
+}
+
+#[test]
+fn names_the_encodings_it_cannot_read() {
+    let dir = tempfile::tempdir().unwrap();
+    let cases: [(&str, Vec<u8>, &str); 5] = [
+        ("alaw.wav", fmt_body(6, 1, 8_000, 8, None), "A-law"),
+        ("mulaw.wav", fmt_body(7, 1, 8_000, 8, None), "µ-law"),
+        (
+            "adpcm.wav",
+            fmt_body(2, 1, 22_050, 4, None),
+            "Microsoft ADPCM",
+        ),
+        ("half.wav", fmt_body(3, 1, 48_000, 16, None), "16-bit float"),
+        (
+            "ext_alaw.wav",
+            fmt_body(6, 1, 8_000, 8, Some((8, 6))),
+            "A-law",
+        ),
+    ];
+    for (name, fmt, encoding) in cases {
+        let path = dir.path().join(name);
+        std::fs::write(&path, riff_wave(&fmt, &[], &[0u8; 64])).unwrap();
+        let error = read_mono(&path).unwrap_err();
+        assert!(
+            matches!(error, WavError::Unsupported { .. }),
+            "{name}: {error}"
+        );
+        let text = error.to_string();
+        assert!(text.contains(encoding) && text.contains(name), "{text}");
+    }
+}
+
+#[test]
+fn refuses_what_is_not_a_regular_file() {
+    let dir = tempfile::tempdir().unwrap();
+    let error = read_mono(dir.path()).unwrap_err();
+    assert!(
+        matches!(
+            error,
+            WavError::NotRegularFile {
+                kind: "a folder",
+                ..
+            }
+        ),
+        "{error}"
+    );
+    #[cfg(unix)]
+    {
+        let fifo = dir.path().join("pipe.wav");
+        let made = std::process::Command::new("mkfifo")
+            .arg(&fifo)
+            .status()
+            .unwrap();
+        assert!(made.success());
+        // Opening a pipe with no writer would block for ever; this returns.
+        let error = read_mono(&fifo).unwrap_err();
+        assert!(
+            matches!(error, WavError::NotRegularFile { kind: "a pipe", .. }),
+            "{error}"
+        );
+        assert!(error.to_string().contains("pipe.wav"));
+    }
+}
+
+#[test]
+fn a_long_file_read_in_blocks_gives_what_the_whole_file_gives() {
+    use tapwright::analysis::synth::NoiseGenerator;
+    use tapwright::analysis::RecordingAnalyzer;
+    use tapwright::wav_io::WavStream;
+    // Ten minutes at 16 kHz, quiet but for four taps, the last near the end.
+    const FS: u32 = 16_000;
+    let fs = f64::from(FS);
+    let mut x = vec![0.0; 600 * FS as usize];
+    for at_s in [2.0, 150.0, 420.0, 597.5] {
+        add_modes(
+            &mut x,
+            fs,
+            (at_s * fs) as usize,
+            &[
+                SynthMode::new(210.0, 40.0, 0.3),
+                SynthMode::new(530.0, 50.0, 0.2),
+            ],
+        );
+    }
+    let mut noise = NoiseGenerator::new(7);
+    for v in &mut x {
+        *v += 1e-4 * noise.gaussian();
+    }
+    let dir = tempfile::tempdir().unwrap();
+    let path = dir.path().join("ten_minutes.wav");
+    let spec = hound::WavSpec {
+        channels: 1,
+        sample_rate: FS,
+        bits_per_sample: 16,
+        sample_format: hound::SampleFormat::Int,
+    };
+    write(&path, spec, &x);
+    drop(x);
+
+    let trigger = TriggerSettings::default();
+    let analysis = AnalysisSettings::default();
+    let whole = read_mono(&path).unwrap();
+    let in_memory = analyze_recording(&whole.samples, fs, &trigger, &analysis);
+    drop(whole);
+
+    let mut stream = WavStream::open(&path).unwrap();
+    assert_eq!(stream.frames_total(), 600 * u64::from(FS));
+    let mut analyzer = RecordingAnalyzer::new(&trigger, &analysis, fs);
+    let mut block = Vec::new();
+    // An odd block length, so taps straddle blocks.
+    while stream.read_block(&mut block, 10_007).unwrap() > 0 {
+        analyzer.push(&block);
+    }
+    let streamed = analyzer.finish();
+
+    assert_eq!(streamed.taps.len(), 4, "{:?}", streamed.taps);
+    assert_eq!(streamed.taps_used(), 4);
+    assert!((streamed.taps[3].onset_s - 597.5).abs() < 0.01);
+    assert!((streamed.duration_s - 600.0).abs() < 1e-9);
+    assert_eq!(streamed, in_memory);
+}

@@ -20,7 +20,9 @@ pub mod tap_finder;
 pub use aggregate::{aggregate_taps, PassMode, PassResult};
 pub use modal::{AnalysisSettings, Mode, TapAnalysis, TapAnalyzer};
 pub use pitch::{Pitch, DEFAULT_A4_HZ};
-pub use recording::{analyze_recording, RecordingReport, RejectedTap, TapRecord};
+pub use recording::{
+    analyze_recording, RecordingAnalyzer, RecordingReport, RejectedTap, TapRecord,
+};
 pub use spectrum::DisplaySpectrum;
 pub use tap_finder::{
     find_taps, FoundTap, RejectReason, TapTrigger, TriggerEvent, TriggerSettings,

@@ -1,12 +1,13 @@
-//! A whole recording at once: find the taps, measure the accepted ones,
-//! combine them into a pass. Used by `tapwright analyze`, the WAV replay and
-//! the window when a file is opened.
+//! A whole recording: find the taps, measure the accepted ones, combine
+//! them into a pass. [`analyze_recording`] takes the samples at once (the
+//! window, tests); [`RecordingAnalyzer`] takes them block by block
+//! (`tapwright analyze`, so a long file never has to fit in memory).
 
 use serde::{Deserialize, Serialize};
 
 use super::aggregate::{aggregate_taps, PassResult};
 use super::modal::{AnalysisSettings, TapAnalysis, TapAnalyzer};
-use super::tap_finder::{find_taps, RejectReason, TriggerSettings};
+use super::tap_finder::{RejectReason, TapTrigger, TriggerEvent, TriggerSettings};
 
 /// One tap of a recording.
 #[derive(Clone, Debug, PartialEq)]
@@ -57,33 +58,93 @@ impl RecordingReport {
     }
 }
 
-/// Finds, measures and combines every tap of a recording.
+/// Finds, measures and combines every tap of a recording held in memory.
 pub fn analyze_recording(
     samples: &[f32],
     sample_rate_hz: f64,
     trigger: &TriggerSettings,
     analysis: &AnalysisSettings,
 ) -> RecordingReport {
-    let mut analyzer = TapAnalyzer::new(analysis.clone(), sample_rate_hz);
-    let taps: Vec<TapRecord> = find_taps(samples, sample_rate_hz, trigger)
-        .into_iter()
-        .enumerate()
-        .map(|(i, tap)| TapRecord {
-            index: i + 1,
-            onset_s: tap.onset_sample() as f64 / sample_rate_hz,
-            peak_dbfs: tap.peak_dbfs,
-            rejected: tap.rejected,
-            analysis: tap.rejected.is_none().then(|| analyzer.analyze(&tap)),
-        })
-        .collect();
-    let pass = aggregate_taps(
-        taps.iter().filter_map(|t| t.analysis.as_ref()),
-        analysis.max_modes,
-    );
-    RecordingReport {
-        sample_rate_hz,
-        duration_s: samples.len() as f64 / sample_rate_hz,
-        taps,
-        pass,
+    let mut stream = RecordingAnalyzer::new(trigger, analysis, sample_rate_hz);
+    stream.push(samples);
+    stream.finish()
+}
+
+/// The same work as [`analyze_recording`] on a recording that arrives
+/// block by block (a long file read from disk): the streaming
+/// [`TapTrigger`] the capture worker uses finds the taps, each finished tap
+/// is measured at once and its samples dropped, so memory holds the tap
+/// under way and the measurements, however long the recording.
+#[derive(Debug)]
+pub struct RecordingAnalyzer {
+    trigger: TapTrigger,
+    analyzer: TapAnalyzer,
+    max_modes: usize,
+    events: Vec<TriggerEvent>,
+    taps: Vec<TapRecord>,
+    samples_seen: u64,
+}
+
+impl RecordingAnalyzer {
+    pub fn new(
+        trigger: &TriggerSettings,
+        analysis: &AnalysisSettings,
+        sample_rate_hz: f64,
+    ) -> Self {
+        Self {
+            trigger: TapTrigger::new(trigger.clone(), sample_rate_hz),
+            analyzer: TapAnalyzer::new(analysis.clone(), sample_rate_hz),
+            max_modes: analysis.max_modes,
+            events: Vec::new(),
+            taps: Vec::new(),
+            samples_seen: 0,
+        }
+    }
+
+    /// Feeds the next samples of the recording.
+    pub fn push(&mut self, samples: &[f32]) {
+        self.samples_seen += samples.len() as u64;
+        self.trigger.push(samples, &mut self.events);
+        self.measure_finished_taps();
+    }
+
+    /// Taps found so far, in time order.
+    pub fn taps(&self) -> &[TapRecord] {
+        &self.taps
+    }
+
+    /// Ends the recording (a tap under way is closed as it is) and combines
+    /// the accepted taps.
+    pub fn finish(mut self) -> RecordingReport {
+        self.trigger.finish(&mut self.events);
+        self.measure_finished_taps();
+        let sample_rate_hz = self.trigger.sample_rate_hz();
+        let pass = aggregate_taps(
+            self.taps.iter().filter_map(|t| t.analysis.as_ref()),
+            self.max_modes,
+        );
+        RecordingReport {
+            sample_rate_hz,
+            duration_s: self.samples_seen as f64 / sample_rate_hz,
+            taps: self.taps,
+            pass,
+        }
+    }
+
+    fn measure_finished_taps(&mut self) {
+        let sample_rate_hz = self.trigger.sample_rate_hz();
+        for event in self.events.drain(..) {
+            let TriggerEvent::Tap(tap) = event else {
+                continue;
+            };
+            let analysis = tap.rejected.is_none().then(|| self.analyzer.analyze(&tap));
+            self.taps.push(TapRecord {
+                index: self.taps.len() + 1,
+                onset_s: tap.onset_sample() as f64 / sample_rate_hz,
+                peak_dbfs: tap.peak_dbfs,
+                rejected: tap.rejected,
+                analysis,
+            });
+        }
     }
 }

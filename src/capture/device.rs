@@ -27,6 +27,14 @@ const STREAM_CLOSE_LIMIT: Duration = Duration::from_millis(500);
 /// worker (no syscalls there), so the worker polls: 4 ms keeps an armed,
 /// quiet input near 0.5 % of a core and adds at most 4 ms to a tap's event.
 const POLL_SLEEP: Duration = Duration::from_millis(4);
+/// A device that has delivered more than this many times the sound the
+/// wall clock allows (plus [`FAST_DELIVERY_SLACK_S`] for the first
+/// buffers) is not a live input but one with no clock, e.g. ALSA's `null`
+/// device, which returns zeros as fast as they are read, or a `file`
+/// plug-in. Samples it overfills the ring with are not sound the computer
+/// failed to keep up with, so they are not counted as lost.
+const FAST_DELIVERY_RATIO: f64 = 1.5;
+const FAST_DELIVERY_SLACK_S: f64 = 1.0;
 
 /// An input device as `tapwright devices` and the window list it.
 #[derive(Clone, Debug, PartialEq, Eq)]
@@ -44,8 +52,11 @@ pub struct DeviceInfo {
     pub sample_rates_hz: Vec<(u32, u32)>,
 }
 
-/// The first audio system that starts (on Linux: ALSA).
+/// The first audio system that starts (on Linux: ALSA). Every thread that
+/// lists or opens devices comes through here, so alsa-lib's own messages
+/// are silenced on it first.
 fn audio_host() -> Result<cpal::Host, CaptureError> {
+    silence_audio_library_messages();
     let mut last_problem = String::from("no audio system is compiled in");
     for id in cpal::available_hosts() {
         match cpal::host_from_id(id) {
@@ -57,6 +68,38 @@ fn audio_host() -> Result<cpal::Host, CaptureError> {
         detail: last_problem,
     })
 }
+
+/// Stops alsa-lib printing its own error lines on stderr for the calling
+/// thread. Without a sound card, listing devices makes it print a dozen
+/// lines ("ALSA lib confmisc.c:855:(parse_card) cannot find card '0'" and
+/// so on) that tell the user nothing tapwright does not say in one
+/// sentence. alsa-lib's default error handler hands every message to the
+/// thread's local handler when one is set (`snd_lib_error_set_local`,
+/// alsa-lib error.c); ours drops it. The local handler takes a `va_list`,
+/// not `...`, so it can be written in Rust.
+#[cfg(target_os = "linux")]
+fn silence_audio_library_messages() {
+    use std::ffi::{c_char, c_int};
+
+    unsafe extern "C" fn drop_message(
+        _file: *const c_char,
+        _line: c_int,
+        _function: *const c_char,
+        _err: c_int,
+        _format: *const c_char,
+        _args: *mut alsa_sys::__va_list_tag,
+    ) {
+    }
+
+    // SAFETY: sets a thread-local function pointer in alsa-lib; the handler
+    // has the C signature alsa-lib calls and reads none of its arguments.
+    unsafe {
+        alsa_sys::snd_lib_error_set_local(Some(drop_message));
+    }
+}
+
+#[cfg(not(target_os = "linux"))]
+fn silence_audio_library_messages() {}
 
 fn device_name(device: &cpal::Device) -> String {
     match device.description() {
@@ -303,6 +346,47 @@ pub struct DeviceSource {
     /// Kept alive for as long as the source is; dropping it stops the stream.
     stream: Option<cpal::Stream>,
     last_notice: Option<Instant>,
+    pace: DeliveryPace,
+}
+
+/// How fast the device delivers, to tell a live input that the worker
+/// fell behind from a device that delivers faster than real time.
+#[derive(Debug)]
+struct DeliveryPace {
+    opened_at: Instant,
+    samples_read: u64,
+    /// Drops seen so far (the ring's running total when last looked at).
+    drops_seen: u64,
+    /// The part of `drops_seen` that came while the device ran faster
+    /// than real time.
+    drops_while_fast: u64,
+    told_fast: bool,
+}
+
+impl DeliveryPace {
+    fn new() -> Self {
+        Self {
+            opened_at: Instant::now(),
+            samples_read: 0,
+            drops_seen: 0,
+            drops_while_fast: 0,
+            told_fast: false,
+        }
+    }
+
+    /// Seconds of sound delivered against seconds since the stream opened.
+    fn delivered_and_elapsed_s(&self, waiting: usize, sample_rate_hz: u32) -> (f64, f64) {
+        let delivered = self.samples_read + self.drops_seen + waiting as u64;
+        (
+            delivered as f64 / f64::from(sample_rate_hz),
+            self.opened_at.elapsed().as_secs_f64(),
+        )
+    }
+
+    /// Drops that are sound a live input lost.
+    fn lost_samples(&self) -> u64 {
+        self.drops_seen - self.drops_while_fast
+    }
 }
 
 impl std::fmt::Debug for DeviceSource {
@@ -357,6 +441,7 @@ pub fn open_device(
         errors,
         stream: Some(stream),
         last_notice: None,
+        pace: DeliveryPace::new(),
     })
 }
 
@@ -418,6 +503,32 @@ where
 }
 
 impl DeviceSource {
+    /// Takes in the ring's drop count. Drops while the device delivers
+    /// faster than real time are not losses; the first time that happens
+    /// the user is told, once, what kind of device this is.
+    fn account_drops(&mut self) -> Option<SourceRead> {
+        let dropped = self.reader.dropped_samples();
+        let new_drops = dropped.saturating_sub(self.pace.drops_seen);
+        if new_drops == 0 {
+            return None;
+        }
+        self.pace.drops_seen = dropped;
+        let (delivered_s, elapsed_s) = self
+            .pace
+            .delivered_and_elapsed_s(self.reader.available(), self.sample_rate_hz);
+        if delivered_s <= FAST_DELIVERY_RATIO * elapsed_s + FAST_DELIVERY_SLACK_S {
+            return None;
+        }
+        self.pace.drops_while_fast += new_drops;
+        if std::mem::replace(&mut self.pace.told_fast, true) {
+            return None;
+        }
+        Some(SourceRead::Notice(format!(
+            "the input {} delivers sound faster than real time ({delivered_s:.0} s of sound in {elapsed_s:.1} s), so it is not a live microphone; what did not fit the buffer was skipped",
+            self.description
+        )))
+    }
+
     /// The first stream error that means the device is gone, as a sentence;
     /// lesser problems become a notice at most once a second.
     fn check_errors(&mut self) -> Option<SourceRead> {
@@ -463,9 +574,13 @@ impl SampleSource for DeviceSource {
 
     fn read(&mut self, out: &mut [f32], max_wait: Duration) -> SourceRead {
         let deadline = Instant::now() + max_wait;
+        if let Some(notice) = self.account_drops() {
+            return notice;
+        }
         loop {
             let n = self.reader.pop_into(out);
             if n > 0 {
+                self.pace.samples_read += n as u64;
                 return SourceRead::Samples(n);
             }
             if let Some(problem) = self.check_errors() {
@@ -478,8 +593,10 @@ impl SampleSource for DeviceSource {
         }
     }
 
+    /// Only drops while the device kept to real time: those are sound the
+    /// worker was too slow to take.
     fn dropped_samples(&self) -> u64 {
-        self.reader.dropped_samples()
+        self.pace.lost_samples()
     }
 
     fn is_live(&self) -> bool {
@@ -502,6 +619,7 @@ impl Drop for DeviceSource {
         let closer = std::thread::Builder::new()
             .name("tapwright-stream-close".to_owned())
             .spawn(move || {
+                silence_audio_library_messages();
                 drop(stream);
                 let _ = closed.send(());
             });

@@ -160,8 +160,7 @@ pub fn run(args: &AirArgs) -> Result<()> {
     } else {
         report_text(&report)
     };
-    print!("{text}");
-    Ok(())
+    super::output::write_stdout(&text)
 }
 
 fn build_report(args: &AirOptions) -> Result<AirReport> {
@@ -170,6 +169,10 @@ fn build_report(args: &AirOptions) -> Result<AirReport> {
         bail!("--a4: {a4_hz} Hz is not a reference pitch between 100 and 1000 Hz");
     }
     let solve = parse_solve(args)?;
+    // The air is checked even when only --coupled is asked for, so a
+    // temperature of -300 °C is never taken in silence.
+    let (air, sound_model) = parse_air(args)?;
+    air.validate(sound_model).map_err(|e| explain(e, args))?;
     let coupled = args
         .coupled
         .as_deref()
@@ -199,7 +202,7 @@ fn build_report(args: &AirOptions) -> Result<AirReport> {
         check: None,
     };
     if geometry_wanted {
-        let (geometry, solved) = solve_geometry(args, volume_m3, solve)?;
+        let (geometry, solved) = solve_geometry(args, (air, sound_model), volume_m3, solve)?;
         let estimate = estimate_cavity(&geometry).map_err(|e| explain(e, args))?;
         report.geometry = Some(geometry);
         report.estimate = Some(estimate);
@@ -227,6 +230,7 @@ fn unreachable_without_estimate() -> Result<f64> {
 /// solved size.
 fn solve_geometry(
     args: &AirOptions,
+    (air, sound_model): (AirConditions, SpeedOfSoundModel),
     volume_m3: Option<f64>,
     solve: Option<(SolveFor, f64)>,
 ) -> Result<(CavityGeometry, Option<Solved>)> {
@@ -235,19 +239,13 @@ fn solve_geometry(
         .iter()
         .map(|text| parse_opening(text))
         .collect::<Result<Vec<_>>>()?;
-    let air = AirConditions {
-        temp_c: parse_number("--temp-c", &args.temp_c)?,
-        relative_humidity_pct: parse_number("--rh", &args.rh)?,
-        pressure_pa: parse_number("--pressure-kpa", &args.pressure_kpa)? * 1e3,
-        ..AirConditions::default()
-    };
     let mut geometry = CavityGeometry {
         volume_m3: volume_m3.unwrap_or(f64::NAN),
         openings,
         wall_thickness_mm: parse_number("--thickness-mm", &args.thickness_mm)?,
         end_correction: parse_end_correction(&args.end_correction)?,
         air,
-        sound_model: parse_sound_model(&args.sound_model)?,
+        sound_model,
     };
     let needs_volume = !matches!(solve, Some((SolveFor::Volume, _)));
     match (needs_volume, volume_m3.is_some()) {
@@ -309,6 +307,17 @@ fn solve_geometry(
         }
     };
     Ok((geometry, Some(solved)))
+}
+
+/// The air conditions and the speed-of-sound model from the options.
+fn parse_air(args: &AirOptions) -> Result<(AirConditions, SpeedOfSoundModel)> {
+    let air = AirConditions {
+        temp_c: parse_number("--temp-c", &args.temp_c)?,
+        relative_humidity_pct: parse_number("--rh", &args.rh)?,
+        pressure_pa: parse_number("--pressure-kpa", &args.pressure_kpa)? * 1e3,
+        ..AirConditions::default()
+    };
+    Ok((air, parse_sound_model(&args.sound_model)?))
 }
 
 /// Reads a number; refuses text, NaN and infinities.

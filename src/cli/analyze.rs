@@ -1,48 +1,44 @@
 //! `tapwright analyze FILE.wav`: find the taps in a recording and measure
 //! their modes.
+//!
+//! The file is read block by block and fed to the streaming tap finder, so
+//! memory holds one block, the tap under way and the measurements, however
+//! long the recording (a 4 GB file is as good as a short one).
 
 use std::path::PathBuf;
 
-use anyhow::{bail, Context};
+use anyhow::bail;
 
 use super::measure::MeasureArgs;
+use super::output::write_stdout;
 use super::report::ReportInput;
-use crate::analysis::analyze_recording;
-use crate::wav_io::read_mono;
+use crate::analysis::{RecordingAnalyzer, RecordingReport};
+use crate::wav_io::WavStream;
+
+/// Frames read from the file at a time (about 1.4 s at 48 kHz).
+const BLOCK_FRAMES: usize = 65_536;
 
 #[derive(Debug, clap::Args)]
 pub struct AnalyzeArgs {
-    /// The WAV recording (8–192 kHz; 16/24/32-bit integer or 32-bit float).
+    /// The WAV recording (8–192 kHz; 8/16/24/32-bit integer or 32/64-bit float).
     pub file: PathBuf,
     #[command(flatten)]
     pub measure: MeasureArgs,
 }
 
 pub fn run(args: &AnalyzeArgs) -> anyhow::Result<()> {
-    let trigger = args.measure.trigger_settings()?;
-    let recording = read_mono(&args.file)?;
-    let fs = f64::from(recording.sample_rate_hz);
+    let trigger = args.measure.trigger_settings();
+    let mut stream = WavStream::open(&args.file)?;
+    let fs = f64::from(stream.sample_rate_hz());
     let name = args.file.display().to_string();
     let analysis = args.measure.analysis_settings(fs, &name)?;
-    let report = analyze_recording(&recording.samples, fs, &trigger, &analysis);
-    if report.taps.is_empty() {
-        bail!(
-            "{name} has no tap in it: nothing rose {} dB above the background",
-            args.measure.margin_db
-        );
+    let mut analyzer = RecordingAnalyzer::new(&trigger, &analysis, fs);
+    let mut block = Vec::with_capacity(BLOCK_FRAMES);
+    while stream.read_block(&mut block, BLOCK_FRAMES)? > 0 {
+        analyzer.push(&block);
     }
-    if report.taps_used() == 0 {
-        let reasons: Vec<&str> = report
-            .rejected()
-            .iter()
-            .map(|r| r.reason.short_text())
-            .collect();
-        bail!(
-            "{name} has no usable tap: all {} were rejected ({})",
-            report.taps.len(),
-            reasons.join(", ")
-        );
-    }
+    let report = analyzer.finish();
+    check_usable(&report, &name, args.measure.margin_db)?;
     let input = ReportInput {
         source: name,
         sample_rate_hz: fs,
@@ -55,12 +51,25 @@ pub fn run(args: &AnalyzeArgs) -> anyhow::Result<()> {
             .collect(),
         modes: &report.pass.modes,
     };
-    if args.measure.json {
-        let text =
-            serde_json::to_string_pretty(&input.to_json()).context("formatting the JSON report")?;
-        println!("{text}");
-    } else {
-        print!("{}", input.to_table());
+    write_stdout(&input.render(args.measure.json)?)
+}
+
+/// One sentence when the recording has no tap, or none that can be used.
+fn check_usable(report: &RecordingReport, name: &str, margin_db: f64) -> anyhow::Result<()> {
+    if report.taps.is_empty() {
+        bail!("{name} has no tap in it: nothing rose {margin_db} dB above the background");
+    }
+    if report.taps_used() == 0 {
+        let reasons: Vec<&str> = report
+            .rejected()
+            .iter()
+            .map(|r| r.reason.short_text())
+            .collect();
+        bail!(
+            "{name} has no usable tap: all {} were rejected ({})",
+            report.taps.len(),
+            reasons.join(", ")
+        );
     }
     Ok(())
 }

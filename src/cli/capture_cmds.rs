@@ -6,7 +6,8 @@ use std::time::{Duration, Instant};
 
 use anyhow::{bail, Context};
 
-use super::measure::{band_for, MeasureArgs};
+use super::measure::{band_for, parse_count, MeasureArgs};
+use super::output::{note, write_stdout};
 use super::report::ReportInput;
 use crate::analysis::{aggregate_taps, RejectReason, TapAnalysis};
 use crate::capture::{
@@ -25,11 +26,11 @@ pub struct ListenArgs {
     /// Input device: a name or id from `tapwright devices` (default: the system default).
     #[arg(long, value_name = "NAME")]
     pub device: Option<String>,
-    /// Stop after this many accepted taps.
-    #[arg(long, value_name = "N", default_value_t = 5, value_parser = clap::value_parser!(u32).range(1..=1000))]
+    /// Stop after this many accepted taps (1 to 1000).
+    #[arg(long, value_name = "N", default_value_t = 5, value_parser = parse_taps, allow_hyphen_values = true)]
     pub taps: u32,
-    /// Stop after this many seconds, whatever the count.
-    #[arg(long, value_name = "S", default_value_t = 60.0)]
+    /// Stop after this many seconds, whatever the count (more than 0, at most 86400).
+    #[arg(long, value_name = "S", default_value_t = 60.0, value_parser = parse_seconds, allow_hyphen_values = true)]
     pub seconds: f64,
     /// Keep each raw tap as a WAV file in this folder (tap_001.wav …).
     #[arg(long, value_name = "DIR")]
@@ -38,17 +39,35 @@ pub struct ListenArgs {
     pub measure: MeasureArgs,
 }
 
+fn parse_taps(text: &str) -> Result<u32, String> {
+    parse_count(text, 1..=1000)
+}
+
+/// More than 0 and at most a day.
+fn parse_seconds(text: &str) -> Result<f64, String> {
+    match text.trim().parse::<f64>() {
+        Ok(s) if s.is_finite() && s > 0.0 && s <= 86_400.0 => Ok(s),
+        Ok(s) => Err(format!("{s} s is not more than 0 and at most 86400 s")),
+        Err(_) => Err(format!(
+            "'{text}' is not a number of seconds; give more than 0, at most 86400"
+        )),
+    }
+}
+
 /// `tapwright devices`: one line per input device, the default marked.
 pub fn run_devices(_args: &DevicesArgs) -> anyhow::Result<()> {
     let devices = list_input_devices()?;
     if devices.is_empty() {
-        println!("No audio input device found: connect a microphone or audio interface.");
-        return Ok(());
+        return write_stdout(
+            "No audio input device found: connect a microphone or audio interface.\n",
+        );
     }
+    let mut text = String::new();
     for device in &devices {
-        println!("{}", device_line(device));
+        text.push_str(&device_line(device));
+        text.push('\n');
     }
-    Ok(())
+    write_stdout(&text)
 }
 
 fn device_line(device: &DeviceInfo) -> String {
@@ -115,30 +134,24 @@ pub fn run_listen(args: &ListenArgs) -> anyhow::Result<()> {
         std::fs::create_dir_all(dir)
             .with_context(|| format!("creating the folder {}", dir.display()))?;
     }
-    eprintln!(
+    note(&format!(
         "Listening on {source}: tap the part; stopping after {} accepted taps or {} s.",
         args.taps, args.seconds
-    );
+    ));
     let collected = collect_taps(&mut handle, args)?;
     handle.stop();
     if collected.dropped_samples > 0 {
-        eprintln!(
+        note(&format!(
             "note: {} samples ({:.2} s) were lost because the computer fell behind the input.",
             collected.dropped_samples,
             collected.dropped_samples as f64 / f64::from(sample_rate_hz)
-        );
+        ));
     }
     print_report(args, &source, sample_rate_hz, &collected)
 }
 
 fn listen_settings(args: &ListenArgs) -> anyhow::Result<CaptureSettings> {
-    let trigger = args.measure.trigger_settings()?;
-    if !(args.seconds.is_finite() && args.seconds > 0.0 && args.seconds <= 86_400.0) {
-        bail!(
-            "--seconds must be more than 0 and at most 86400, not {}",
-            args.seconds
-        );
-    }
+    let trigger = args.measure.trigger_settings();
     // Until the device tells its rate, assume the usual 48 kHz.
     let analysis = args.measure.analysis_settings(48_000.0, "the input")?;
     Ok(CaptureSettings {
@@ -177,7 +190,10 @@ fn collect_taps(handle: &mut CaptureHandle, args: &ListenArgs) -> anyhow::Result
                     sample_rate_hz,
                     &tap.samples,
                 )?;
-                eprintln!("tap {index}: accepted, {} modes", analysis.modes.len());
+                note(&format!(
+                    "tap {index}: accepted, {} modes",
+                    analysis.modes.len()
+                ));
                 collected.accepted.push(analysis);
             }
             CaptureEvent::TapRejected {
@@ -194,22 +210,23 @@ fn collect_taps(handle: &mut CaptureHandle, args: &ListenArgs) -> anyhow::Result
                     sample_rate_hz,
                     &tap.samples,
                 )?;
-                eprintln!("tap {index}: rejected, {reason} ({})", reason.advice());
+                note(&format!(
+                    "tap {index}: rejected, {reason} ({})",
+                    reason.advice()
+                ));
                 collected.rejected.push((index, reason));
             }
             CaptureEvent::Overrun {
                 dropped_samples_total,
             } => collected.dropped_samples = dropped_samples_total,
-            CaptureEvent::DeviceLost { message } => eprintln!("tapwright: {message}."),
+            CaptureEvent::DeviceLost { message } => note(&format!("tapwright: {message}.")),
             CaptureEvent::Retrying {
                 attempt, delay_ms, ..
-            } => {
-                eprintln!(
-                    "tapwright: trying the input again in {:.1} s (attempt {attempt}).",
-                    delay_ms as f64 / 1000.0
-                )
-            }
-            CaptureEvent::Status { message } => eprintln!("tapwright: {message}."),
+            } => note(&format!(
+                "tapwright: trying the input again in {:.1} s (attempt {attempt}).",
+                delay_ms as f64 / 1000.0
+            )),
+            CaptureEvent::Status { message } => note(&format!("tapwright: {message}.")),
             CaptureEvent::SourceEnded => break,
             CaptureEvent::SourceStarted { .. }
             | CaptureEvent::Level(_)
@@ -271,12 +288,5 @@ fn print_report(
         rejected: collected.rejected.clone(),
         modes: &pass.modes,
     };
-    if args.measure.json {
-        let text =
-            serde_json::to_string_pretty(&input.to_json()).context("formatting the JSON report")?;
-        println!("{text}");
-    } else {
-        print!("{}", input.to_table());
-    }
-    Ok(())
+    write_stdout(&input.render(args.measure.json)?)
 }

@@ -15,42 +15,30 @@ pub struct MeasureArgs {
     pub json: bool,
     /// Frequency band to search, LOW:HIGH in Hz [default: 40:4000, or up to
     /// 45 % of the sample rate for slower recordings].
-    #[arg(long, value_name = "LOW:HIGH", value_parser = parse_band_hz)]
+    #[arg(long, value_name = "LOW:HIGH", value_parser = parse_band_hz, allow_hyphen_values = true)]
     pub band: Option<(f64, f64)>,
-    /// At most this many modes.
-    #[arg(long, value_name = "N", default_value_t = 16, value_parser = clap::value_parser!(u16).range(1..=64))]
+    /// At most this many modes (1 to 64).
+    #[arg(long, value_name = "N", default_value_t = 16, value_parser = parse_max_modes, allow_hyphen_values = true)]
     pub max_modes: u16,
-    /// Reference A4 for note names, Hz.
-    #[arg(long, value_name = "HZ", default_value_t = DEFAULT_A4_HZ, value_parser = parse_a4_hz)]
+    /// Reference A4 for note names, Hz (380 to 500).
+    #[arg(long, value_name = "HZ", default_value_t = DEFAULT_A4_HZ, value_parser = parse_a4_hz, allow_hyphen_values = true)]
     pub a4: f64,
-    /// Trigger margin above the noise floor, dB.
-    #[arg(long, value_name = "DB", default_value_t = 20.0)]
+    /// Trigger margin above the noise floor, dB (3 to 60).
+    #[arg(long, value_name = "DB", default_value_t = 20.0, value_parser = parse_margin_db, allow_hyphen_values = true)]
     pub margin_db: f64,
-    /// Record length after each strike, ms.
-    #[arg(long, value_name = "MS", default_value_t = 1000.0)]
+    /// Record length after each strike, ms (100 to 10000).
+    #[arg(long, value_name = "MS", default_value_t = 1000.0, value_parser = parse_record_ms, allow_hyphen_values = true)]
     pub record_ms: f64,
 }
 
 impl MeasureArgs {
-    /// Trigger settings, or one sentence naming the option that is off.
-    pub fn trigger_settings(&self) -> anyhow::Result<TriggerSettings> {
-        if !(self.margin_db.is_finite() && (3.0..=60.0).contains(&self.margin_db)) {
-            bail!(
-                "--margin-db must be between 3 and 60 dB, not {}",
-                self.margin_db
-            );
-        }
-        if !(self.record_ms.is_finite() && (100.0..=10_000.0).contains(&self.record_ms)) {
-            bail!(
-                "--record-ms must be between 100 and 10000 ms, not {}",
-                self.record_ms
-            );
-        }
-        Ok(TriggerSettings {
+    /// Trigger settings (the values were checked when the options were read).
+    pub fn trigger_settings(&self) -> TriggerSettings {
+        TriggerSettings {
             margin_db: self.margin_db,
             record_ms: self.record_ms,
             ..Default::default()
-        })
+        }
     }
 
     /// Analysis settings for a source at `sample_rate_hz` (named `source`
@@ -87,7 +75,8 @@ pub fn band_for(
     }
 }
 
-/// Parses "LOW:HIGH" in Hz.
+/// Parses "LOW:HIGH" in Hz: LOW at least 10 Hz, HIGH at least 1.5 × LOW
+/// (half an octave is the least span the mode search works in).
 pub fn parse_band_hz(text: &str) -> Result<(f64, f64), String> {
     let (low, high) = text
         .split_once(':')
@@ -95,26 +84,81 @@ pub fn parse_band_hz(text: &str) -> Result<(f64, f64), String> {
     let parse = |s: &str| {
         s.trim()
             .parse::<f64>()
-            .map_err(|_| format!("'{s}' is not a number of Hz"))
+            .ok()
+            .filter(|v| v.is_finite())
+            .ok_or_else(|| format!("'{s}' in '{text}' is not a number of Hz"))
     };
     let (low, high) = (parse(low)?, parse(high)?);
-    if !(low.is_finite() && high.is_finite() && low >= 10.0 && high > low * 1.5) {
+    if low < 10.0 {
         return Err(format!(
-            "band {low}:{high} Hz must start at 10 Hz or above and span at least half an octave"
+            "the band {low}:{high} Hz starts below 10 Hz; give LOW:HIGH with LOW at least 10 Hz"
+        ));
+    }
+    if high < low * 1.5 {
+        return Err(format!(
+            "the band {low}:{high} Hz spans less than half an octave; give LOW:HIGH with HIGH at least 1.5 × LOW"
         ));
     }
     Ok((low, high))
 }
 
-/// Parses the reference A4 in Hz (380–500).
-pub fn parse_a4_hz(text: &str) -> Result<f64, String> {
-    let hz: f64 = text
+/// A number within `range`, or a reason that names the range and unit.
+fn parse_in_range(
+    text: &str,
+    range: std::ops::RangeInclusive<f64>,
+    unit: &str,
+) -> Result<f64, String> {
+    let value: f64 = text
         .trim()
         .parse()
-        .map_err(|_| format!("'{text}' is not a frequency in Hz"))?;
-    if (380.0..=500.0).contains(&hz) {
-        Ok(hz)
+        .ok()
+        .filter(|v: &f64| v.is_finite())
+        .ok_or_else(|| {
+            format!(
+                "'{text}' is not a number; give {} to {} {unit}",
+                range.start(),
+                range.end()
+            )
+        })?;
+    if range.contains(&value) {
+        Ok(value)
     } else {
-        Err(format!("A4 of {hz} Hz is outside 380–500 Hz"))
+        Err(format!(
+            "{value} {unit} is outside {} to {} {unit}",
+            range.start(),
+            range.end()
+        ))
     }
+}
+
+/// Parses the reference A4 in Hz (380–500).
+pub fn parse_a4_hz(text: &str) -> Result<f64, String> {
+    parse_in_range(text, 380.0..=500.0, "Hz")
+}
+
+/// Parses the trigger margin in dB (3–60).
+pub fn parse_margin_db(text: &str) -> Result<f64, String> {
+    parse_in_range(text, 3.0..=60.0, "dB")
+}
+
+/// Parses the record length in ms (100–10 000).
+pub fn parse_record_ms(text: &str) -> Result<f64, String> {
+    parse_in_range(text, 100.0..=10_000.0, "ms")
+}
+
+/// A whole number within `range`, or a reason that names the range.
+pub fn parse_count(text: &str, range: std::ops::RangeInclusive<u32>) -> Result<u32, String> {
+    let (low, high) = (range.start(), range.end());
+    match text.trim().parse::<i64>() {
+        Ok(value) if (i64::from(*low)..=i64::from(*high)).contains(&value) => Ok(value as u32),
+        Ok(value) => Err(format!("{value} is outside {low} to {high}")),
+        Err(_) => Err(format!(
+            "'{text}' is not a whole number from {low} to {high}"
+        )),
+    }
+}
+
+/// Parses the mode count (1–64).
+pub fn parse_max_modes(text: &str) -> Result<u16, String> {
+    parse_count(text, 1..=64).map(|n| n as u16)
 }

@@ -6,11 +6,15 @@ mod analyze;
 mod capture_cmds;
 mod ledger_cmd;
 mod measure;
+pub mod output;
+mod parse_error;
 mod report;
 
 use std::process::ExitCode;
 
-use clap::{Parser, Subcommand};
+use clap::{CommandFactory, Parser, Subcommand};
+
+use output::{note, StdoutClosed};
 
 /// Exit code for anything the user can fix: a bad file, a missing device,
 /// impossible geometry.
@@ -47,8 +51,14 @@ pub enum Command {
 
 /// Parses the process arguments, runs the chosen subcommand (or opens the
 /// window) and turns any error into one sentence on stderr and exit code 2.
+/// A closed standard output (its reader went away) ends quietly with
+/// success.
 pub fn run_from_env() -> ExitCode {
-    let cli = Cli::parse();
+    let args: Vec<std::ffi::OsString> = std::env::args_os().collect();
+    let cli = match Cli::try_parse_from(&args) {
+        Ok(cli) => cli,
+        Err(error) => return parse_failure(&error, &args),
+    };
     let outcome = match &cli.command {
         None => crate::ui::run_workbench(&cli.window),
         Some(Command::Analyze(args)) => analyze::run(args),
@@ -59,10 +69,46 @@ pub fn run_from_env() -> ExitCode {
     };
     match outcome {
         Ok(()) => ExitCode::SUCCESS,
+        Err(error) if error.downcast_ref::<StdoutClosed>().is_some() => ExitCode::SUCCESS,
         Err(error) => {
-            eprintln!("tapwright: {}", one_sentence(&error));
+            note(&format!("tapwright: {}", one_sentence(&error)));
             ExitCode::from(EXIT_BAD_INPUT)
         }
+    }
+}
+
+/// `--help` and `--version` print as clap prints them (exit 0); every
+/// other refusal is one sentence and exit code 2.
+fn parse_failure(error: &clap::Error, args: &[std::ffi::OsString]) -> ExitCode {
+    use clap::error::ErrorKind;
+    match error.kind() {
+        ErrorKind::DisplayHelp | ErrorKind::DisplayVersion => {
+            let _ = error.print();
+            ExitCode::SUCCESS
+        }
+        _ => {
+            let command = command_words(args);
+            note(&format!(
+                "tapwright: {}",
+                parse_error::one_sentence(error, &command)
+            ));
+            ExitCode::from(EXIT_BAD_INPUT)
+        }
+    }
+}
+
+/// "tapwright analyze" when a subcommand was named, else "tapwright".
+fn command_words(args: &[std::ffi::OsString]) -> String {
+    let cli = Cli::command();
+    let named = args.iter().skip(1).find_map(|arg| {
+        let arg = arg.to_str()?;
+        cli.get_subcommands()
+            .find(|sub| sub.get_name() == arg)
+            .map(|sub| sub.get_name().to_owned())
+    });
+    match named {
+        Some(name) => format!("tapwright {name}"),
+        None => "tapwright".to_owned(),
     }
 }
 

@@ -87,6 +87,18 @@ impl ReportInput<'_> {
         }
     }
 
+    /// The whole report as printed: one JSON object, or the table.
+    pub fn render(&self, json: bool) -> anyhow::Result<String> {
+        if json {
+            let mut text = serde_json::to_string_pretty(&self.to_json())
+                .map_err(|e| anyhow::anyhow!("formatting the JSON report: {e}"))?;
+            text.push('\n');
+            Ok(text)
+        } else {
+            Ok(self.to_table())
+        }
+    }
+
     /// The table for people.
     pub fn to_table(&self) -> String {
         let mut out = String::new();

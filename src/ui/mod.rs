@@ -51,6 +51,9 @@ pub struct WorkbenchOptions {
 /// `TAPWRIGHT_TIMING=1` to print the time from start to the first frame.
 pub fn run_workbench(options: &WorkbenchOptions) -> anyhow::Result<()> {
     let started_at = Instant::now();
+    if cfg!(target_os = "linux") && display_variables().is_empty() {
+        anyhow::bail!("{NO_DISPLAY_ADVICE}");
+    }
     let timing = std::env::var("TAPWRIGHT_TIMING").is_ok_and(|v| !v.is_empty() && v != "0");
     let app_options = AppOptions {
         source: if options.demo {
@@ -80,5 +83,48 @@ pub fn run_workbench(options: &WorkbenchOptions) -> anyhow::Result<()> {
         native_options,
         Box::new(move |_cc| Ok(Box::new(TapwrightApp::new(app_options)))),
     )
-    .map_err(|error| anyhow::anyhow!("cannot open the window: {error}"))
+    .map_err(|error| window_error(&error.to_string()))
+}
+
+/// What to do when there is no display to open the window on.
+const NO_DISPLAY_ADVICE: &str = "no display found: set DISPLAY to open the window, or use the command-line subcommands (see tapwright --help)";
+
+/// The display variables that are set, as "DISPLAY=:0".
+fn display_variables() -> Vec<String> {
+    ["DISPLAY", "WAYLAND_DISPLAY", "WAYLAND_SOCKET"]
+        .into_iter()
+        .filter_map(|name| {
+            let value = std::env::var(name).ok().filter(|v| !v.is_empty())?;
+            Some(format!("{name}={value}"))
+        })
+        .collect()
+}
+
+/// One plain sentence for a window that would not open: the windowing
+/// library's message without its source-file location, and, when it could
+/// not reach the display, what to do about it.
+fn window_error(message: &str) -> anyhow::Error {
+    let detail = without_source_location(message);
+    let lower = detail.to_lowercase();
+    if lower.contains("x server") || lower.contains("display") || lower.contains("wayland") {
+        anyhow::anyhow!(
+            "no display found at {}: set DISPLAY to a running display to open the window, or use the command-line subcommands (see tapwright --help)",
+            display_variables().join(", ")
+        )
+    } else {
+        anyhow::anyhow!("cannot open the window: {}", detail.trim_end_matches('.'))
+    }
+}
+
+/// "winit EventLoopError: os error at /path/src/x.rs:788: Failed to open
+/// connection" → "Failed to open connection".
+fn without_source_location(message: &str) -> &str {
+    match message.find(".rs:") {
+        Some(at) => {
+            let rest = &message[at + 4..];
+            let after_line = rest.trim_start_matches(|c: char| c.is_ascii_digit());
+            after_line.trim_start_matches(':').trim()
+        }
+        None => message,
+    }
 }
