@@ -12,6 +12,7 @@ mod linalg;
 pub mod modal;
 pub mod pitch;
 pub mod recording;
+pub mod sine_fit;
 pub mod spectrum;
 pub mod synth;
 pub mod tap_finder;
@@ -20,6 +21,7 @@ pub use aggregate::{aggregate_taps, PassMode, PassResult};
 pub use modal::{AnalysisSettings, Mode, TapAnalysis, TapAnalyzer};
 pub use pitch::{Pitch, DEFAULT_A4_HZ};
 pub use recording::{analyze_recording, RecordingReport, RejectedTap, TapRecord};
+pub use sine_fit::{fit_sine, zero_crossing_hz, SineFit};
 pub use spectrum::DisplaySpectrum;
 pub use tap_finder::{
     find_taps, FoundTap, RejectReason, TapTrigger, TriggerEvent, TriggerSettings,
