@@ -154,7 +154,15 @@ fn drive_writes_the_asked_tone_with_fades_through_the_alsa_file_device() {
     let (home, raw) = file_device_home();
     let run = run_tapwright(
         home.path(),
-        &["drive", "--hz", "233.3", "--seconds", "2", "--level-db", "-12"],
+        &[
+            "drive",
+            "--hz",
+            "233.3",
+            "--seconds",
+            "2",
+            "--level-db",
+            "-12",
+        ],
         Duration::from_secs(60),
     );
     assert_eq!(
@@ -171,7 +179,10 @@ fn drive_writes_the_asked_tone_with_fades_through_the_alsa_file_device() {
     // 2 s in all, within a few samples (the fades start and end near zero,
     // so the first and last non-zero samples sit a little inside).
     let length_s = tone.len() as f64 / FS;
-    assert!((length_s - 2.0).abs() < 0.01, "the tone lasted {length_s} s");
+    assert!(
+        (length_s - 2.0).abs() < 0.01,
+        "the tone lasted {length_s} s"
+    );
 
     // The steady part (after the 0.25 s fade-in, before the fade-out),
     // fitted by a four-parameter sine fit (IEEE Std 1057 method).
@@ -217,7 +228,15 @@ fn a_level_above_the_cap_is_refused_and_nothing_is_played() {
     let (home, raw) = file_device_home();
     let run = run_tapwright(
         home.path(),
-        &["drive", "--hz", "233.3", "--seconds", "2", "--level-db", "-6"],
+        &[
+            "drive",
+            "--hz",
+            "233.3",
+            "--seconds",
+            "2",
+            "--level-db",
+            "-6",
+        ],
         Duration::from_secs(60),
     );
     assert_eq!(run.code, Some(2), "stderr:\n{}", run.stderr);
@@ -279,7 +298,15 @@ fn bad_values_and_a_missing_device_get_one_sentence_and_exit_2() {
         (&["drive", "--hz", "200", "--seconds", "0.1"], "--seconds"),
         (&["drive", "--hz", "200", "--cap-db", "0"], "--cap-db"),
         (
-            &["drive", "--hz", "200", "--seconds", "1", "--device", "no such loudspeaker"],
+            &[
+                "drive",
+                "--hz",
+                "200",
+                "--seconds",
+                "1",
+                "--device",
+                "no such loudspeaker",
+            ],
             "no such loudspeaker",
         ),
     ];

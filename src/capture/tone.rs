@@ -767,10 +767,10 @@ mod tests {
         generator.start();
         let mut out = render(&mut generator, 0.5);
         generator.set_settings(&settings(400.0, -12.0));
-        out.extend(render(&mut generator, 1.0));
+        out.extend(render(&mut generator, 1.5));
         let limit = sine_step(400.0, db_to_gain(-12.0)) * 1.001;
         assert!(max_step(&out) <= limit);
-        // After 20 glide time constants it is on the new frequency.
+        // From 20 glide time constants on (1 s) it is on the new frequency.
         let tail = &out[out.len() - 24_000..];
         let fit = fit_sine(tail, f64::from(FS)).expect("fit");
         assert!((fit.frequency_hz - 400.0).abs() < 1e-6, "{fit:?}");

@@ -282,7 +282,7 @@ impl TapwrightApp {
         self.take_job_results();
         self.take_capture_events();
         self.take_dropped_files(ui.ctx());
-        drive_area::stop_on_escape(ui, &mut self.drive_state);
+        drive_area::each_frame(ui, &mut self.drive_state);
         self.draw(ui);
         if !self.commands.is_empty() {
             // The frame just drawn predates the commands: draw once more.

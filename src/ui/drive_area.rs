@@ -44,6 +44,8 @@ pub struct DriveAreaState {
     settings: ToneSettings,
     /// The frequency as typed.
     frequency_text: String,
+    /// What is wrong with the typed frequency, if anything.
+    frequency_problem: Option<String>,
     /// Where the frequency came from ("mode 5 from Listen").
     picked_from: Option<String>,
     output: Option<ToneOutput>,
@@ -71,6 +73,7 @@ impl DriveAreaState {
         Self {
             choice,
             frequency_text: format!("{:.2}", settings.frequency_hz),
+            frequency_problem: None,
             settings,
             picked_from: None,
             output: None,
@@ -89,6 +92,11 @@ impl DriveAreaState {
     /// What the tone is doing, None when no output is open.
     pub fn tone_state(&self) -> Option<ToneState> {
         self.output.as_ref().map(|o| o.controls().state())
+    }
+
+    /// The sentence shown under the controls (a problem, or "Stopped").
+    pub fn note(&self) -> Option<&str> {
+        self.note.as_ref().map(|(text, _)| text.as_str())
     }
 
     /// True while a Start is waiting for the output to open.
@@ -123,6 +131,10 @@ impl DriveAreaState {
     }
 
     fn start(&mut self, ctx: &egui::Context) {
+        if let Some(problem) = &self.frequency_problem {
+            self.note = Some((problem.clone(), true));
+            return;
+        }
         let rate = self.output.as_ref().map(|o| o.sample_rate_hz());
         if let Err(error) = self.settings.check(rate) {
             self.note = Some((sentence(&error.to_string()), true));
@@ -243,11 +255,14 @@ fn close_in_background(output: Option<ToneOutput>) {
     drop(closing);
 }
 
-/// Escape stops the tone from any area (called by the app every frame).
-pub fn stop_on_escape(ui: &egui::Ui, state: &mut DriveAreaState) {
+/// What runs every frame whatever the area shown (called by the app):
+/// Escape stops the tone; a finished opening is taken, device trouble
+/// reported, and an output whose tone has ended closed.
+pub fn each_frame(ui: &egui::Ui, state: &mut DriveAreaState) {
     if ui.input(|i| i.key_pressed(egui::Key::Escape)) {
         state.stop();
     }
+    state.follow(ui.ctx());
 }
 
 /// A mode offered for driving: frequency and what to call it.
@@ -264,7 +279,6 @@ pub fn show(
     ctx: &mut AreaContext,
     ledger_pick: (Option<&str>, Option<u32>),
 ) {
-    state.follow(ui.ctx());
     egui::ScrollArea::both()
         .id_salt("drive scroll")
         .auto_shrink([false, false])
@@ -335,13 +349,18 @@ fn mode_lists(
     }
 }
 
-/// The modes of the Ledger's chosen pass (else the chosen part's latest),
-/// under a title naming the part and pass.
+/// The modes of the Ledger's chosen pass (else the chosen part's latest;
+/// no part chosen yet: the first), under a title naming the part and pass.
 fn ledger_offers(
     build: Option<&Build>,
     (part_name, pass_number): (Option<&str>, Option<u32>),
 ) -> Option<(String, Vec<Offer>)> {
-    let part = build?.part(part_name?)?;
+    let build = build?;
+    // Before the Ledger has been shown, its first part (as it would show).
+    let part = match part_name {
+        Some(name) => build.part(name)?,
+        None => build.parts().first()?,
+    };
     let pass = match pass_number {
         Some(number) => part.pass(number)?,
         None => part.passes().last()?,
@@ -378,6 +397,7 @@ fn offer_buttons(
                 state.settings.frequency_hz = offer.frequency_hz;
                 state.settings.fine_tune_hz = 0.0;
                 state.frequency_text = format!("{:.2}", offer.frequency_hz);
+                state.frequency_problem = None;
                 let what = offer.label.as_deref().unwrap_or("a mode");
                 state.picked_from = Some(format!("{what} from {source}"));
             }
@@ -489,17 +509,23 @@ fn frequency_row(ui: &mut egui::Ui, state: &mut DriveAreaState) {
             .labelled_by(label.id);
         ui.label("Hz");
         if edit.changed() {
+            // Only a typed change is read back: a picked mode keeps its
+            // full precision, not the two decimals shown.
             state.picked_from = None;
+            match parse_hz(&state.frequency_text) {
+                Ok(hz) => {
+                    state.settings.frequency_hz = hz;
+                    state.frequency_problem = None;
+                }
+                Err(problem) => state.frequency_problem = Some(problem),
+            }
         }
     });
     ui.end_row();
-    match parse_hz(&state.frequency_text) {
-        Ok(hz) => state.settings.frequency_hz = hz,
-        Err(problem) => {
-            ui.label("");
-            ui.colored_label(ui.visuals().error_fg_color, problem);
-            ui.end_row();
-        }
+    if let Some(problem) = &state.frequency_problem {
+        ui.label("");
+        ui.colored_label(ui.visuals().error_fg_color, problem);
+        ui.end_row();
     }
 }
 
