@@ -575,9 +575,12 @@ fn readout(ui: &mut egui::Ui, state: &DriveAreaState) {
 }
 
 fn caution(ui: &mut egui::Ui) {
+    // Room for the frame's margin and stroke inside the column.
+    let text_width = ui.available_width() - 20.0;
     egui::Frame::group(ui.style())
         .stroke(egui::Stroke::new(1.5, ui.visuals().warn_fg_color))
         .show(ui, |ui| {
+            ui.set_max_width(text_width);
             ui.colored_label(ui.visuals().warn_fg_color, "Caution");
             ui.label(DRIVE_CAUTION);
         });
