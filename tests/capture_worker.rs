@@ -9,7 +9,7 @@ use std::time::{Duration, Instant};
 use tapwright::analysis::synth::SynthMode;
 use tapwright::analysis::{analyze_recording, AnalysisSettings, RejectReason, TriggerSettings};
 use tapwright::capture::{
-    CaptureError, CaptureEvent, CaptureHandle, CaptureSettings, OpenSource, Pacing,
+    CaptureError, CaptureEvent, CaptureHandle, CaptureSettings, Direction, OpenSource, Pacing,
     SampleGenerator, SampleSource, SourceChoice, SourceRead, SyntheticGenerator, SyntheticStrike,
     SyntheticTaps,
 };
@@ -537,6 +537,7 @@ impl OpenSource for ScriptedDevice {
     fn open(&mut self, _ring_capacity_s: f64) -> Result<Box<dyn SampleSource>, CaptureError> {
         if self.attempts.is_empty() {
             return Err(CaptureError::DeviceBusy {
+                direction: Direction::Input,
                 device: "scripted".to_owned(),
             });
         }
@@ -618,6 +619,7 @@ fn lost_busy_and_silent_devices_are_retried_until_stopped() {
                 then_lost: Some("the scripted device was unplugged".to_owned()),
             },
             Attempt::Fail(CaptureError::DeviceBusy {
+                direction: Direction::Input,
                 device: "scripted".to_owned(),
             }),
             Attempt::Deliver {
@@ -681,6 +683,7 @@ fn lost_busy_and_silent_devices_are_retried_until_stopped() {
 fn a_device_that_cannot_open_fails_at_start() {
     let device = ScriptedDevice {
         attempts: vec![Attempt::Fail(CaptureError::DeviceBusy {
+            direction: Direction::Input,
             device: "mic".to_owned(),
         })],
     };

@@ -13,6 +13,7 @@ pub mod modal;
 pub mod onset;
 pub mod pitch;
 pub mod recording;
+pub mod sine_fit;
 pub mod spectrum;
 pub mod synth;
 pub mod tap_finder;
@@ -23,6 +24,7 @@ pub use pitch::{Pitch, DEFAULT_A4_HZ};
 pub use recording::{
     analyze_recording, RecordingAnalyzer, RecordingReport, RejectedTap, TapRecord,
 };
+pub use sine_fit::{fit_sine, zero_crossing_hz, SineFit};
 pub use spectrum::DisplaySpectrum;
 pub use tap_finder::{
     find_taps, FoundTap, RejectReason, TapTrigger, TriggerEvent, TriggerSettings,

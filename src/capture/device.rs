@@ -15,7 +15,7 @@ use cpal::{FromSample, SampleFormat, SizedSample, StreamConfig, SupportedStreamC
 
 use super::ring::{sample_ring, RingReader, RingWriter};
 use super::source::{OpenSource, SampleSource, SourceRead};
-use super::{check_sample_rate, ring_capacity_samples, CaptureError};
+use super::{check_sample_rate, ring_capacity_samples, CaptureError, Direction};
 
 /// Stream errors waiting for the worker (more are dropped).
 const ERROR_RING_LEN: usize = 16;
@@ -55,7 +55,7 @@ pub struct DeviceInfo {
 /// The first audio system that starts (on Linux: ALSA). Every thread that
 /// lists or opens devices comes through here, so alsa-lib's own messages
 /// are silenced on it first.
-fn audio_host() -> Result<cpal::Host, CaptureError> {
+pub(crate) fn audio_host() -> Result<cpal::Host, CaptureError> {
     silence_audio_library_messages();
     let mut last_problem = String::from("no audio system is compiled in");
     for id in cpal::available_hosts() {
@@ -101,7 +101,7 @@ fn silence_audio_library_messages() {
 #[cfg(not(target_os = "linux"))]
 fn silence_audio_library_messages() {}
 
-fn device_name(device: &cpal::Device) -> String {
+pub(crate) fn device_name(device: &cpal::Device) -> String {
     match device.description() {
         Ok(description) => description.name().to_owned(),
         Err(_) => device_id(device),
@@ -165,27 +165,46 @@ fn describe(device: &cpal::Device, default_id: Option<&str>) -> Option<DeviceInf
     })
 }
 
-fn is_pcm(format: SampleFormat) -> bool {
+pub(crate) fn is_pcm(format: SampleFormat) -> bool {
     !matches!(
         format,
         SampleFormat::DsdU8 | SampleFormat::DsdU16 | SampleFormat::DsdU32
     )
 }
 
-/// Finds a device by exact id (with or without the host prefix), exact
-/// name, or a case-insensitive part of exactly one name.
-fn find_device(host: &cpal::Host, wanted: &str) -> Result<cpal::Device, CaptureError> {
-    let mut devices: Vec<cpal::Device> = host
-        .input_devices()
-        .map_err(|e| CaptureError::NoAudioSystem {
-            detail: e.to_string(),
-        })?
-        .collect();
-    if let Some(default) = host.default_input_device() {
+/// The devices that go one way, the system default among them.
+fn devices_of(host: &cpal::Host, direction: Direction) -> Result<Vec<cpal::Device>, CaptureError> {
+    let listed = match direction {
+        Direction::Input => host.input_devices().map(|d| d.collect::<Vec<_>>()),
+        Direction::Output => host.output_devices().map(|d| d.collect::<Vec<_>>()),
+    };
+    let mut devices = listed.map_err(|e| CaptureError::NoAudioSystem {
+        detail: e.to_string(),
+    })?;
+    if let Some(default) = default_device(host, direction) {
         if !devices.iter().any(|d| device_id(d) == device_id(&default)) {
             devices.push(default);
         }
     }
+    Ok(devices)
+}
+
+/// The system's default device one way, if there is one.
+pub(crate) fn default_device(host: &cpal::Host, direction: Direction) -> Option<cpal::Device> {
+    match direction {
+        Direction::Input => host.default_input_device(),
+        Direction::Output => host.default_output_device(),
+    }
+}
+
+/// Finds a device by exact id (with or without the host prefix), exact
+/// name, or a case-insensitive part of exactly one name.
+pub(crate) fn find_device(
+    host: &cpal::Host,
+    wanted: &str,
+    direction: Direction,
+) -> Result<cpal::Device, CaptureError> {
+    let mut devices = devices_of(host, direction)?;
     let by_id = devices.iter().position(|d| {
         d.id()
             .is_ok_and(|id| id.to_string() == wanted || id.id() == wanted)
@@ -203,10 +222,12 @@ fn find_device(host: &cpal::Host, wanted: &str) -> Result<cpal::Device, CaptureE
     match partial.len() {
         1 => Ok(devices.swap_remove(partial.remove(0))),
         0 => Err(CaptureError::DeviceNotFound {
+            direction,
             name: wanted.to_owned(),
             known: known_names(&devices),
         }),
         _ => Err(CaptureError::AmbiguousDevice {
+            direction,
             name: wanted.to_owned(),
             matches: partial
                 .iter()
@@ -267,14 +288,15 @@ fn choose_config(
     match device.default_input_config() {
         Ok(config) if is_pcm(config.sample_format()) => Ok(config),
         Ok(_) => Err(CaptureError::NoUsableFormat {
+            direction: Direction::Input,
             device: name.to_owned(),
         }),
-        Err(error) => Err(open_error(name, is_default, &error)),
+        Err(error) => Err(open_error(name, is_default, Direction::Input, &error)),
     }
 }
 
 /// 48 kHz, else 44.1 kHz, else the highest rate tapwright accepts.
-fn preferred_rate(range: &cpal::SupportedStreamConfigRange) -> Option<u32> {
+pub(crate) fn preferred_rate(range: &cpal::SupportedStreamConfigRange) -> Option<u32> {
     let (low, high) = (range.min_sample_rate(), range.max_sample_rate());
     let accepted = crate::wav_io::MIN_SAMPLE_RATE_HZ..=crate::wav_io::MAX_SAMPLE_RATE_HZ;
     [48_000, 44_100]
@@ -313,7 +335,12 @@ fn config_rank(channels: u16, rate_hz: u32, format: SampleFormat) -> (u8, u8, u8
 
 /// Turns a cpal error met while opening into one of ours. `is_default`
 /// says whether the system default was asked for (no name given).
-fn open_error(device: &str, is_default: bool, error: &cpal::Error) -> CaptureError {
+pub(crate) fn open_error(
+    device: &str,
+    is_default: bool,
+    direction: Direction,
+    error: &cpal::Error,
+) -> CaptureError {
     let device = device.to_owned();
     // cpal's own message when it has one (the kind's text is generic).
     let detail = error
@@ -321,16 +348,29 @@ fn open_error(device: &str, is_default: bool, error: &cpal::Error) -> CaptureErr
         .map(|m| format!(" ({})", m.trim_end_matches('.')))
         .unwrap_or_default();
     match error.kind() {
-        cpal::ErrorKind::DeviceBusy => CaptureError::DeviceBusy { device },
+        cpal::ErrorKind::DeviceBusy => CaptureError::DeviceBusy { direction, device },
         cpal::ErrorKind::DeviceNotAvailable | cpal::ErrorKind::HostUnavailable if is_default => {
-            CaptureError::DefaultUnavailable { device, detail }
+            CaptureError::DefaultUnavailable {
+                direction,
+                device,
+                detail,
+            }
         }
         cpal::ErrorKind::DeviceNotAvailable | cpal::ErrorKind::HostUnavailable => {
-            CaptureError::DeviceUnavailable { device, detail }
+            CaptureError::DeviceUnavailable {
+                direction,
+                device,
+                detail,
+            }
         }
-        cpal::ErrorKind::PermissionDenied => CaptureError::PermissionDenied { device, detail },
-        cpal::ErrorKind::UnsupportedConfig => CaptureError::NoUsableFormat { device },
+        cpal::ErrorKind::PermissionDenied => CaptureError::PermissionDenied {
+            direction,
+            device,
+            detail,
+        },
+        cpal::ErrorKind::UnsupportedConfig => CaptureError::NoUsableFormat { direction, device },
         _ => CaptureError::Open {
+            direction,
             device,
             detail: error.to_string().trim_end_matches('.').to_owned(),
         },
@@ -409,7 +449,7 @@ pub fn open_device(
         None => host
             .default_input_device()
             .ok_or(CaptureError::NoInputDevice)?,
-        Some(name) => find_device(&host, name)?,
+        Some(name) => find_device(&host, name, Direction::Input)?,
     };
     let name = device_name(&device);
     let is_default = wanted.is_none();
@@ -425,10 +465,10 @@ pub fn open_device(
         writer,
         error_writer,
     )
-    .map_err(|e| open_error(&name, is_default, &e))?;
+    .map_err(|e| open_error(&name, is_default, Direction::Input, &e))?;
     stream
         .play()
-        .map_err(|e| open_error(&name, is_default, &e))?;
+        .map_err(|e| open_error(&name, is_default, Direction::Input, &e))?;
     let channels = config.channels;
     Ok(DeviceSource {
         description: format!(

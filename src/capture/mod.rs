@@ -31,11 +31,13 @@
 mod device;
 mod events;
 mod feeder;
+mod output;
 mod pipeline;
 mod replay;
 mod ring;
 mod source;
 mod synthetic;
+pub mod tone;
 mod worker;
 
 use std::time::Duration;
@@ -48,11 +50,13 @@ use crate::wav_io::MonoRecording;
 pub use device::{list_input_devices, open_device, DeviceInfo, DeviceSource};
 pub use events::{CaptureEvent, InputLevel};
 pub use feeder::{FedSource, SampleGenerator};
+pub use output::{open_output, open_tone_output, open_virtual_output, OutputChoice, ToneOutput};
 pub use pipeline::TapPipeline;
 pub use replay::ReplayGenerator;
 pub use ring::{sample_ring, RingReader, RingWriter};
 pub use source::{OpenSource, SampleSource, SourceRead};
 pub use synthetic::{SyntheticGenerator, SyntheticStrike, SyntheticTaps};
+pub use tone::{ToneControls, ToneSettings, ToneState};
 pub use worker::{CaptureHandle, Notify};
 
 /// A live source that delivers nothing for this long is treated as lost.
@@ -156,31 +160,70 @@ pub enum CaptureError {
     /// No input device exists (or the default cannot be found).
     #[error("there is no audio input device: connect a microphone or audio interface")]
     NoInputDevice,
+    /// No output device exists (or the default cannot be found).
+    #[error(
+        "there is no audio output device: connect a loudspeaker, amplifier or audio interface"
+    )]
+    NoOutputDevice,
     /// `--device NAME` named nothing known.
-    #[error("no input device is called '{name}' (known: {known}); `tapwright devices` lists them")]
-    DeviceNotFound { name: String, known: String },
+    #[error("no {direction} device is called '{name}' (known: {known}){}", .direction.listing_hint())]
+    DeviceNotFound {
+        direction: Direction,
+        name: String,
+        known: String,
+    },
     /// The name matched several devices.
-    #[error("'{name}' matches several input devices ({matches}); give the full name or the id")]
-    AmbiguousDevice { name: String, matches: String },
+    #[error(
+        "'{name}' matches several {direction} devices ({matches}); give the full name or the id"
+    )]
+    AmbiguousDevice {
+        direction: Direction,
+        name: String,
+        matches: String,
+    },
     /// Another program holds the device.
-    #[error("the input device '{device}' is busy: another program may be using it")]
-    DeviceBusy { device: String },
-    /// The system's default input cannot be opened (no sound card, or the
+    #[error("the {direction} device '{device}' is busy: another program may be using it")]
+    DeviceBusy {
+        direction: Direction,
+        device: String,
+    },
+    /// The system's default device cannot be opened (no sound card, or the
     /// default points at one that is missing).
-    #[error("there is no usable audio input device: the default input '{device}' cannot be opened{detail}; connect a microphone or audio interface")]
-    DefaultUnavailable { device: String, detail: String },
+    #[error("there is no usable audio {direction} device: the default {direction} '{device}' cannot be opened{detail}; {}", .direction.connect_hint())]
+    DefaultUnavailable {
+        direction: Direction,
+        device: String,
+        detail: String,
+    },
     /// The device is gone or cannot be reached.
-    #[error("the input device '{device}' cannot be opened: it is missing or disconnected{detail}")]
-    DeviceUnavailable { device: String, detail: String },
+    #[error(
+        "the {direction} device '{device}' cannot be opened: it is missing or disconnected{detail}"
+    )]
+    DeviceUnavailable {
+        direction: Direction,
+        device: String,
+        detail: String,
+    },
     /// The system refused access.
-    #[error("permission to record from '{device}' was refused{detail}")]
-    PermissionDenied { device: String, detail: String },
-    /// The device cannot deliver any sample format tapwright reads.
-    #[error("the input device '{device}' offers no sample format tapwright can read")]
-    NoUsableFormat { device: String },
+    #[error("permission to {} '{device}' was refused{detail}", .direction.use_verb())]
+    PermissionDenied {
+        direction: Direction,
+        device: String,
+        detail: String,
+    },
+    /// The device cannot take any sample format tapwright makes or reads.
+    #[error("the {direction} device '{device}' offers no sample format tapwright can {}", .direction.format_verb())]
+    NoUsableFormat {
+        direction: Direction,
+        device: String,
+    },
     /// Anything else the audio system reported while opening.
-    #[error("cannot open the input device '{device}': {detail}")]
-    Open { device: String, detail: String },
+    #[error("cannot open the {direction} device '{device}': {detail}")]
+    Open {
+        direction: Direction,
+        device: String,
+        detail: String,
+    },
     /// A recording or synthetic source with nothing to play.
     #[error("the {what} holds no samples")]
     EmptySource { what: String },
@@ -195,6 +238,54 @@ pub enum CaptureError {
     /// The worker ended before it could answer.
     #[error("the capture worker stopped before the source was opened")]
     WorkerGone,
+}
+
+/// Which way the sound goes through a device.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Direction {
+    /// Recording (a microphone).
+    Input,
+    /// Playing (a loudspeaker, for the drive tone).
+    Output,
+}
+
+impl Direction {
+    fn listing_hint(self) -> &'static str {
+        match self {
+            Direction::Input => "; `tapwright devices` lists them",
+            Direction::Output => "",
+        }
+    }
+
+    fn connect_hint(self) -> &'static str {
+        match self {
+            Direction::Input => "connect a microphone or audio interface",
+            Direction::Output => "connect a loudspeaker, amplifier or audio interface",
+        }
+    }
+
+    fn use_verb(self) -> &'static str {
+        match self {
+            Direction::Input => "record from",
+            Direction::Output => "play through",
+        }
+    }
+
+    fn format_verb(self) -> &'static str {
+        match self {
+            Direction::Input => "read",
+            Direction::Output => "write",
+        }
+    }
+}
+
+impl std::fmt::Display for Direction {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str(match self {
+            Direction::Input => "input",
+            Direction::Output => "output",
+        })
+    }
 }
 
 /// Ring length in samples for `seconds` of sound at `sample_rate_hz`

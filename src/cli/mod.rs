@@ -4,6 +4,7 @@
 mod air;
 mod analyze;
 mod capture_cmds;
+mod drive;
 mod ledger_cmd;
 mod measure;
 pub mod output;
@@ -47,6 +48,8 @@ pub enum Command {
     Ledger(ledger_cmd::LedgerArgs),
     /// Estimate a body's air resonance (A0) from its volume and openings.
     Air(air::AirArgs),
+    /// Play a tone at a mode's frequency through a loudspeaker (Chladni patterns).
+    Drive(drive::DriveArgs),
 }
 
 /// Parses the process arguments, runs the chosen subcommand (or opens the
@@ -66,6 +69,7 @@ pub fn run_from_env() -> ExitCode {
         Some(Command::Listen(args)) => capture_cmds::run_listen(args),
         Some(Command::Ledger(args)) => ledger_cmd::run(args),
         Some(Command::Air(args)) => air::run(args),
+        Some(Command::Drive(args)) => drive::run(args),
     };
     match outcome {
         Ok(()) => ExitCode::SUCCESS,

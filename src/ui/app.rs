@@ -15,6 +15,7 @@ use crate::ledger::Build;
 
 use super::air_area::{self, AirAreaState};
 use super::commands::{AppCommand, Area, AreaContext, ListenCommand, SourcePick};
+use super::drive_area::{self, DriveAreaState};
 use super::jobs::{self, FilePurpose, JobDone, Jobs};
 use super::ledger_area::{self, LedgerAreaState};
 use super::listen_area::{self, ListenView};
@@ -47,6 +48,8 @@ pub struct AppOptions {
     /// When the program started, to report the time to the first frame
     /// (printed on stderr when set).
     pub started_at: Option<Instant>,
+    /// Where the Drive area plays its tone.
+    pub drive_output: crate::capture::OutputChoice,
 }
 
 impl Default for AppOptions {
@@ -57,6 +60,7 @@ impl Default for AppOptions {
             build: None,
             sample_build_with_demo: false,
             started_at: None,
+            drive_output: crate::capture::OutputChoice::default(),
         }
     }
 }
@@ -146,6 +150,7 @@ pub struct TapwrightApp {
     listen_view: ListenView,
     ledger_state: LedgerAreaState,
     air_state: AirAreaState,
+    drive_state: DriveAreaState,
     status: Option<Status>,
     commands: Vec<AppCommand>,
     frames: u64,
@@ -167,6 +172,7 @@ impl TapwrightApp {
             level_interval_ms: 200.0,
             ..CaptureSettings::default()
         };
+        let drive_state = DriveAreaState::new(options.drive_output.clone());
         Self {
             options,
             area: Area::Listen,
@@ -198,6 +204,7 @@ impl TapwrightApp {
             listen_part: None,
             ledger_state: LedgerAreaState::default(),
             air_state: AirAreaState::default(),
+            drive_state,
             status: None,
             commands: Vec::new(),
             frames: 0,
@@ -229,6 +236,11 @@ impl TapwrightApp {
     /// The area shown.
     pub fn area(&self) -> Area {
         self.area
+    }
+
+    /// The Drive area's state (its tone).
+    pub fn drive(&self) -> &DriveAreaState {
+        &self.drive_state
     }
 
     /// The open build.
@@ -270,6 +282,7 @@ impl TapwrightApp {
         self.take_job_results();
         self.take_capture_events();
         self.take_dropped_files(ui.ctx());
+        drive_area::each_frame(ui, &mut self.drive_state);
         self.draw(ui);
         if !self.commands.is_empty() {
             // The frame just drawn predates the commands: draw once more.
@@ -602,7 +615,7 @@ impl TapwrightApp {
                 };
                 listen_area::show(ui, &mut self.listen_view, &facts, &mut ctx);
             }
-            Area::Ledger | Area::Air => {
+            Area::Ledger | Area::Air | Area::Drive => {
                 let area = self.area;
                 let mut ctx = AreaContext {
                     pass: self.session.pass(),
@@ -616,8 +629,12 @@ impl TapwrightApp {
                 };
                 let ledger_state = &mut self.ledger_state;
                 let air_state = &mut self.air_state;
+                let drive_state = &mut self.drive_state;
                 egui::CentralPanel::default().show(ui, |ui| match area {
                     Area::Ledger => ledger_area::show(ui, ledger_state, &mut ctx),
+                    Area::Drive => {
+                        drive_area::show(ui, drive_state, &mut ctx, ledger_state.selection())
+                    }
                     _ => air_area::show(ui, air_state, &mut ctx),
                 });
             }
@@ -1033,6 +1050,11 @@ impl TapwrightApp {
 impl eframe::App for TapwrightApp {
     fn ui(&mut self, ui: &mut egui::Ui, _frame: &mut eframe::Frame) {
         self.show(ui);
+    }
+
+    fn on_exit(&mut self, _gl: Option<&eframe::glow::Context>) {
+        // Fade the drive tone out before the window goes.
+        self.drive_state.stop_and_close();
     }
 }
 

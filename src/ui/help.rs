@@ -32,6 +32,11 @@ pub fn show(ui: &mut egui::Ui) {
              (NIOSH recommended exposure limit). Tap gently, keep headphone and monitor levels low.",
         );
         ui.label(
+            "Driving a loudspeaker (Drive area): a steady tone tires the ear faster than tapping, \
+             and a plate at resonance can be louder than the speaker alone. Start low, protect \
+             your ears, keep the speaker within its rated power; Escape stops the tone.",
+        );
+        ui.label(
             "Sharp tools: gouges, planes, scrapers and knives used for graduation cut deep. Keep \
              them sharp, cut away from the hand that holds the work, and clamp the work.",
         );

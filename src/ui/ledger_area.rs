@@ -76,6 +76,13 @@ pub struct LedgerAreaState {
     files: files::FileJobs,
 }
 
+impl LedgerAreaState {
+    /// The part chosen, and the pass chosen in its table (None: no row).
+    pub fn selection(&self) -> (Option<&str>, Option<u32>) {
+        (self.selected_part.as_deref(), self.selected_pass)
+    }
+}
+
 /// A sentence shown inline, and whether it reports a problem.
 #[derive(Clone, Debug, PartialEq)]
 struct Note {

@@ -12,6 +12,7 @@
 pub mod air_area;
 mod app;
 mod commands;
+pub mod drive_area;
 mod export;
 mod help;
 mod jobs;
