@@ -19,6 +19,7 @@ use super::jobs::{self, FilePurpose, JobDone, Jobs};
 use super::ledger_area::{self, LedgerAreaState};
 use super::listen_area::{self, ListenView};
 use super::session::{ListenSession, TapEntry};
+use super::stock_area::{self, StockAreaState};
 
 /// Where the window takes its sound from when it opens.
 #[derive(Clone, Debug, PartialEq, Eq)]
@@ -146,6 +147,7 @@ pub struct TapwrightApp {
     listen_view: ListenView,
     ledger_state: LedgerAreaState,
     air_state: AirAreaState,
+    stock_state: StockAreaState,
     status: Option<Status>,
     commands: Vec<AppCommand>,
     frames: u64,
@@ -198,6 +200,7 @@ impl TapwrightApp {
             listen_part: None,
             ledger_state: LedgerAreaState::default(),
             air_state: AirAreaState::default(),
+            stock_state: StockAreaState::default(),
             status: None,
             commands: Vec::new(),
             frames: 0,
@@ -602,7 +605,7 @@ impl TapwrightApp {
                 };
                 listen_area::show(ui, &mut self.listen_view, &facts, &mut ctx);
             }
-            Area::Ledger | Area::Air => {
+            Area::Ledger | Area::Air | Area::Stock => {
                 let area = self.area;
                 let mut ctx = AreaContext {
                     pass: self.session.pass(),
@@ -616,8 +619,10 @@ impl TapwrightApp {
                 };
                 let ledger_state = &mut self.ledger_state;
                 let air_state = &mut self.air_state;
+                let stock_state = &mut self.stock_state;
                 egui::CentralPanel::default().show(ui, |ui| match area {
                     Area::Ledger => ledger_area::show(ui, ledger_state, &mut ctx),
+                    Area::Stock => stock_area::show(ui, stock_state, &mut ctx),
                     _ => air_area::show(ui, air_state, &mut ctx),
                 });
             }

@@ -20,11 +20,13 @@ pub enum Area {
     Ledger,
     /// The cavity estimator and the air check.
     Air,
+    /// Wood samples graded from bar taps.
+    Stock,
 }
 
 impl Area {
     /// Every area, in the order of the top bar.
-    pub const ALL: [Area; 3] = [Area::Listen, Area::Ledger, Area::Air];
+    pub const ALL: [Area; 4] = [Area::Listen, Area::Ledger, Area::Air, Area::Stock];
 
     /// The name on screen.
     pub fn title(self) -> &'static str {
@@ -32,6 +34,7 @@ impl Area {
             Area::Listen => "Listen",
             Area::Ledger => "Ledger",
             Area::Air => "Air",
+            Area::Stock => "Stock",
         }
     }
 }

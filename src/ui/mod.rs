@@ -19,6 +19,7 @@ pub mod ledger_area;
 mod listen_area;
 mod session;
 mod spectrum_plot;
+pub mod stock_area;
 mod widgets;
 
 use std::path::PathBuf;
