@@ -231,9 +231,9 @@ fn sample_form(ui: &mut egui::Ui, state: &mut StockAreaState, ctx: &mut AreaCont
                 ("Species", &mut state.species, 200.0),
                 ("Source", &mut state.source_note, 320.0),
             ] {
-                ui.label(name);
+                let label = ui.label(name);
                 ui.add(egui::TextEdit::singleline(text).desired_width(width))
-                    .accessible_name(name);
+                    .labelled_by(label.id);
                 ui.end_row();
             }
         });
