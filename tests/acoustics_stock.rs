@@ -57,7 +57,10 @@ fn t1_for_slender_bars_is_the_standards_short_form() {
     let at_zero = astm_e1876_t1(0.05, 0.0);
     assert!((at_zero - short).abs() < 1e-4, "{at_zero} vs {short}");
     let full = astm_e1876_t1(0.05, 0.37);
-    assert!(full > short && relative_error(full, short) < 3e-3, "{full} vs {short}");
+    assert!(
+        full > short && relative_error(full, short) < 3e-3,
+        "{full} vs {short}"
+    );
     // The Poisson's ratio assumed for wood matters little at L/t = 10:
     // 0.3 against 0.45 moves T1 by less than 0.7 % (a claim of the module).
     let spread = astm_e1876_t1(0.1, 0.45) / astm_e1876_t1(0.1, 0.3) - 1.0;
@@ -119,7 +122,13 @@ fn handbook_spruce_and_maple_give_the_expected_figures() {
     // Forward: the frequency such a bar gives (Euler–Bernoulli, T1 from
     // the standard), then back through the checked path.
     for (name, density, e_pa, c_range, ratio_range) in [
-        ("Sitka spruce", 448.0, 10.8e9, (4700.0, 5100.0), (10.0, 12.0)),
+        (
+            "Sitka spruce",
+            448.0,
+            10.8e9,
+            (4700.0, 5100.0),
+            (10.0, 12.0),
+        ),
         ("sugar maple", 706.0, 12.6e9, (4000.0, 4500.0), (5.5, 6.5)),
     ] {
         let (l, b, t) = (300.0_f64, 25.0_f64, 10.0_f64);
@@ -129,7 +138,10 @@ fn handbook_spruce_and_maple_give_the_expected_figures() {
         let mut sample = bar(l, b, t, mass_g);
         sample.flexural_hz = Some(f);
         let figures = bar_figures(&sample).unwrap();
-        assert!(relative_error(figures.youngs_modulus_pa, e_pa) < 1e-9, "{name}");
+        assert!(
+            relative_error(figures.youngs_modulus_pa, e_pa) < 1e-9,
+            "{name}"
+        );
         // Speed of sound and radiation ratio of these woods along the
         // grain: spruce about 5000 m/s and 11 m⁴/(kg·s), maple about
         // 4200 m/s and 6 (computed from the handbook values above).
@@ -155,7 +167,13 @@ fn the_second_mode_checks_the_first() {
     assert!(check.consistent);
     assert!((check.ratio - 2.73).abs() < 1e-12);
     sample.second_flexural_hz = Some(560.0 * 2.0);
-    assert!(!bar_figures(&sample).unwrap().second_mode.unwrap().consistent);
+    assert!(
+        !bar_figures(&sample)
+            .unwrap()
+            .second_mode
+            .unwrap()
+            .consistent
+    );
     sample.second_flexural_hz = Some(500.0);
     assert!(matches!(
         bar_figures(&sample),
@@ -168,13 +186,56 @@ fn bad_bars_are_refused_with_one_sentence() {
     let mut sample = bar(300.0, 25.0, 10.0, 33.75);
     sample.flexural_hz = Some(560.0);
     let cases: Vec<(BarSample, &str)> = vec![
-        (BarSample { width_mm: 0.0, ..sample.clone() }, "width 0 mm"),
-        (BarSample { mass_g: -3.0, ..sample.clone() }, "mass -3 g"),
-        (BarSample { thickness_mm: 30.0, ..sample.clone() }, "30 mm thick"),
-        (BarSample { length_mm: 20.0, thickness_mm: 5.0, ..sample.clone() }, "20 mm long"),
-        (BarSample { mass_g: 3000.0, ..sample.clone() }, "density"),
-        (BarSample { flexural_hz: Some(0.0), ..sample.clone() }, "first flexural frequency 0 Hz"),
-        (BarSample { flexural_hz: None, ..sample.clone() }, "neither"),
+        (
+            BarSample {
+                width_mm: 0.0,
+                ..sample.clone()
+            },
+            "width 0 mm",
+        ),
+        (
+            BarSample {
+                mass_g: -3.0,
+                ..sample.clone()
+            },
+            "mass -3 g",
+        ),
+        (
+            BarSample {
+                thickness_mm: 30.0,
+                ..sample.clone()
+            },
+            "30 mm thick",
+        ),
+        (
+            BarSample {
+                length_mm: 20.0,
+                thickness_mm: 5.0,
+                ..sample.clone()
+            },
+            "20 mm long",
+        ),
+        (
+            BarSample {
+                mass_g: 3000.0,
+                ..sample.clone()
+            },
+            "density",
+        ),
+        (
+            BarSample {
+                flexural_hz: Some(0.0),
+                ..sample.clone()
+            },
+            "first flexural frequency 0 Hz",
+        ),
+        (
+            BarSample {
+                flexural_hz: None,
+                ..sample.clone()
+            },
+            "neither",
+        ),
     ];
     for (bad, needle) in cases {
         let message = bar_figures(&bad).unwrap_err().to_string();

@@ -43,8 +43,14 @@ fn json_has_the_promised_fields() {
     assert!((c - (10.909_164e9_f64 / 450.0).sqrt()).abs() < 0.01);
     assert!((v["radiation_ratio"].as_f64().unwrap() - c / 450.0).abs() < 1e-6);
     assert!((v["specific_modulus"].as_f64().unwrap() - 10.909_164 / 0.45).abs() < 1e-4);
-    assert!(v["flexural"]["formula"].as_str().unwrap().contains("ASTM E1876"));
-    assert!(v["longitudinal"]["formula"].as_str().unwrap().contains("4 rho L^2 f^2"));
+    assert!(v["flexural"]["formula"]
+        .as_str()
+        .unwrap()
+        .contains("ASTM E1876"));
+    assert!(v["longitudinal"]["formula"]
+        .as_str()
+        .unwrap()
+        .contains("4 rho L^2 f^2"));
     assert!((v["longitudinal"]["youngs_modulus_gpa"].as_f64().unwrap() - 10.760_445).abs() < 1e-6);
     assert!(v.get("second_flexural").is_none());
 }

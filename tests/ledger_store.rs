@@ -321,7 +321,8 @@ fn schema_version_1_files_are_migrated() {
 fn schema_version_2_files_are_migrated() {
     // tests/fixtures/ledger_v2_cello_back.ron was written by hand in the
     // version-2 layout (no stock list) and is frozen.
-    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/ledger_v2_cello_back.ron");
+    let path =
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/ledger_v2_cello_back.ron");
     let before = fs::read(&path).unwrap();
     let build = store::load(&path).unwrap();
     assert_eq!(fs::read(&path).unwrap(), before, "loading never writes");
@@ -347,7 +348,8 @@ fn schema_version_2_files_are_migrated() {
 
 #[test]
 fn a_version_2_file_with_a_stock_list_is_refused_and_a_version_3_file_needs_one() {
-    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/ledger_v2_cello_back.ron");
+    let path =
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/ledger_v2_cello_back.ron");
     let v2 = fs::read_to_string(&path).unwrap();
     let mixed = v2.replacen("    air: None,\n", "    air: None,\n    stock: [],\n", 1);
     assert_ne!(mixed, v2);

@@ -504,8 +504,18 @@ fn violin_sample_is_current_and_plausible() {
     assert_within("maple E GPa", maple.youngs_modulus_gpa(), 9.5, 13.0);
     // Along/across ratios: common practice, no source (spruce about
     // 10–20, maple about 5–10).
-    assert_within("spruce grain ratio", stock[0].grain_ratio().unwrap(), 8.0, 20.0);
-    assert_within("maple grain ratio", stock[1].grain_ratio().unwrap(), 4.0, 12.0);
+    assert_within(
+        "spruce grain ratio",
+        stock[0].grain_ratio().unwrap(),
+        8.0,
+        20.0,
+    );
+    assert_within(
+        "maple grain ratio",
+        stock[1].grain_ratio().unwrap(),
+        4.0,
+        12.0,
+    );
     // Closed violin body (references.md, from memory): A0 270–290, CBR
     // 380–430, B1− 440–490, B1+ 510–570 Hz.
     let body = build.part("Body").unwrap().latest_pass().unwrap();

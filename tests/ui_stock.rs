@@ -48,7 +48,7 @@ fn a_sample_with_a_frequency_from_listen_shows_its_figures_and_is_kept() {
     harness.get_by_label_contains("tap one end face");
 
     set_field(&mut harness, "Sample name", "wedge 1");
-    set_field(&mut harness, "Species", "spruce");
+    set_field(&mut harness, "Sample species", "spruce");
     set_field(&mut harness, "Along-grain length", "300");
     set_field(&mut harness, "Along-grain width", "25");
     set_field(&mut harness, "Along-grain thickness", "10");
@@ -102,10 +102,13 @@ fn a_sample_with_a_frequency_from_listen_shows_its_figures_and_is_kept() {
     let ratio = figures.youngs_modulus_pa / across.youngs_modulus_pa;
     harness.get_by_label(&format!("E along / E across: {ratio:.1}"));
 
+    // The button sits below the fold of an 800-point window.
+    harness.get_by_label("Keep in the build").scroll_to_me();
+    harness.run_ok();
     harness.get_by_label("Keep in the build").click();
     harness.run_ok();
     let build = harness.state().build().expect("a build");
-    assert_eq!(build.stock().len(), 1);
+    assert_eq!(build.stock().len(), 1, "{:?}", harness.state().status());
     let kept = &build.stock()[0];
     assert_eq!(kept.name, "wedge 1");
     assert_eq!(kept.along_grain.as_ref(), Some(&bar));

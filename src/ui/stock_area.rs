@@ -227,13 +227,13 @@ fn sample_form(ui: &mut egui::Ui, state: &mut StockAreaState, ctx: &mut AreaCont
         .spacing([8.0, 4.0])
         .show(ui, |ui| {
             for (name, text, width) in [
-                ("Sample name", &mut state.name, 200.0),
+                ("Name", &mut state.name, 200.0),
                 ("Species", &mut state.species, 200.0),
                 ("Source", &mut state.source_note, 320.0),
             ] {
-                let label = ui.label(name);
+                ui.label(name);
                 ui.add(egui::TextEdit::singleline(text).desired_width(width))
-                    .labelled_by(label.id);
+                    .accessible_name(format!("Sample {}", name.to_lowercase()));
                 ui.end_row();
             }
         });
