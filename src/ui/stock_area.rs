@@ -639,24 +639,26 @@ fn stock_table(
     remove: &mut Option<String>,
 ) {
     egui::Grid::new("stock table")
-        .num_columns(11)
+        .num_columns(10)
         .striped(true)
-        .spacing([10.0, 3.0])
+        .spacing([8.0, 3.0])
         .show(ui, |ui| {
-            for title in [
-                "Sample",
-                "Species",
-                "ρ kg/m³",
-                "E along GPa",
-                "c m/s",
-                "c/ρ",
-                "E/ρ",
-                "E across GPa",
-                "along/across",
-                "",
-                "",
+            for (title, hover) in [
+                ("Sample", "Hover a name for its source note"),
+                ("Species", ""),
+                ("ρ kg/m³", "Density"),
+                ("E GPa", "Young's modulus along the grain"),
+                ("c m/s", "Speed of sound, √(E/ρ)"),
+                ("c/ρ", "Radiation ratio, m⁴/(kg·s)"),
+                ("E/ρ", "Specific modulus, GPa per g/cm³"),
+                ("E across", "Young's modulus across the grain, GPa"),
+                ("ratio", "E along / E across"),
+                ("", ""),
             ] {
-                ui.strong(title);
+                let response = ui.strong(title);
+                if !hover.is_empty() {
+                    response.on_hover_text(hover);
+                }
             }
             ui.end_row();
             let dash = || "–".to_owned();
@@ -680,23 +682,55 @@ fn stock_table(
                         .map_or_else(dash, |f| fixed(f.youngs_modulus_gpa(), 3)),
                 );
                 ui.monospace(row.sample.grain_ratio().map_or_else(dash, |r| fixed(r, 1)));
-                if ui
-                    .small_button("Edit")
-                    .on_hover_text("Load this sample into the form on the left")
-                    .clicked()
-                {
-                    *edit = Some(row.sample.clone());
-                }
-                if ui
-                    .small_button("Remove")
-                    .on_hover_text("Take this sample out of the build's stock list")
-                    .clicked()
-                {
-                    *remove = Some(row.sample.name.clone());
-                }
+                ui.horizontal(|ui| {
+                    if ui
+                        .small_button("Edit")
+                        .on_hover_text("Load this sample into the form on the left")
+                        .clicked()
+                    {
+                        *edit = Some(row.sample.clone());
+                    }
+                    if ui
+                        .small_button("Remove")
+                        .on_hover_text("Take this sample out of the build's stock list")
+                        .clicked()
+                    {
+                        *remove = Some(row.sample.name.clone());
+                    }
+                });
                 ui.end_row();
             }
         });
+}
+
+/// The plotted point of a row: density and the chosen figure.
+fn point_of(row: &Row, axes: PlotAxes) -> Option<[f64; 2]> {
+    let f = row.main()?;
+    let y = match axes {
+        PlotAxes::SpeedAgainstDensity => f.speed_of_sound_m_s,
+        PlotAxes::ModulusAgainstDensity => f.youngs_modulus_gpa(),
+    };
+    Some([f.density_kg_m3, y])
+}
+
+/// Bounds that hold every point with a margin, so none sits on the edge.
+fn padded_bounds(points: &[[f64; 2]]) -> Option<([f64; 2], [f64; 2])> {
+    let first = points.first()?;
+    let (mut low, mut high) = (*first, *first);
+    for p in points {
+        for axis in 0..2 {
+            low[axis] = low[axis].min(p[axis]);
+            high[axis] = high[axis].max(p[axis]);
+        }
+    }
+    for axis in 0..2 {
+        let span = (high[axis] - low[axis])
+            .max(0.1 * high[axis].abs())
+            .max(1e-9);
+        low[axis] -= 0.2 * span;
+        high[axis] += 0.2 * span;
+    }
+    Some((low, high))
 }
 
 fn scatter(ui: &mut egui::Ui, rows: &[Row], axes: PlotAxes) {
@@ -704,30 +738,35 @@ fn scatter(ui: &mut egui::Ui, rows: &[Row], axes: PlotAxes) {
         PlotAxes::SpeedAgainstDensity => ("Density (kg/m³)", "Speed of sound (m/s)"),
         PlotAxes::ModulusAgainstDensity => ("Density (kg/m³)", "Young's modulus (GPa)"),
     };
-    Plot::new("stock scatter")
+    let plot = Plot::new("stock scatter")
         .height(PLOT_HEIGHT)
-        .legend(Legend::default())
+        .legend(Legend::default().position(egui_plot::Corner::RightTop))
         .x_axis_label(x_title)
         .y_axis_label(y_title)
-        .allow_scroll(false)
-        .show(ui, |plot_ui| {
-            for (index, row) in rows.iter().enumerate() {
-                let Some(f) = row.main() else {
-                    continue;
-                };
-                let y = match axes {
-                    PlotAxes::SpeedAgainstDensity => f.speed_of_sound_m_s,
-                    PlotAxes::ModulusAgainstDensity => f.youngs_modulus_gpa(),
-                };
-                plot_ui.points(
-                    Points::new(row.sample.name.clone(), vec![[f.density_kg_m3, y]])
-                        .color(colour(index))
-                        .radius(5.0)
-                        .filled(true)
-                        .shape(MarkerShape::Circle),
-                );
-            }
-        });
+        .allow_scroll(false);
+    let points: Vec<[f64; 2]> = rows.iter().filter_map(|r| point_of(r, axes)).collect();
+    let plot = match padded_bounds(&points) {
+        Some((low, high)) => plot
+            .include_x(low[0])
+            .include_x(high[0])
+            .include_y(low[1])
+            .include_y(high[1]),
+        None => plot,
+    };
+    plot.show(ui, |plot_ui| {
+        for (index, row) in rows.iter().enumerate() {
+            let Some(point) = point_of(row, axes) else {
+                continue;
+            };
+            plot_ui.points(
+                Points::new(row.sample.name.clone(), vec![point])
+                    .color(colour(index))
+                    .radius(5.0)
+                    .filled(true)
+                    .shape(MarkerShape::Circle),
+            );
+        }
+    });
 }
 
 fn colour(index: usize) -> egui::Color32 {
