@@ -8,14 +8,18 @@
 //!   Young's Modulus, Shear Modulus, and Poisson's Ratio by Impulse
 //!   Excitation of Vibration", rectangular bar:
 //!
+//!   ```text
 //!   E = 0.9465 (m f² / b) (L³ / t³) T1,
+//!   ```
 //!
 //!   with m in g, b, L, t in mm, f in Hz and E in Pa (g/mm is kg/m, so the
 //!   units close), and the correction factor for the bar's thickness
 //!
+//!   ```text
 //!   T1 = 1 + 6.585 (1 + 0.0752 μ + 0.8109 μ²)(t/L)² − 0.868 (t/L)⁴
-//!        − 8.340 (1 + 0.2023 μ + 2.173 μ²)(t/L)⁴
-//!          / (1 + 6.338 (1 + 0.1408 μ + 1.536 μ²)(t/L)²).
+//!          − 8.340 (1 + 0.2023 μ + 2.173 μ²)(t/L)⁴
+//!            / (1 + 6.338 (1 + 0.1408 μ + 1.536 μ²)(t/L)²).
+//!   ```
 //!
 //!   The standard allows T1 = 1 + 6.585 (t/L)² for L/t ≥ 20; tapwright
 //!   always uses the full expression, which needs a Poisson's ratio μ. The

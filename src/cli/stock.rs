@@ -46,7 +46,7 @@ pub struct StockArgs {
 /// Runs `tapwright stock`.
 pub fn run(args: &StockArgs) -> Result<()> {
     let bar = parse_bar(args)?;
-    let figures = bar_figures(&bar).map_err(|error| explain(error))?;
+    let figures = bar_figures(&bar).map_err(explain)?;
     let text = if args.json {
         let mut text = serde_json::to_string_pretty(&report_json(&bar, &figures))?;
         text.push('\n');
