@@ -1,5 +1,5 @@
-//! The workbench window: eframe (glow renderer) with three areas, Listen,
-//! Ledger and Air.
+//! The workbench window: eframe (glow renderer) with four areas, Listen,
+//! Ledger, Air and Stock.
 //!
 //! Shape: [`TapwrightApp`] owns the state (the pass being measured, the
 //! input, the open build, each area's view state). Each frame it drains the
