@@ -195,22 +195,22 @@ fn bad_files_give_clear_errors_and_stay_byte_identical() {
     let (error, _) = load_bad("binary.ron", &[0x28, 0xff, 0xfe, 0x00, 0x29]);
     assert!(matches!(error, StoreError::NotText { .. }));
 
-    let future = good.replacen("schema_version: 2", "schema_version: 3", 1);
+    let future = good.replacen("schema_version: 3", "schema_version: 4", 1);
     let (error, message) = load_bad("future.ron", future.as_bytes());
     assert!(matches!(
         error,
-        StoreError::UnsupportedVersion { found: 3, .. }
+        StoreError::UnsupportedVersion { found: 4, .. }
     ));
-    assert!(message.contains("version 3"), "{message}");
+    assert!(message.contains("version 4"), "{message}");
 
-    let zero = good.replacen("schema_version: 2", "schema_version: 0", 1);
+    let zero = good.replacen("schema_version: 3", "schema_version: 0", 1);
     let (error, _) = load_bad("zero.ron", zero.as_bytes());
     assert!(matches!(
         error,
         StoreError::NoVersion { .. } | StoreError::UnsupportedVersion { .. }
     ));
 
-    let unversioned = good.replacen("schema_version: 2,", "", 1);
+    let unversioned = good.replacen("schema_version: 3,", "", 1);
     let (error, _) = load_bad("unversioned.ron", unversioned.as_bytes());
     assert!(matches!(error, StoreError::NoVersion { .. }));
 
@@ -277,7 +277,8 @@ fn schema_version_1_files_are_migrated() {
     let build = store::load(&path).unwrap();
     assert_eq!(fs::read(&path).unwrap(), before);
 
-    assert_eq!(build.schema_version(), 2);
+    assert_eq!(build.schema_version(), 3);
+    assert!(build.stock().is_empty());
     assert_eq!(build.name, "Small viola, first of two");
     assert_eq!(build.family(), Family::Viola);
     let top = build.part("Top").unwrap();
@@ -300,13 +301,13 @@ fn schema_version_1_files_are_migrated() {
     assert_eq!(second.note, "Scraped the \"upper\" bouts, then the flanks.");
     assert_eq!(build.part("Body").unwrap().labels()[2], "B1\u{2212}");
 
-    // Once migrated, it saves as version 2 and reloads unchanged.
+    // Once migrated, it saves as the current version and reloads unchanged.
     let folder = tempfile::tempdir().unwrap();
     let copy = folder.path().join("viola.ron");
     store::save(&copy, &build).unwrap();
     assert!(fs::read_to_string(&copy)
         .unwrap()
-        .contains("schema_version: 2"));
+        .contains("schema_version: 3"));
     assert_eq!(store::load(&copy).unwrap(), build);
 
     let minimal =
@@ -314,6 +315,89 @@ fn schema_version_1_files_are_migrated() {
     let bare = store::load(&minimal).unwrap();
     assert_eq!(bare.family(), Family::Other);
     assert!(bare.parts().is_empty());
+}
+
+#[test]
+fn schema_version_2_files_are_migrated() {
+    // tests/fixtures/ledger_v2_cello_back.ron was written by hand in the
+    // version-2 layout (no stock list) and is frozen.
+    let path =
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/ledger_v2_cello_back.ron");
+    let before = fs::read(&path).unwrap();
+    let build = store::load(&path).unwrap();
+    assert_eq!(fs::read(&path).unwrap(), before, "loading never writes");
+    assert_eq!(build.schema_version(), 3);
+    assert_eq!(build.name, "Cello (fixture)");
+    assert_eq!(build.family(), Family::Cello);
+    assert!(build.stock().is_empty());
+    assert!(build.air.is_none());
+    let back = build.part("Back").unwrap();
+    assert_eq!(back.targets().get("mode 5"), Some(&150.0));
+    let pass = back.pass(1).unwrap();
+    assert_eq!(pass.mass_g, 812.5);
+    assert!(pass.modes()[1].label_needs_confirmation());
+
+    let folder = tempfile::tempdir().unwrap();
+    let copy = folder.path().join("cello.ron");
+    store::save(&copy, &build).unwrap();
+    let text = fs::read_to_string(&copy).unwrap();
+    assert!(text.contains("schema_version: 3"), "{text}");
+    assert!(text.contains("stock: []"), "{text}");
+    assert_eq!(store::load(&copy).unwrap(), build);
+}
+
+#[test]
+fn a_version_2_file_with_a_stock_list_is_refused_and_a_version_3_file_needs_one() {
+    let path =
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/ledger_v2_cello_back.ron");
+    let v2 = fs::read_to_string(&path).unwrap();
+    let mixed = v2.replacen("    air: None,\n", "    air: None,\n    stock: [],\n", 1);
+    assert_ne!(mixed, v2);
+    let (error, message) = load_bad("mixed_v2.ron", mixed.as_bytes());
+    assert!(matches!(error, StoreError::Syntax { .. }), "{message}");
+    let unlisted = v2.replacen("schema_version: 2", "schema_version: 3", 1);
+    let (error, message) = load_bad("v3_no_stock.ron", unlisted.as_bytes());
+    assert!(matches!(error, StoreError::Syntax { .. }), "{message}");
+}
+
+#[test]
+fn stock_samples_survive_a_round_trip_and_bad_ones_are_refused() {
+    use tapwright::acoustics::stock::BarSample;
+    use tapwright::ledger::StockSample;
+    let bar = BarSample {
+        length_mm: 300.0,
+        width_mm: 25.0,
+        thickness_mm: 10.0,
+        mass_g: 33.75,
+        flexural_hz: Some(560.0),
+        second_flexural_hz: None,
+        longitudinal_hz: Some(8150.0),
+    };
+    let mut build = tapwright::ledger::Build::new("Stock", Family::Violin);
+    let sample = StockSample {
+        name: "wedge".into(),
+        species: "spruce".into(),
+        source_note: "invented".into(),
+        along_grain: Some(bar.clone()),
+        cross_grain: None,
+    };
+    build.put_stock_sample(sample.clone()).unwrap();
+    let folder = tempfile::tempdir().unwrap();
+    let path = folder.path().join("stock.ron");
+    store::save(&path, &build).unwrap();
+    assert_eq!(store::load(&path).unwrap(), build);
+
+    let mut thick = bar.clone();
+    thick.thickness_mm = 40.0;
+    let bad = StockSample {
+        along_grain: Some(thick),
+        ..sample.clone()
+    };
+    let problem = build.put_stock_sample(bad).unwrap_err().to_string();
+    assert!(problem.contains("40 mm thick"), "{problem}");
+    assert_eq!(build.stock().len(), 1);
+    build.remove_stock_sample("wedge").unwrap();
+    assert!(build.stock().is_empty());
 }
 
 #[test]

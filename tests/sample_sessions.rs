@@ -10,10 +10,11 @@
 
 use std::path::{Path, PathBuf};
 
+use tapwright::acoustics::stock::BarSample;
 use tapwright::ledger::store;
 use tapwright::ledger::{
-    Build, Family, MeasuredMode, Part, PartKind, PassInput, StoredSpectrum, ThicknessReading,
-    Timestamp,
+    Build, Family, MeasuredMode, Part, PartKind, PassInput, StockSample, StoredSpectrum,
+    ThicknessReading, Timestamp,
 };
 
 const VIOLIN_FILE: &str = "sample_sessions/violin_wren.ron";
@@ -292,7 +293,42 @@ fn violin() -> Build {
         .unwrap()
         .set_target("mode 5", Some(365.0))
         .unwrap();
+    add_violin_stock(&mut build);
     build
+}
+
+/// Two invented wood samples for the violin: sizes, masses and frequencies
+/// are made up to land in the usual range of spruce and maple.
+fn add_violin_stock(build: &mut Build) {
+    let bar = |length_mm, width_mm, thickness_mm, mass_g, flexural_hz, longitudinal_hz| BarSample {
+        length_mm,
+        width_mm,
+        thickness_mm,
+        mass_g,
+        flexural_hz: Some(flexural_hz),
+        second_flexural_hz: None,
+        longitudinal_hz,
+    };
+    let mut along = bar(300.0, 25.0, 10.0, 33.8, 560.0, Some(8150.0));
+    along.second_flexural_hz = Some(1534.0);
+    build
+        .put_stock_sample(StockSample {
+            name: "Top wedge A".into(),
+            species: "spruce".into(),
+            source_note: "Invented: offcut of the top wedge, air-dried six years.".into(),
+            along_grain: Some(along),
+            cross_grain: Some(bar(120.0, 25.0, 5.0, 6.8, 490.0, None)),
+        })
+        .unwrap();
+    build
+        .put_stock_sample(StockSample {
+            name: "Back billet 2".into(),
+            species: "maple".into(),
+            source_note: "Invented: end of the one-piece back billet.".into(),
+            along_grain: Some(bar(300.0, 25.0, 10.0, 46.5, 481.0, None)),
+            cross_grain: Some(bar(120.0, 25.0, 5.0, 9.3, 555.0, None)),
+        })
+        .unwrap();
 }
 
 fn guitar() -> Build {
@@ -452,6 +488,34 @@ fn violin_sample_is_current_and_plausible() {
             / last.mode_labelled("mode 2").unwrap().frequency_hz;
         assert_within("mode 5 / mode 2", ratio, 1.8, 2.2);
     }
+    // The invented stock samples land in the handbook's range: USDA Forest
+    // Products Laboratory, Wood Handbook (FPL-GTR-190, 2010), ch. 5, Table
+    // 5-3a, at 12 % moisture content: Sitka spruce specific gravity 0.40
+    // (density about 450 kg/m³ at 12 %), MOE about 10.8 GPa; sugar maple
+    // specific gravity 0.63, MOE about 12.6 GPa (MOE values from memory).
+    // Ranges are widened to cover the spread between trees.
+    let stock = build.stock();
+    assert_eq!(stock.len(), 2);
+    let spruce = stock[0].along_figures().unwrap().unwrap();
+    assert_within("spruce density", spruce.density_kg_m3, 380.0, 480.0);
+    assert_within("spruce E GPa", spruce.youngs_modulus_gpa(), 9.0, 13.0);
+    let maple = stock[1].along_figures().unwrap().unwrap();
+    assert_within("maple density", maple.density_kg_m3, 550.0, 700.0);
+    assert_within("maple E GPa", maple.youngs_modulus_gpa(), 9.5, 13.0);
+    // Along/across ratios: common practice, no source (spruce about
+    // 10–20, maple about 5–10).
+    assert_within(
+        "spruce grain ratio",
+        stock[0].grain_ratio().unwrap(),
+        8.0,
+        20.0,
+    );
+    assert_within(
+        "maple grain ratio",
+        stock[1].grain_ratio().unwrap(),
+        4.0,
+        12.0,
+    );
     // Closed violin body (references.md, from memory): A0 270–290, CBR
     // 380–430, B1− 440–490, B1+ 510–570 Hz.
     let body = build.part("Body").unwrap().latest_pass().unwrap();

@@ -1,6 +1,7 @@
 //! Pure physics of the air in a body: speed of sound, the cavity
 //! (Helmholtz) model with its openings, the inverse solve, the coupled
-//! air/plate correction and the air check against a measured A0.
+//! air/plate correction and the air check against a measured A0; and of
+//! the wood: moduli of sample bars from their taps (`stock`).
 //!
 //! No files, no devices, no window. Lengths at the edges are in the units a
 //! maker uses (`diameter_mm`, `volume_m3` with litre helpers); inside, metres.
@@ -21,6 +22,7 @@ pub mod cavity;
 pub mod coupled;
 pub mod solve;
 pub mod speed_of_sound;
+pub mod stock;
 
 pub use cavity::{
     estimate_cavity, opening_conductance_m, CavityEstimate, CavityGeometry, EndCorrection, Opening,
@@ -30,6 +32,7 @@ pub use cavity::{
 pub use coupled::{compare_with_measured, coupled_correction, AirCheck, CoupledCorrection};
 pub use solve::{solve_round_diameter_mm, solve_slot_length_mm, solve_volume_m3};
 pub use speed_of_sound::{speed_of_sound_m_s, AirConditions, SpeedOfSoundModel};
+pub use stock::{bar_figures, BarFigures, BarMode, BarSample, StockError};
 
 /// Cubic metres in one litre.
 pub const M3_PER_LITRE: f64 = 1e-3;

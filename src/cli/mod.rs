@@ -10,6 +10,7 @@ mod measure;
 pub mod output;
 mod parse_error;
 mod report;
+mod stock;
 
 use std::process::ExitCode;
 
@@ -50,6 +51,8 @@ pub enum Command {
     Air(air::AirArgs),
     /// Play a tone at a mode's frequency through a loudspeaker (Chladni patterns).
     Drive(drive::DriveArgs),
+    /// Grade a sample bar of tonewood from its taps.
+    Stock(stock::StockArgs),
 }
 
 /// Parses the process arguments, runs the chosen subcommand (or opens the
@@ -70,6 +73,7 @@ pub fn run_from_env() -> ExitCode {
         Some(Command::Ledger(args)) => ledger_cmd::run(args),
         Some(Command::Air(args)) => air::run(args),
         Some(Command::Drive(args)) => drive::run(args),
+        Some(Command::Stock(args)) => stock::run(args),
     };
     match outcome {
         Ok(()) => ExitCode::SUCCESS,

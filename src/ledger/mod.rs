@@ -14,7 +14,9 @@ pub mod from_analysis;
 pub mod labels;
 pub mod model;
 pub mod schema_v1;
+pub mod schema_v2;
 pub mod spectrum;
+pub mod stock;
 pub mod store;
 pub mod time;
 
@@ -26,6 +28,7 @@ pub use model::{
     PassChange, PassInput, PassModeRecord, PassOutcome, ThicknessReading, SCHEMA_VERSION,
 };
 pub use spectrum::{SpectrumError, StoredSpectrum};
+pub use stock::StockSample;
 pub use store::StoreError;
 pub use time::Timestamp;
 

@@ -15,14 +15,15 @@ use super::carry_over::{self, CarriedLabel};
 use super::forecast::{self, Forecast, HistoryPoint};
 use super::labels::preset_labels;
 use super::spectrum::StoredSpectrum;
+use super::stock::StockSample;
 use super::time::Timestamp;
 use super::LedgerError;
 use crate::acoustics::CavityGeometry;
 use crate::analysis::pitch::cents_between;
 
-/// The schema version this code writes. Version 1 is still read (see
-/// `schema_v1`, migrated on load by `store::load`).
-pub const SCHEMA_VERSION: u32 = 2;
+/// The schema version this code writes. Versions 1 and 2 are still read
+/// (see `schema_v1` and `schema_v2`, migrated on load by `store::load`).
+pub const SCHEMA_VERSION: u32 = 3;
 
 /// Instrument family of a build; chooses the preset label sets.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
@@ -112,6 +113,8 @@ pub struct Build {
     /// `None`.
     #[serde(default)]
     pub air: Option<CavityGeometry>,
+    /// The wood samples graded for this build (since schema version 3).
+    pub(super) stock: Vec<StockSample>,
 }
 
 /// A thickness measured at one named point of a plate.
@@ -327,6 +330,7 @@ impl Build {
             created: Timestamp::now(),
             parts: Vec::new(),
             air: None,
+            stock: Vec::new(),
         }
     }
 
@@ -448,7 +452,7 @@ impl Build {
             }
             part.validate()?;
         }
-        Ok(())
+        super::stock::validate_stock(&self.stock)
     }
 }
 

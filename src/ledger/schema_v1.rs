@@ -101,6 +101,7 @@ pub(super) fn migrate(old: BuildV1) -> Build {
         created: old.created,
         parts: old.parts.into_iter().map(migrate_part).collect(),
         air: None,
+        stock: Vec::new(),
     }
 }
 

@@ -2,7 +2,7 @@
 //!
 //! Reading ([`load`]) never writes. It checks, in order: the file can be
 //! read, is not empty, is UTF-8 text, is RON with a `schema_version` this
-//! code knows (1 is migrated, 2 is current), parses as that layout, and
+//! code knows (1 and 2 are migrated, 3 is current), parses as that layout, and
 //! passes [`Build::validate`]. (The current layout is tried first; the
 //! version alone is read only when that fails.) Each failure is one [`StoreError`] naming the
 //! file and, for syntax and layout problems, the line and column.
@@ -27,6 +27,7 @@ use serde::Deserialize;
 
 use super::model::{Build, SCHEMA_VERSION};
 use super::schema_v1;
+use super::schema_v2;
 use super::LedgerError;
 
 /// Oldest schema version this code reads.
@@ -189,6 +190,7 @@ pub fn from_ron_text(text: &str, path: &Path) -> Result<Build, StoreError> {
             })
         }
         1 => schema_v1::migrate(ron::from_str::<schema_v1::BuildV1>(text).map_err(syntax)?),
+        2 => schema_v2::migrate(ron::from_str::<schema_v2::BuildV2>(text).map_err(syntax)?),
         found => return Err(unsupported(found)),
     };
     checked(build, path)

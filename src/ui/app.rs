@@ -20,6 +20,7 @@ use super::jobs::{self, FilePurpose, JobDone, Jobs};
 use super::ledger_area::{self, LedgerAreaState};
 use super::listen_area::{self, ListenView};
 use super::session::{ListenSession, TapEntry};
+use super::stock_area::{self, StockAreaState};
 
 /// Where the window takes its sound from when it opens.
 #[derive(Clone, Debug, PartialEq, Eq)]
@@ -150,6 +151,7 @@ pub struct TapwrightApp {
     listen_view: ListenView,
     ledger_state: LedgerAreaState,
     air_state: AirAreaState,
+    stock_state: StockAreaState,
     drive_state: DriveAreaState,
     status: Option<Status>,
     commands: Vec<AppCommand>,
@@ -204,6 +206,7 @@ impl TapwrightApp {
             listen_part: None,
             ledger_state: LedgerAreaState::default(),
             air_state: AirAreaState::default(),
+            stock_state: StockAreaState::default(),
             drive_state,
             status: None,
             commands: Vec::new(),
@@ -615,7 +618,7 @@ impl TapwrightApp {
                 };
                 listen_area::show(ui, &mut self.listen_view, &facts, &mut ctx);
             }
-            Area::Ledger | Area::Air | Area::Drive => {
+            Area::Ledger | Area::Air | Area::Stock | Area::Drive => {
                 let area = self.area;
                 let mut ctx = AreaContext {
                     pass: self.session.pass(),
@@ -630,8 +633,10 @@ impl TapwrightApp {
                 let ledger_state = &mut self.ledger_state;
                 let air_state = &mut self.air_state;
                 let drive_state = &mut self.drive_state;
+                let stock_state = &mut self.stock_state;
                 egui::CentralPanel::default().show(ui, |ui| match area {
                     Area::Ledger => ledger_area::show(ui, ledger_state, &mut ctx),
+                    Area::Stock => stock_area::show(ui, stock_state, &mut ctx),
                     Area::Drive => {
                         drive_area::show(ui, drive_state, &mut ctx, ledger_state.selection())
                     }

@@ -20,13 +20,21 @@ pub enum Area {
     Ledger,
     /// The cavity estimator and the air check.
     Air,
+    /// Wood samples graded from bar taps.
+    Stock,
     /// A tone at a mode's frequency for Chladni patterns.
     Drive,
 }
 
 impl Area {
     /// Every area, in the order of the top bar.
-    pub const ALL: [Area; 4] = [Area::Listen, Area::Ledger, Area::Air, Area::Drive];
+    pub const ALL: [Area; 5] = [
+        Area::Listen,
+        Area::Ledger,
+        Area::Air,
+        Area::Stock,
+        Area::Drive,
+    ];
 
     /// The name on screen.
     pub fn title(self) -> &'static str {
@@ -34,6 +42,7 @@ impl Area {
             Area::Listen => "Listen",
             Area::Ledger => "Ledger",
             Area::Air => "Air",
+            Area::Stock => "Stock",
             Area::Drive => "Drive",
         }
     }

@@ -1,5 +1,5 @@
-//! The workbench window: eframe (glow renderer) with three areas, Listen,
-//! Ledger and Air.
+//! The workbench window: eframe (glow renderer) with four areas, Listen,
+//! Ledger, Air and Stock.
 //!
 //! Shape: [`TapwrightApp`] owns the state (the pass being measured, the
 //! input, the open build, each area's view state). Each frame it drains the
@@ -20,6 +20,7 @@ pub mod ledger_area;
 mod listen_area;
 mod session;
 mod spectrum_plot;
+pub mod stock_area;
 mod widgets;
 
 use std::path::PathBuf;
