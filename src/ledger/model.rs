@@ -857,6 +857,23 @@ fn check_positive(what: &str, unit: &'static str, value: f64) -> Result<(), Ledg
     }
 }
 
+/// Thicker than any plate or body wall (a block of wood is not graduated).
+const MAX_THICKNESS_MM: f64 = 100.0;
+
+/// Heavier than any part of a stringed instrument (a double bass body is a
+/// few kilograms).
+const MAX_MASS_G: f64 = 100_000.0;
+
+fn check_at_most(what: &str, unit: &'static str, value: f64, most: f64) -> Result<(), LedgerError> {
+    if value <= most {
+        Ok(())
+    } else {
+        Err(LedgerError::Invalid(format!(
+            "{what} is {value} {unit}; more than {most} {unit} cannot be a reading of a plate"
+        )))
+    }
+}
+
 fn check_finite(what: &str, value: f64) -> Result<(), LedgerError> {
     if value.is_finite() {
         Ok(())
@@ -875,12 +892,11 @@ fn check_pass_values(
     relative_humidity_pct: Option<f64>,
 ) -> Result<(), LedgerError> {
     check_positive(&format!("{where_}: mass"), "g", mass_g)?;
+    check_at_most(&format!("{where_}: mass"), "g", mass_g, MAX_MASS_G)?;
     for (index, reading) in thickness.iter().enumerate() {
-        check_positive(
-            &format!("{where_}: thickness at \"{}\"", reading.point),
-            "mm",
-            reading.thickness_mm,
-        )?;
+        let what = format!("{where_}: thickness at \"{}\"", reading.point);
+        check_positive(&what, "mm", reading.thickness_mm)?;
+        check_at_most(&what, "mm", reading.thickness_mm, MAX_THICKNESS_MM)?;
         if thickness[..index].iter().any(|r| r.point == reading.point) {
             return Err(LedgerError::Invalid(format!(
                 "{where_}: thickness point \"{}\" is read twice",
@@ -907,7 +923,12 @@ fn check_mode_values(where_: &str, mode: &MeasuredMode) -> Result<(), LedgerErro
         "Hz",
         mode.frequency_hz,
     )?;
-    check_finite(&format!("{where_}: mode Q"), mode.q)?;
+    if !(mode.q.is_finite() && mode.q > 0.0) {
+        return Err(LedgerError::Invalid(format!(
+            "{where_}: mode Q is {}; a Q must be a positive number",
+            mode.q
+        )));
+    }
     check_finite(&format!("{where_}: mode level"), mode.level_db)?;
     check_finite(&format!("{where_}: mode spread"), mode.spread_hz)
 }
