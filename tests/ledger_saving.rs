@@ -300,3 +300,28 @@ fn deep_nesting_is_a_plain_sentence() {
     assert!(!message.contains("recursion_limit"), "{message}");
     assert!(!message.contains("serde_stacker"), "{message}");
 }
+
+#[test]
+fn all_changes_in_one_walk_match_change_for_every_labelled_mode() {
+    let mut compared = 0;
+    for file in [
+        "sample_sessions/violin_wren.ron",
+        "sample_sessions/guitar_larkspur.ron",
+    ] {
+        let build = store::load(Path::new(file)).expect("the sample loads");
+        for part in build.parts() {
+            let all = part.all_changes();
+            assert_eq!(all.len(), part.passes().len());
+            for (pass, changes) in part.passes().iter().zip(&all) {
+                let labelled: Vec<&str> =
+                    pass.modes().iter().filter_map(|m| m.label_name()).collect();
+                assert_eq!(changes.len(), labelled.len());
+                for (change, label) in changes.iter().zip(labelled) {
+                    assert_eq!(Some(change), part.change(label, pass.number()).as_ref());
+                    compared += 1;
+                }
+            }
+        }
+    }
+    assert!(compared > 20, "{compared}");
+}

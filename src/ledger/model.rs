@@ -720,6 +720,40 @@ impl Part {
         })
     }
 
+    /// What [`Part::change`] gives for every labelled mode of every pass,
+    /// in one walk over the passes (linear in their number, where calling
+    /// `change` for each would be quadratic): one list per pass, in pass
+    /// order, its labelled modes in mode order.
+    pub fn all_changes(&self) -> Vec<Vec<PassChange>> {
+        let mut first: std::collections::HashMap<&str, (u32, f64)> = Default::default();
+        let mut previous: std::collections::HashMap<&str, (u32, f64)> = Default::default();
+        let mut all = Vec::with_capacity(self.passes.len());
+        for pass in &self.passes {
+            let mut changes = Vec::new();
+            for mode in &pass.modes {
+                let Some(label) = mode.label_name() else {
+                    continue;
+                };
+                let now_hz = mode.frequency_hz;
+                let against = |(from_pass, from_hz): (u32, f64)| {
+                    FrequencyChange::between(from_pass, from_hz, now_hz)
+                };
+                let before = previous.get(label).copied();
+                changes.push(PassChange {
+                    label: label.to_string(),
+                    pass_number: pass.number,
+                    frequency_hz: now_hz,
+                    vs_previous: before.map(against),
+                    vs_first: before.and(first.get(label).copied()).map(against),
+                });
+                previous.insert(label, (pass.number, now_hz));
+                first.entry(label).or_insert((pass.number, now_hz));
+            }
+            all.push(changes);
+        }
+        all
+    }
+
     /// The labels used in any pass, in the order of [`Part::labels`].
     pub fn labels_in_use(&self) -> Vec<&str> {
         self.labels
