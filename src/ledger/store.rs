@@ -1,11 +1,14 @@
 //! Build files: one RON file per build, with a schema version.
 //!
-//! Reading ([`load`]) never writes. It checks, in order: the file can be
-//! read, is not empty, is UTF-8 text, is RON with a `schema_version` this
-//! code knows (1 is migrated, 2 is current), parses as that layout, and
-//! passes [`Build::validate`]. (The current layout is tried first; the
-//! version alone is read only when that fails.) Each failure is one [`StoreError`] naming the
-//! file and, for syntax and layout problems, the line and column.
+//! Reading ([`load`]) never writes. It checks, in order: the path is a
+//! regular file (a folder, named pipe or device is refused before it is
+//! opened, so nothing hangs), is at most [`MAX_BUILD_FILE_MB`] MB (never more
+//! is read), is not empty, is UTF-8 text (a leading byte-order mark is
+//! skipped), is RON with a `schema_version` this code knows (1 is migrated,
+//! 2 is current), parses as that layout, and passes [`Build::validate`].
+//! (The current layout is tried first; the version alone is read only when
+//! that fails.) Each failure is one [`StoreError`] naming the file and, for
+//! syntax and layout problems, the line and column.
 //!
 //! Writing ([`save`]) is atomic: the new text goes to a temporary file in
 //! the same folder, which is flushed to disk (`sync_all`); the current file,
@@ -14,9 +17,13 @@
 //! folder is synced. A rename within a folder replaces the file in one step,
 //! so a crash at any moment leaves either the old or the new file whole
 //! (plus, at worst, a stray `.<name>.ron.*.saving` temporary file, which
-//! loading ignores and later saves do not trip over). [`stage`] and
-//! [`StagedSave::commit`] are the two halves of [`save`], split so tests can
-//! stop between them.
+//! loading ignores and the next save removes once it is a minute old). A
+//! build file that is a symbolic link is saved through the link: the file
+//! it points to is replaced, the link stays. [`save_checked`] first compares
+//! the file with the [`DiskFingerprint`] taken when it was loaded or last
+//! saved and refuses ([`StoreError::ChangedOnDisk`]) if another writer
+//! changed it. [`stage`] and [`StagedSave::commit`] are the two halves of
+//! [`save`], split so tests can stop between them.
 
 use std::fs::{self, File};
 use std::io::{self, Write};

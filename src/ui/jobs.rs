@@ -107,7 +107,7 @@ enum SaverMessage {
     /// Save this snapshot.
     Save {
         path: PathBuf,
-        build: Build,
+        build: Box<Build>,
         stamp: SaveStamp,
         check: SaveCheck,
     },
@@ -168,7 +168,7 @@ impl Jobs {
         self.running += 1;
         let message = SaverMessage::Save {
             path,
-            build,
+            build: Box::new(build),
             stamp,
             check,
         };
