@@ -169,3 +169,106 @@ fn a_missing_file_and_a_future_version_are_refused() {
     assert_eq!(stderr.lines().count(), 1);
     assert!(stderr.contains("schema version 9"), "{stderr}");
 }
+
+/// Runs `tapwright ledger PATH`, killing it if it has not answered in 30 s
+/// (so a hang fails the test instead of stalling it).
+fn ledger_with_timeout(path: &Path) -> Output {
+    use std::process::Stdio;
+    let mut child = Command::new(env!("CARGO_BIN_EXE_tapwright"))
+        .arg("ledger")
+        .arg(path)
+        .stdout(Stdio::piped())
+        .stderr(Stdio::piped())
+        .spawn()
+        .unwrap();
+    let started = std::time::Instant::now();
+    while child.try_wait().unwrap().is_none() {
+        if started.elapsed() > std::time::Duration::from_secs(30) {
+            child.kill().unwrap();
+            panic!("tapwright ledger {} hung", path.display());
+        }
+        std::thread::sleep(std::time::Duration::from_millis(20));
+    }
+    child.wait_with_output().unwrap()
+}
+
+fn assert_one_sentence_refusal(out: &Output, expected: &[&str]) {
+    assert_eq!(out.status.code(), Some(2), "{}", text(&out.stderr));
+    assert!(out.stdout.is_empty(), "{}", text(&out.stdout));
+    let stderr = text(&out.stderr);
+    assert_eq!(stderr.lines().count(), 1, "{stderr}");
+    for part in expected {
+        assert!(stderr.contains(part), "{part:?} not in {stderr}");
+    }
+}
+
+#[cfg(unix)]
+#[test]
+fn pipes_and_devices_are_refused_without_hanging() {
+    let folder = tempfile::tempdir().unwrap();
+    let pipe = folder.path().join("pipe.ron");
+    assert!(Command::new("mkfifo")
+        .arg(&pipe)
+        .status()
+        .unwrap()
+        .success());
+    assert_one_sentence_refusal(&ledger_with_timeout(&pipe), &["pipe.ron", "named pipe"]);
+    assert_one_sentence_refusal(
+        &ledger_with_timeout(Path::new("/dev/zero")),
+        &["/dev/zero", "device"],
+    );
+}
+
+#[test]
+fn impossible_values_and_deep_nesting_are_one_sentence() {
+    let folder = tempfile::tempdir().unwrap();
+    let sample = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("sample_sessions/violin_wren.ron"),
+    )
+    .unwrap();
+    let cases = [
+        (
+            "negative_q.ron",
+            sample.replacen("q: ", "q: -", 1),
+            "Q is -",
+        ),
+        (
+            "thick.ron",
+            sample.replacen("thickness_mm: 3.55", "thickness_mm: 1e308", 1),
+            "thickness",
+        ),
+        (
+            "deep.ron",
+            format!(
+                "(extra: {}{}, schema_version: 2)",
+                "[".repeat(5000),
+                "]".repeat(5000)
+            ),
+            "nests brackets deeper",
+        ),
+    ];
+    for (name, contents, expected) in cases {
+        let path = folder.path().join(name);
+        std::fs::write(&path, contents).unwrap();
+        let out = ledger_with_timeout(&path);
+        assert_one_sentence_refusal(&out, &[name]);
+        let stderr = text(&out.stderr);
+        assert!(stderr.contains(expected), "{stderr}");
+        assert!(!stderr.contains("inf"), "{stderr}");
+        assert!(!stderr.contains("recursion_limit"), "{stderr}");
+    }
+}
+
+#[test]
+fn a_build_file_with_a_byte_order_mark_is_shown() {
+    let folder = tempfile::tempdir().unwrap();
+    let sample = std::fs::read_to_string(
+        Path::new(env!("CARGO_MANIFEST_DIR")).join("sample_sessions/violin_wren.ron"),
+    )
+    .unwrap();
+    let path = folder.path().join("bom.ron");
+    std::fs::write(&path, format!("\u{feff}{sample}")).unwrap();
+    let out = ledger_with_timeout(&path);
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out.stderr));
+    assert!(text(&out.stdout).starts_with("Build: "));
+}

@@ -444,12 +444,21 @@ fn positive() -> impl Strategy<Value = f64> {
     ]
 }
 
+/// Masses and thicknesses up to the model's upper limits (100 kg, 100 mm).
+fn at_most(most: f64) -> impl Strategy<Value = f64> {
+    prop_oneof![
+        1.0e-3..most,
+        Just(most),
+        proptest::num::f64::POSITIVE.prop_filter("in range", move |x| *x <= most)
+    ]
+}
+
 fn pass_plan() -> impl Strategy<Value = PassPlan> {
     (
-        positive(),
+        at_most(100_000.0),
         -2_208_988_800i64..253_402_300_799,
-        prop::collection::vec((positive(), finite(), finite(), finite()), 0..6),
-        prop::collection::vec((any::<String>(), positive()), 0..4),
+        prop::collection::vec((positive(), positive(), finite(), finite()), 0..6),
+        prop::collection::vec((any::<String>(), at_most(100.0)), 0..4),
         prop::option::of(-40.0..60.0f64),
         prop::option::of(0.0..=100.0f64),
         any::<String>(),

@@ -9,7 +9,7 @@ use anyhow::Context;
 
 use crate::ledger::{
     csv, store, Build, FallbackReason, Forecast, ForecastMethod, ForecastWarning, FrequencyChange,
-    Part, Pass,
+    Part, Pass, PassChange,
 };
 
 /// Arguments of `tapwright ledger`.
@@ -82,8 +82,8 @@ fn part_report(out: &mut String, part: &Part) {
         .map(|l| l.chars().count())
         .max()
         .unwrap_or(0);
-    for pass in part.passes() {
-        pass_report(out, part, pass, label_width);
+    for (pass, changes) in part.passes().iter().zip(part.all_changes()) {
+        pass_report(out, pass, &changes, label_width);
     }
     let forecasts = part.forecasts();
     if !part.targets().is_empty() {
@@ -99,7 +99,7 @@ fn part_report(out: &mut String, part: &Part) {
     }
 }
 
-fn pass_report(out: &mut String, part: &Part, pass: &Pass, label_width: usize) {
+fn pass_report(out: &mut String, pass: &Pass, changes: &[PassChange], label_width: usize) {
     let mut line = format!(
         "  Pass {}  {}  {:.2} g",
         pass.number(),
@@ -139,7 +139,7 @@ fn pass_report(out: &mut String, part: &Part, pass: &Pass, label_width: usize) {
             "      {label:<label_width$}  {:8.2} Hz{flag}",
             mode.frequency_hz
         );
-        if let Some(change) = part.change(label, pass.number()) {
+        if let Some(change) = changes.iter().find(|c| c.label == label) {
             if let Some(previous) = change.vs_previous {
                 line.push_str(&format!(
                     "   vs pass {}: {}",

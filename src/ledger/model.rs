@@ -724,6 +724,40 @@ impl Part {
         })
     }
 
+    /// What [`Part::change`] gives for every labelled mode of every pass,
+    /// in one walk over the passes (linear in their number, where calling
+    /// `change` for each would be quadratic): one list per pass, in pass
+    /// order, its labelled modes in mode order.
+    pub fn all_changes(&self) -> Vec<Vec<PassChange>> {
+        let mut first: std::collections::HashMap<&str, (u32, f64)> = Default::default();
+        let mut previous: std::collections::HashMap<&str, (u32, f64)> = Default::default();
+        let mut all = Vec::with_capacity(self.passes.len());
+        for pass in &self.passes {
+            let mut changes = Vec::new();
+            for mode in &pass.modes {
+                let Some(label) = mode.label_name() else {
+                    continue;
+                };
+                let now_hz = mode.frequency_hz;
+                let against = |(from_pass, from_hz): (u32, f64)| {
+                    FrequencyChange::between(from_pass, from_hz, now_hz)
+                };
+                let before = previous.get(label).copied();
+                changes.push(PassChange {
+                    label: label.to_string(),
+                    pass_number: pass.number,
+                    frequency_hz: now_hz,
+                    vs_previous: before.map(against),
+                    vs_first: before.and(first.get(label).copied()).map(against),
+                });
+                previous.insert(label, (pass.number, now_hz));
+                first.entry(label).or_insert((pass.number, now_hz));
+            }
+            all.push(changes);
+        }
+        all
+    }
+
     /// The labels used in any pass, in the order of [`Part::labels`].
     pub fn labels_in_use(&self) -> Vec<&str> {
         self.labels
@@ -861,6 +895,23 @@ fn check_positive(what: &str, unit: &'static str, value: f64) -> Result<(), Ledg
     }
 }
 
+/// Thicker than any plate or body wall (a block of wood is not graduated).
+const MAX_THICKNESS_MM: f64 = 100.0;
+
+/// Heavier than any part of a stringed instrument (a double bass body is a
+/// few kilograms).
+const MAX_MASS_G: f64 = 100_000.0;
+
+fn check_at_most(what: &str, unit: &'static str, value: f64, most: f64) -> Result<(), LedgerError> {
+    if value <= most {
+        Ok(())
+    } else {
+        Err(LedgerError::Invalid(format!(
+            "{what} is {value} {unit}; more than {most} {unit} cannot be a reading of a plate"
+        )))
+    }
+}
+
 fn check_finite(what: &str, value: f64) -> Result<(), LedgerError> {
     if value.is_finite() {
         Ok(())
@@ -879,12 +930,11 @@ fn check_pass_values(
     relative_humidity_pct: Option<f64>,
 ) -> Result<(), LedgerError> {
     check_positive(&format!("{where_}: mass"), "g", mass_g)?;
+    check_at_most(&format!("{where_}: mass"), "g", mass_g, MAX_MASS_G)?;
     for (index, reading) in thickness.iter().enumerate() {
-        check_positive(
-            &format!("{where_}: thickness at \"{}\"", reading.point),
-            "mm",
-            reading.thickness_mm,
-        )?;
+        let what = format!("{where_}: thickness at \"{}\"", reading.point);
+        check_positive(&what, "mm", reading.thickness_mm)?;
+        check_at_most(&what, "mm", reading.thickness_mm, MAX_THICKNESS_MM)?;
         if thickness[..index].iter().any(|r| r.point == reading.point) {
             return Err(LedgerError::Invalid(format!(
                 "{where_}: thickness point \"{}\" is read twice",
@@ -911,7 +961,12 @@ fn check_mode_values(where_: &str, mode: &MeasuredMode) -> Result<(), LedgerErro
         "Hz",
         mode.frequency_hz,
     )?;
-    check_finite(&format!("{where_}: mode Q"), mode.q)?;
+    if !(mode.q.is_finite() && mode.q > 0.0) {
+        return Err(LedgerError::Invalid(format!(
+            "{where_}: mode Q is {}; a Q must be a positive number",
+            mode.q
+        )));
+    }
     check_finite(&format!("{where_}: mode level"), mode.level_db)?;
     check_finite(&format!("{where_}: mode spread"), mode.spread_hz)
 }

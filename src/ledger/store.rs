@@ -1,11 +1,14 @@
 //! Build files: one RON file per build, with a schema version.
 //!
-//! Reading ([`load`]) never writes. It checks, in order: the file can be
-//! read, is not empty, is UTF-8 text, is RON with a `schema_version` this
-//! code knows (1 and 2 are migrated, 3 is current), parses as that layout, and
-//! passes [`Build::validate`]. (The current layout is tried first; the
-//! version alone is read only when that fails.) Each failure is one [`StoreError`] naming the
-//! file and, for syntax and layout problems, the line and column.
+//! Reading ([`load`]) never writes. It checks, in order: the path is a
+//! regular file (a folder, named pipe or device is refused before it is
+//! opened, so nothing hangs), is at most [`MAX_BUILD_FILE_MB`] MB (never more
+//! is read), is not empty, is UTF-8 text (a leading byte-order mark is
+//! skipped), is RON with a `schema_version` this code knows (1 and 2 are
+//! migrated, 3 is current), parses as that layout, and passes [`Build::validate`].
+//! (The current layout is tried first; the version alone is read only when
+//! that fails.) Each failure is one [`StoreError`] naming the file and, for
+//! syntax and layout problems, the line and column.
 //!
 //! Writing ([`save`]) is atomic: the new text goes to a temporary file in
 //! the same folder, which is flushed to disk (`sync_all`); the current file,
@@ -14,9 +17,13 @@
 //! folder is synced. A rename within a folder replaces the file in one step,
 //! so a crash at any moment leaves either the old or the new file whole
 //! (plus, at worst, a stray `.<name>.ron.*.saving` temporary file, which
-//! loading ignores and later saves do not trip over). [`stage`] and
-//! [`StagedSave::commit`] are the two halves of [`save`], split so tests can
-//! stop between them.
+//! loading ignores and the next save removes once it is a minute old). A
+//! build file that is a symbolic link is saved through the link: the file
+//! it points to is replaced, the link stays. [`save_checked`] first compares
+//! the file with the [`DiskFingerprint`] taken when it was loaded or last
+//! saved and refuses ([`StoreError::ChangedOnDisk`]) if another writer
+//! changed it. [`stage`] and [`StagedSave::commit`] are the two halves of
+//! [`save`], split so tests can stop between them.
 
 use std::fs::{self, File};
 use std::io::{self, Write};
@@ -29,6 +36,14 @@ use super::model::{Build, SCHEMA_VERSION};
 use super::schema_v1;
 use super::schema_v2;
 use super::LedgerError;
+
+/// Largest build file [`load`] reads, MB (a 200-pass build with spectra is
+/// about 3 MB).
+pub const MAX_BUILD_FILE_MB: u64 = 256;
+
+/// A `.saving` temporary file older than this, left by an interrupted
+/// save, is removed by the next save beside it.
+pub const STALE_TEMP_AGE: std::time::Duration = std::time::Duration::from_secs(60);
 
 /// Oldest schema version this code reads.
 pub const OLDEST_READABLE_VERSION: u32 = 1;
@@ -108,6 +123,40 @@ pub enum StoreError {
         /// The encoder's reason.
         problem: String,
     },
+    /// The path is a folder, a named pipe, a device or another thing that
+    /// is not an ordinary file (reading it could hang or never end).
+    #[error("{} is not an ordinary file ({kind}); a build file must be a regular file", path.display())]
+    NotAFile {
+        /// The path.
+        path: PathBuf,
+        /// What it is instead ("a folder", "a named pipe" ...).
+        kind: &'static str,
+    },
+    /// The file is larger than any build file tapwright writes.
+    #[error("{} is {size_mb} MB; a build file over {MAX_BUILD_FILE_MB} MB is refused", path.display())]
+    TooLarge {
+        /// The file.
+        path: PathBuf,
+        /// Its size (at least), MB.
+        size_mb: u64,
+    },
+    /// The RON text nests deeper than any build file does.
+    #[error("{}, line {line}, column {column}: the file nests brackets deeper than a build file ever does; it is not a tapwright build file", path.display())]
+    TooDeep {
+        /// The file.
+        path: PathBuf,
+        /// Line (1-based).
+        line: usize,
+        /// Column (1-based).
+        column: usize,
+    },
+    /// The file changed on disk since it was loaded or last saved (another
+    /// window or program wrote it); nothing was written.
+    #[error("{} was changed by another window or program since it was opened or last saved; not overwriting it", path.display())]
+    ChangedOnDisk {
+        /// The file.
+        path: PathBuf,
+    },
     /// Writing, syncing or renaming failed; the old file is untouched.
     #[error("cannot write {}: {source}", path.display())]
     Write {
@@ -130,15 +179,93 @@ pub fn backup_path(path: &Path) -> PathBuf {
 
 /// Reads a build file (any readable schema version). Never writes.
 pub fn load(path: &Path) -> Result<Build, StoreError> {
-    let bytes = fs::read(path).map_err(|source| StoreError::Read {
+    let bytes = read_build_bytes(path)?;
+    let text = build_text(&bytes, path)?;
+    from_ron_text(text, path)
+}
+
+/// Reads a build file like [`load`] and also returns the fingerprint of
+/// what was read, for [`save_checked`].
+pub fn load_with_fingerprint(path: &Path) -> Result<(Build, DiskFingerprint), StoreError> {
+    let bytes = read_build_bytes(path)?;
+    let text = build_text(&bytes, path)?;
+    let build = from_ron_text(text, path)?;
+    let fingerprint = DiskFingerprint::of_bytes(&bytes);
+    Ok((build, fingerprint))
+}
+
+/// The bytes of a build file: refuses what is not a regular file (a named
+/// pipe would block in `open`, a device never ends) and files over
+/// [`MAX_BUILD_FILE_MB`], and never reads more than that.
+fn read_build_bytes(path: &Path) -> Result<Vec<u8>, StoreError> {
+    use std::io::Read as _;
+    let read_error = |source| StoreError::Read {
         path: path.to_path_buf(),
         source,
-    })?;
-    let text = std::str::from_utf8(&bytes).map_err(|e| StoreError::NotText {
+    };
+    // `metadata` follows links without opening, so it cannot block.
+    let metadata = fs::metadata(path).map_err(read_error)?;
+    refuse_non_regular(path, &metadata)?;
+    let limit = MAX_BUILD_FILE_MB * 1024 * 1024;
+    let too_large = |size: u64| StoreError::TooLarge {
+        path: path.to_path_buf(),
+        size_mb: size / (1024 * 1024),
+    };
+    if metadata.len() > limit {
+        return Err(too_large(metadata.len()));
+    }
+    let file = File::open(path).map_err(read_error)?;
+    // The path may have been replaced between the two looks.
+    refuse_non_regular(path, &file.metadata().map_err(read_error)?)?;
+    let mut bytes = Vec::with_capacity(metadata.len() as usize);
+    file.take(limit + 1)
+        .read_to_end(&mut bytes)
+        .map_err(read_error)?;
+    if bytes.len() as u64 > limit {
+        return Err(too_large(bytes.len() as u64));
+    }
+    Ok(bytes)
+}
+
+fn refuse_non_regular(path: &Path, metadata: &fs::Metadata) -> Result<(), StoreError> {
+    if metadata.is_file() {
+        return Ok(());
+    }
+    Err(StoreError::NotAFile {
+        path: path.to_path_buf(),
+        kind: file_kind(metadata),
+    })
+}
+
+fn file_kind(metadata: &fs::Metadata) -> &'static str {
+    if metadata.is_dir() {
+        return "a folder";
+    }
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::FileTypeExt;
+        let kind = metadata.file_type();
+        if kind.is_fifo() {
+            return "a named pipe";
+        }
+        if kind.is_char_device() || kind.is_block_device() {
+            return "a device";
+        }
+        if kind.is_socket() {
+            return "a socket";
+        }
+    }
+    "not a regular file"
+}
+
+/// The bytes as UTF-8 text, without a leading byte-order mark (some
+/// editors write one).
+fn build_text<'a>(bytes: &'a [u8], path: &Path) -> Result<&'a str, StoreError> {
+    let text = std::str::from_utf8(bytes).map_err(|e| StoreError::NotText {
         path: path.to_path_buf(),
         offset: e.valid_up_to(),
     })?;
-    from_ron_text(text, path)
+    Ok(text.strip_prefix('\u{feff}').unwrap_or(text))
 }
 
 /// Parses the text of a build file; `path` is only used in errors.
@@ -149,6 +276,13 @@ pub fn from_ron_text(text: &str, path: &Path) -> Result<Build, StoreError> {
         });
     }
     let syntax = |e: ron::error::SpannedError| {
+        if e.code == ron::Error::ExceededRecursionLimit {
+            return StoreError::TooDeep {
+                path: path.to_path_buf(),
+                line: e.span.start.line,
+                column: e.span.start.col,
+            };
+        }
         let cut_short = matches!(e.code, ron::Error::Eof | ron::Error::ExpectedStringEnd)
             || is_at_end(text, e.span.end.line, e.span.end.col);
         let problem = if cut_short {
@@ -240,9 +374,59 @@ pub fn to_ron_text(build: &Build) -> Result<String, ron::Error> {
 }
 
 /// Saves atomically, keeping the previous file as `<name>.ron.bak`.
-/// Refuses a build that fails [`Build::validate`].
+/// Refuses a build that fails [`Build::validate`]. Writes over whatever is
+/// on disk; [`save_checked`] refuses when the file changed meanwhile.
 pub fn save(path: &Path, build: &Build) -> Result<(), StoreError> {
     stage(path, build)?.commit()
+}
+
+/// Saves like [`save`], but only if the file on disk is still the one
+/// `expected` describes (from [`load_with_fingerprint`] or the last
+/// `save_checked`); otherwise nothing is written and the answer is
+/// [`StoreError::ChangedOnDisk`]. `None` writes without looking (a new file,
+/// or the maker chose to overwrite). Returns the fingerprint of the file
+/// now on disk, for the next save.
+pub fn save_checked(
+    path: &Path,
+    build: &Build,
+    expected: Option<&DiskFingerprint>,
+) -> Result<DiskFingerprint, StoreError> {
+    let staged = stage(path, build)?;
+    let fingerprint = staged.fingerprint.clone();
+    staged.commit_if_unchanged(expected)?;
+    Ok(fingerprint)
+}
+
+/// What a build file held when it was read or written: its length and a
+/// hash of its content. Two fingerprints differ when another writer
+/// changed the file (a touch that keeps the content is not a change).
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub struct DiskFingerprint {
+    len: u64,
+    content_hash: u64,
+}
+
+impl DiskFingerprint {
+    /// The fingerprint of `bytes` (what is or will be in the file).
+    pub fn of_bytes(bytes: &[u8]) -> Self {
+        use std::hash::{Hash as _, Hasher as _};
+        let mut hasher = std::collections::hash_map::DefaultHasher::new();
+        bytes.hash(&mut hasher);
+        Self {
+            len: bytes.len() as u64,
+            content_hash: hasher.finish(),
+        }
+    }
+
+    /// The fingerprint of the file at `path` now (through links), or None
+    /// if there is no file there.
+    pub fn of_file(path: &Path) -> io::Result<Option<Self>> {
+        match fs::read(path) {
+            Ok(bytes) => Ok(Some(Self::of_bytes(&bytes))),
+            Err(e) if e.kind() == io::ErrorKind::NotFound => Ok(None),
+            Err(e) => Err(e),
+        }
+    }
 }
 
 /// A build written and synced to a temporary file beside its destination,
@@ -251,11 +435,17 @@ pub fn save(path: &Path, build: &Build) -> Result<(), StoreError> {
 #[derive(Debug)]
 pub struct StagedSave {
     temp: tempfile::NamedTempFile,
+    /// The file named by the caller (named in errors).
+    named: PathBuf,
+    /// The file actually replaced: `named`, or the file a link points to.
     destination: PathBuf,
+    fingerprint: DiskFingerprint,
 }
 
 /// First half of [`save`]: validates, encodes, writes and syncs the
-/// temporary file. The destination is not touched.
+/// temporary file. The destination is not touched. When `path` is a
+/// symbolic link, the temporary file goes beside the file the link points
+/// to, which is the one replaced; the link stays a link.
 pub fn stage(path: &Path, build: &Build) -> Result<StagedSave, StoreError> {
     build
         .validate()
@@ -271,12 +461,16 @@ pub fn stage(path: &Path, build: &Build) -> Result<StagedSave, StoreError> {
         path: path.to_path_buf(),
         source,
     };
-    let mut temp = temp_beside(path).map_err(write_error)?;
+    let destination = link_target(path);
+    remove_stale_temps(&destination);
+    let mut temp = temp_beside(&destination).map_err(write_error)?;
     temp.write_all(text.as_bytes()).map_err(write_error)?;
     temp.as_file().sync_all().map_err(write_error)?;
     Ok(StagedSave {
         temp,
-        destination: path.to_path_buf(),
+        named: path.to_path_buf(),
+        destination,
+        fingerprint: DiskFingerprint::of_bytes(text.as_bytes()),
     })
 }
 
@@ -286,14 +480,34 @@ impl StagedSave {
         self.temp.path()
     }
 
+    /// The file that [`Self::commit`] replaces (the link's target when the
+    /// path given was a symbolic link).
+    pub fn destination(&self) -> &Path {
+        &self.destination
+    }
+
     /// Second half of [`save`]: keeps the current file as the backup, then
     /// renames the temporary file over the destination and syncs the folder.
     pub fn commit(self) -> Result<(), StoreError> {
+        self.commit_if_unchanged(None)
+    }
+
+    /// [`Self::commit`], but first checks that the destination still holds
+    /// what `expected` describes (see [`save_checked`]).
+    pub fn commit_if_unchanged(self, expected: Option<&DiskFingerprint>) -> Result<(), StoreError> {
         let destination = self.destination;
         let write_error = |source| StoreError::Write {
-            path: destination.clone(),
+            path: self.named.clone(),
             source,
         };
+        if let Some(expected) = expected {
+            let now = DiskFingerprint::of_file(&destination).map_err(write_error)?;
+            if now.as_ref() != Some(expected) {
+                return Err(StoreError::ChangedOnDisk {
+                    path: self.named.clone(),
+                });
+            }
+        }
         if destination.exists() {
             keep_backup(&destination).map_err(write_error)?;
         }
@@ -302,6 +516,55 @@ impl StagedSave {
             .map_err(|e| write_error(e.error))?;
         sync_folder(&destination);
         Ok(())
+    }
+}
+
+/// The file a save replaces: `path` itself, or, if it is a symbolic link,
+/// the file the chain of links ends at (which need not exist yet).
+fn link_target(path: &Path) -> PathBuf {
+    if let Ok(real) = fs::canonicalize(path) {
+        if fs::symlink_metadata(path).is_ok_and(|m| m.file_type().is_symlink()) {
+            return real;
+        }
+        return path.to_path_buf();
+    }
+    // A dangling link: follow it by hand (at most 40 steps, as Linux does).
+    let mut current = path.to_path_buf();
+    for _ in 0..40 {
+        match fs::read_link(&current) {
+            Ok(next) => current = folder_of(&current).join(next),
+            Err(_) => return current,
+        }
+    }
+    path.to_path_buf()
+}
+
+/// Removes `.<name>.*.saving` files beside `path` older than
+/// [`STALE_TEMP_AGE`]: left by a save that was interrupted (crash, power
+/// cut). Younger ones may belong to a save running now and are kept.
+fn remove_stale_temps(path: &Path) {
+    let Some(name) = path.file_name().map(|n| n.to_string_lossy().into_owned()) else {
+        return;
+    };
+    let prefix = format!(".{name}.");
+    let Ok(entries) = fs::read_dir(folder_of(path)) else {
+        return;
+    };
+    for entry in entries.flatten() {
+        let file_name = entry.file_name().to_string_lossy().into_owned();
+        if !(file_name.starts_with(&prefix) && file_name.ends_with(".saving")) {
+            continue;
+        }
+        let old = entry
+            .metadata()
+            .and_then(|m| m.modified())
+            .ok()
+            .and_then(|t| t.elapsed().ok())
+            .is_some_and(|age| age > STALE_TEMP_AGE);
+        if old {
+            // Another save may have removed it first; that is fine.
+            let _ = fs::remove_file(entry.path());
+        }
     }
 }
 

@@ -16,7 +16,7 @@ use crate::ledger::Build;
 use super::air_area::{self, AirAreaState};
 use super::commands::{AppCommand, Area, AreaContext, ListenCommand, SourcePick};
 use super::drive_area::{self, DriveAreaState};
-use super::jobs::{self, FilePurpose, JobDone, Jobs};
+use super::jobs::{self, FilePurpose, JobDone, Jobs, SaveCheck, SaveProblem, SaveStamp};
 use super::ledger_area::{self, LedgerAreaState};
 use super::listen_area::{self, ListenView};
 use super::session::{ListenSession, TapEntry};
@@ -147,6 +147,20 @@ pub struct TapwrightApp {
     build: Option<Build>,
     build_path: Option<PathBuf>,
     build_unsaved: bool,
+    /// Counts the builds opened or started (stamps saves, see `SaveStamp`).
+    build_document: u64,
+    /// Counts the changes to the open build; the unsaved mark clears only
+    /// when a save of the newest one finishes.
+    build_generation: u64,
+    /// The file that changed on disk under the open build, while the maker
+    /// has not decided what to do about it.
+    save_conflict: Option<PathBuf>,
+    /// The window was asked to close with unsaved changes.
+    close_prompt: bool,
+    /// Close once the newest snapshot is saved.
+    close_after_save: bool,
+    /// The maker agreed to close; the next close request goes through.
+    close_confirmed: bool,
     listen_part: Option<String>,
     listen_view: ListenView,
     ledger_state: LedgerAreaState,
@@ -203,6 +217,12 @@ impl TapwrightApp {
             build: None,
             build_path: None,
             build_unsaved: false,
+            build_document: 0,
+            build_generation: 0,
+            save_conflict: None,
+            close_prompt: false,
+            close_after_save: false,
+            close_confirmed: false,
             listen_part: None,
             ledger_state: LedgerAreaState::default(),
             air_state: AirAreaState::default(),
@@ -286,7 +306,10 @@ impl TapwrightApp {
         self.take_capture_events();
         self.take_dropped_files(ui.ctx());
         drive_area::each_frame(ui, &mut self.drive_state);
+        self.hold_close_if_unsaved(ui.ctx());
         self.draw(ui);
+        self.draw_conflict_prompt(ui.ctx());
+        self.draw_close_prompt(ui.ctx());
         if !self.commands.is_empty() {
             // The frame just drawn predates the commands: draw once more.
             ui.ctx().request_repaint();
@@ -344,11 +367,7 @@ impl TapwrightApp {
             return;
         }
         match crate::demo::sample_build() {
-            Ok(build) => {
-                self.build = Some(build);
-                self.build_path = None;
-                self.build_unsaved = false;
-            }
+            Ok(build) => self.replace_build(Some(build), None, false),
             Err(error) => self.set_error(sentence(&error.to_string())),
         }
     }
@@ -371,12 +390,20 @@ impl TapwrightApp {
                         self.capture_opened(result);
                     }
                 }
+                JobDone::FileChosen {
+                    purpose: FilePurpose::SaveBuildCopy,
+                    path: None,
+                } => self.close_after_save = false,
                 JobDone::FileChosen { purpose, path } => {
                     if let Some(path) = path {
                         let command = match purpose {
                             FilePurpose::OpenRecording => ListenCommand::OpenRecording(path),
                             FilePurpose::SaveTaps => ListenCommand::SaveTaps(path),
                             FilePurpose::ExportPass => ListenCommand::ExportPass(path),
+                            FilePurpose::SaveBuildCopy => {
+                                self.commands.push(AppCommand::SaveBuildAs(path));
+                                continue;
+                            }
                         };
                         self.commands.push(AppCommand::Listen(command));
                     }
@@ -401,27 +428,257 @@ impl TapwrightApp {
                 JobDone::Saved(Ok(text)) => self.set_message(text),
                 JobDone::Saved(Err(problem)) => self.set_error(problem),
                 JobDone::BuildLoaded { path, result } => match result {
-                    Ok(build) => {
+                    Ok((build, fingerprint)) => {
                         self.set_message(format!("Opened the build \"{}\".", build.name));
-                        self.build = Some(build);
-                        self.build_path = Some(path);
-                        self.build_unsaved = false;
-                        self.listen_part = None;
+                        self.jobs
+                            .track_build_file(Some((path.clone(), fingerprint)));
+                        self.replace_build(Some(build), Some(path), false);
                     }
                     Err(problem) => self.set_error(problem),
                 },
-                JobDone::BuildSaved { path, result } => match result {
-                    Ok(()) => {
-                        self.set_message(format!("Saved the build to {}.", path.display()));
-                        self.build_path = Some(path);
-                        self.build_unsaved = false;
-                    }
-                    Err(problem) => {
-                        self.build_unsaved = true;
-                        self.set_error(problem);
-                    }
-                },
+                JobDone::BuildSaved {
+                    path,
+                    stamp,
+                    result,
+                    ..
+                } => self.build_saved(path, stamp, result),
             }
+        }
+    }
+
+    // ----- the open build and its file --------------------------------------
+
+    /// Replaces the open build (opened, started, closed): a new document,
+    /// so answers to saves of the old one no longer touch the window.
+    fn replace_build(&mut self, build: Option<Build>, path: Option<PathBuf>, unsaved: bool) {
+        self.build = build;
+        self.build_path = path;
+        self.build_unsaved = unsaved;
+        self.build_document += 1;
+        self.build_generation = 0;
+        self.save_conflict = None;
+        self.listen_part = None;
+    }
+
+    /// The open build changed: it is unsaved until a save of this snapshot
+    /// (or a newer one) finishes.
+    fn mark_build_changed(&mut self) {
+        self.build_generation += 1;
+        self.build_unsaved = true;
+    }
+
+    fn save_stamp(&self) -> SaveStamp {
+        SaveStamp {
+            document: self.build_document,
+            generation: self.build_generation,
+        }
+    }
+
+    /// Queues a save of the open build, as it is now, on the build saver.
+    fn queue_build_save(&mut self, path: PathBuf, check: SaveCheck) {
+        let Some(build) = self.build.clone() else {
+            return;
+        };
+        let stamp = self.save_stamp();
+        self.jobs.save_build(path, build, stamp, check);
+    }
+
+    /// A save finished. Only a save of the open build changes the window:
+    /// its path is adopted (Save as…), and the unsaved mark clears only if
+    /// the snapshot saved is the newest.
+    fn build_saved(&mut self, path: PathBuf, stamp: SaveStamp, result: Result<(), SaveProblem>) {
+        if stamp.document != self.build_document {
+            if let Err(SaveProblem::Failed(problem) | SaveProblem::ChangedOnDisk(problem)) = result
+            {
+                self.set_error(problem);
+            }
+            return;
+        }
+        match result {
+            Ok(()) => {
+                self.set_message(format!("Saved the build to {}.", path.display()));
+                if self.build_path.as_ref() != Some(&path) {
+                    self.build_path = Some(path);
+                }
+                self.save_conflict = None;
+                if stamp.generation == self.build_generation {
+                    self.build_unsaved = false;
+                    if self.close_after_save {
+                        self.close_window_now();
+                    }
+                }
+            }
+            Err(SaveProblem::ChangedOnDisk(problem)) => {
+                self.build_unsaved = true;
+                self.close_after_save = false;
+                self.save_conflict = Some(path);
+                self.set_error(problem);
+            }
+            Err(SaveProblem::Failed(problem)) => {
+                self.build_unsaved = true;
+                self.close_after_save = false;
+                self.set_error(problem);
+            }
+        }
+    }
+
+    /// True while the window waits for the maker's answer about a file that
+    /// changed on disk.
+    pub fn save_conflict(&self) -> Option<&Path> {
+        self.save_conflict.as_deref()
+    }
+
+    /// True while the window asks whether to save before closing.
+    pub fn close_prompt_shown(&self) -> bool {
+        self.close_prompt
+    }
+
+    /// True once the maker agreed to close (or nothing was unsaved).
+    pub fn close_confirmed(&self) -> bool {
+        self.close_confirmed
+    }
+
+    /// A close request (window button, Alt+F4) with unsaved changes is
+    /// held back and the maker asked first.
+    fn hold_close_if_unsaved(&mut self, ctx: &egui::Context) {
+        let asked = ctx.input(|i| i.viewport().close_requested());
+        if !asked || self.close_confirmed {
+            return;
+        }
+        if self.build.is_some() && self.build_unsaved {
+            ctx.send_viewport_cmd(egui::ViewportCommand::CancelClose);
+            self.close_prompt = true;
+        } else {
+            self.close_confirmed = true;
+        }
+    }
+
+    fn close_window_now(&mut self) {
+        self.close_prompt = false;
+        self.close_after_save = false;
+        self.close_confirmed = true;
+        if let Some(ctx) = &self.ctx {
+            ctx.send_viewport_cmd(egui::ViewportCommand::Close);
+        }
+    }
+
+    fn choose_copy_path(&mut self) {
+        let name = self
+            .build
+            .as_ref()
+            .map(|b| format!("{} copy.ron", b.name))
+            .unwrap_or_else(|| "build.ron".to_owned());
+        self.jobs.spawn("dialog", move || {
+            jobs::choose_file(FilePurpose::SaveBuildCopy, name)
+        });
+    }
+
+    fn draw_close_prompt(&mut self, ctx: &egui::Context) {
+        if !self.close_prompt {
+            return;
+        }
+        let name = self
+            .build
+            .as_ref()
+            .map(|b| b.name.clone())
+            .unwrap_or_default();
+        let has_file = self.build_path.is_some();
+        let mut answer = None;
+        let modal =
+            egui::Modal::new(egui::Id::unique("close with unsaved changes")).show(ctx, |ui| {
+                ui.heading("Unsaved changes");
+                ui.label(format!(
+                "The build \"{name}\" has changes that are not saved. Save them before closing?"
+            ));
+                ui.horizontal(|ui| {
+                    let save_text = if has_file {
+                        "Save and close"
+                    } else {
+                        "Save as… and close"
+                    };
+                    if ui.button(save_text).clicked() {
+                        answer = Some(CloseAnswer::Save);
+                    }
+                    if ui.button("Close without saving").clicked() {
+                        answer = Some(CloseAnswer::Discard);
+                    }
+                    if ui.button("Cancel").clicked() {
+                        answer = Some(CloseAnswer::Cancel);
+                    }
+                });
+            });
+        if modal.should_close() && answer.is_none() {
+            answer = Some(CloseAnswer::Cancel);
+        }
+        match answer {
+            Some(CloseAnswer::Save) => {
+                self.close_prompt = false;
+                self.close_after_save = true;
+                match self.build_path.clone() {
+                    Some(path) => self.queue_build_save(path, SaveCheck::IfUnchanged),
+                    None => self.choose_copy_path(),
+                }
+            }
+            Some(CloseAnswer::Discard) => self.close_window_now(),
+            Some(CloseAnswer::Cancel) => self.close_prompt = false,
+            None => {}
+        }
+    }
+
+    fn draw_conflict_prompt(&mut self, ctx: &egui::Context) {
+        let Some(path) = self.save_conflict.clone() else {
+            return;
+        };
+        let mut answer = None;
+        egui::Modal::new(egui::Id::unique("build file changed on disk")).show(ctx, |ui| {
+            ui.heading("The build file changed on disk");
+            ui.label(format!(
+                "{} was changed by another window or program since this window opened or \
+                 last saved it. Nothing was written. What should happen to the changes here?",
+                path.display()
+            ));
+            ui.horizontal(|ui| {
+                if ui
+                    .button("Reload from disk")
+                    .on_hover_text("Open the file as it is now; the changes here are dropped")
+                    .clicked()
+                {
+                    answer = Some(ConflictAnswer::Reload);
+                }
+                if ui
+                    .button("Save as a copy…")
+                    .on_hover_text("Keep both: the file stays, the build here goes to a new file")
+                    .clicked()
+                {
+                    answer = Some(ConflictAnswer::Copy);
+                }
+                if ui
+                    .button("Overwrite the file")
+                    .on_hover_text("Replace the file with the build here (the other changes are lost; the old file is kept as .bak)")
+                    .clicked()
+                {
+                    answer = Some(ConflictAnswer::Overwrite);
+                }
+                if ui.button("Decide later").clicked() {
+                    answer = Some(ConflictAnswer::Later);
+                }
+            });
+        });
+        match answer {
+            Some(ConflictAnswer::Reload) => {
+                self.save_conflict = None;
+                self.commands.push(AppCommand::OpenBuild(path));
+            }
+            Some(ConflictAnswer::Copy) => {
+                self.save_conflict = None;
+                self.choose_copy_path();
+            }
+            Some(ConflictAnswer::Overwrite) => {
+                self.save_conflict = None;
+                self.queue_build_save(path, SaveCheck::Overwrite);
+            }
+            Some(ConflictAnswer::Later) => self.save_conflict = None,
+            None => {}
         }
     }
 
@@ -757,20 +1014,17 @@ impl TapwrightApp {
                     self.set_error("A new build needs a name.".to_owned());
                 } else {
                     self.set_message(format!("Started the build \"{name}\"; save it to keep it."));
-                    self.build = Some(Build::new(name, family));
-                    self.build_path = None;
-                    self.build_unsaved = true;
-                    self.listen_part = None;
+                    self.jobs.track_build_file(None);
+                    self.replace_build(Some(Build::new(name, family)), None, true);
                 }
             }
             AppCommand::OpenBuild(path) => self
                 .jobs
                 .spawn("open-build", move || jobs::load_build(path)),
             AppCommand::SaveBuild => match (&self.build, &self.build_path) {
-                (Some(build), Some(path)) => {
-                    let (build, path) = (build.clone(), path.clone());
-                    self.jobs
-                        .spawn("save-build", move || jobs::save_build(path, build));
+                (Some(_), Some(path)) => {
+                    let path = path.clone();
+                    self.queue_build_save(path, SaveCheck::IfUnchanged);
                 }
                 (Some(_), None) => {
                     self.set_error("The build has no file yet: choose where to save it.".to_owned())
@@ -778,23 +1032,17 @@ impl TapwrightApp {
                 (None, _) => self.set_error("There is no open build to save.".to_owned()),
             },
             AppCommand::SaveBuildAs(path) => match &self.build {
-                Some(build) => {
-                    let build = build.clone();
-                    self.jobs
-                        .spawn("save-build", move || jobs::save_build(path, build));
-                }
+                Some(_) => self.queue_build_save(path, SaveCheck::IfUnchanged),
                 None => self.set_error("There is no open build to save.".to_owned()),
             },
             AppCommand::CloseBuild => {
-                self.build = None;
-                self.build_path = None;
-                self.build_unsaved = false;
-                self.listen_part = None;
+                self.jobs.track_build_file(None);
+                self.replace_build(None, None, false);
             }
             AppCommand::EditBuild { description, edit } => match self.build.as_mut() {
                 Some(build) => match edit(build) {
                     Ok(text) => {
-                        self.build_unsaved = true;
+                        self.mark_build_changed();
                         if !text.is_empty() {
                             self.set_message(text);
                         }
@@ -857,8 +1105,8 @@ impl TapwrightApp {
                 }
             }
         }
-        self.build_unsaved = true;
-        let autosave = self.build.clone().zip(self.build_path.clone());
+        self.mark_build_changed();
+        let autosave = self.build_path.clone().filter(|_| self.build.is_some());
         match problems.first() {
             Some(problem) => self.set_error(problem.clone()),
             None if autosave.is_some() => self.set_message(format!(
@@ -871,9 +1119,8 @@ impl TapwrightApp {
             )),
         }
         // Autosave after every recorded pass once the build has a file.
-        if let Some((build, path)) = autosave {
-            self.jobs
-                .spawn("save-build", move || jobs::save_build(path, build));
+        if let Some(path) = autosave {
+            self.queue_build_save(path, SaveCheck::IfUnchanged);
         }
     }
 
@@ -1067,6 +1314,23 @@ impl Drop for TapwrightApp {
     fn drop(&mut self) {
         self.stop_capture();
     }
+}
+
+/// The maker's answer to "save before closing?".
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+enum CloseAnswer {
+    Save,
+    Discard,
+    Cancel,
+}
+
+/// The maker's answer to "the file changed on disk".
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+enum ConflictAnswer {
+    Reload,
+    Copy,
+    Overwrite,
+    Later,
 }
 
 /// Labels shown on the demo plate's modes as an example, if the analysis
