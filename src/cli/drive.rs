@@ -5,6 +5,7 @@ use std::time::{Duration, Instant};
 
 use anyhow::{bail, Context};
 
+use super::output::{note, write_stdout};
 use crate::capture::open_tone_output;
 use crate::capture::tone::{
     check_duration, ToneError, ToneSettings, DEFAULT_LEVEL_CAP_DB, DEFAULT_LEVEL_DB,
@@ -86,14 +87,14 @@ pub fn run(args: &DriveArgs) -> anyhow::Result<()> {
     let output = open_tone_output(args.device.as_deref(), &settings)?;
     checked(settings.check(Some(output.sample_rate_hz())))
         .with_context(|| format!("on {}", output.description()))?;
-    eprintln!("{CAUTION}");
-    eprintln!(
+    note(CAUTION);
+    note(&format!(
         "Playing {:.3} Hz at {:.1} dBFS for {} s on {}.",
         args.hz,
         args.level_db,
         args.seconds,
         output.description()
-    );
+    ));
     let mut output = output;
     output.controls().play_for(args.seconds);
     let deadline = Instant::now() + Duration::from_secs_f64(args.seconds) + GRACE;
@@ -114,9 +115,8 @@ pub fn run(args: &DriveArgs) -> anyhow::Result<()> {
     let description = output.description().to_owned();
     // Dropping plays out the device's buffer, then closes the stream.
     drop(output);
-    println!(
-        "Played {:.3} Hz at {:.1} dBFS for {} s on {description}.",
+    write_stdout(&format!(
+        "Played {:.3} Hz at {:.1} dBFS for {} s on {description}.\n",
         args.hz, args.level_db, args.seconds
-    );
-    Ok(())
+    ))
 }

@@ -8,6 +8,8 @@
 use anyhow::{anyhow, bail, Result};
 use serde_json::{json, Value};
 
+use super::output::write_stdout;
+
 use crate::acoustics::stock::{bar_figures, BarFigures, BarSample, StockError, WOOD_POISSON_RATIO};
 
 /// Arguments of `tapwright stock`.
@@ -54,8 +56,7 @@ pub fn run(args: &StockArgs) -> Result<()> {
     } else {
         report_text(&figures)
     };
-    print!("{text}");
-    Ok(())
+    write_stdout(&text)
 }
 
 fn parse_number(option: &str, text: &str) -> Result<f64> {
