@@ -7,6 +7,7 @@ mod capture_cmds;
 mod ledger_cmd;
 mod measure;
 mod report;
+mod report_cmd;
 
 use std::process::ExitCode;
 
@@ -43,6 +44,8 @@ pub enum Command {
     Ledger(ledger_cmd::LedgerArgs),
     /// Estimate a body's air resonance (A0) from its volume and openings.
     Air(air::AirArgs),
+    /// Write a build's report as one HTML file (passes, charts, forecasts, air check).
+    Report(report_cmd::ReportArgs),
 }
 
 /// Parses the process arguments, runs the chosen subcommand (or opens the
@@ -56,6 +59,7 @@ pub fn run_from_env() -> ExitCode {
         Some(Command::Listen(args)) => capture_cmds::run_listen(args),
         Some(Command::Ledger(args)) => ledger_cmd::run(args),
         Some(Command::Air(args)) => air::run(args),
+        Some(Command::Report(args)) => report_cmd::run(args),
     };
     match outcome {
         Ok(()) => ExitCode::SUCCESS,
