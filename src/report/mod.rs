@@ -57,17 +57,14 @@ pub fn build_report_html(build: &Build, settings: &ReportSettings) -> String {
 
 /// Writes `html` to `path` atomically: a temporary file in the same folder,
 /// synced, then renamed over `path`, so a crash leaves the old file or the
-/// new one, never half of one.
+/// new one, never half of one. A new file gets the ordinary permissions
+/// (less the umask), not a temporary file's owner-only ones.
 pub fn write_report(path: &Path, html: &str) -> Result<(), ReportError> {
     let error = |source| ReportError::Write {
         path: path.to_path_buf(),
         source,
     };
-    let folder = match path.parent() {
-        Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
-        _ => PathBuf::from("."),
-    };
-    let mut temp = tempfile::NamedTempFile::new_in(&folder).map_err(error)?;
+    let mut temp = crate::ledger::store::temp_beside(path).map_err(error)?;
     temp.write_all(html.as_bytes()).map_err(error)?;
     temp.as_file().sync_all().map_err(error)?;
     temp.persist(path).map_err(|e| error(e.error))?;
