@@ -58,9 +58,7 @@ fn each_sample_report_is_valid_html_with_every_pass_and_a_chart_per_labelled_mod
         let html = build_report_html(&build, &settings());
         let document = parse_without_errors(&html);
         assert_eq!(
-            document
-                .select(&select("section.part"))
-                .count(),
+            document.select(&select("section.part")).count(),
             build.parts().len(),
             "{file}"
         );
@@ -141,7 +139,10 @@ fn user_text_is_escaped_in_the_page_and_in_the_charts() {
     let mut build = Build::new("<script>alert(1)</script> & \"Co\"", Family::Other);
     build.notes = "</p><script>x()</script>".to_owned();
     let part = build
-        .add_part("<img src=x onerror=y>", PartKind::Custom("<b>bar</b>".into()))
+        .add_part(
+            "<img src=x onerror=y>",
+            PartKind::Custom("<b>bar</b>".into()),
+        )
         .expect("test value");
     part.add_label("<svg onload=z>").expect("test value");
     for (mass_g, hz) in [(50.0, 300.0), (48.0, 290.0)] {
@@ -204,7 +205,11 @@ fn the_air_check_compares_a_measured_a0_with_the_estimate() {
         .parts()
         .iter()
         .filter(|p| *p.kind() == PartKind::AssembledBody)
-        .any(|p| p.passes().iter().any(|pass| pass.mode_labelled("A0").is_some()));
+        .any(|p| {
+            p.passes()
+                .iter()
+                .any(|pass| pass.mode_labelled("A0").is_some())
+        });
     assert!(has_body_a0, "the sample body has an A0");
     assert!(text.contains("Measured A0"));
     assert!(text.contains("Measured − estimated"));

@@ -42,7 +42,10 @@ pub fn mode5_interval_semitones(top: &PlateModes, back: &PlateModes) -> f64 {
 /// both.
 pub fn top_and_back(build: &Build) -> Option<(&Part, &Part)> {
     let first_of = |kind: PartKind| build.parts().iter().find(|p| *p.kind() == kind);
-    Some((first_of(PartKind::TopPlate)?, first_of(PartKind::BackPlate)?))
+    Some((
+        first_of(PartKind::TopPlate)?,
+        first_of(PartKind::BackPlate)?,
+    ))
 }
 
 #[cfg(test)]

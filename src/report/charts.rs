@@ -54,9 +54,8 @@ pub fn mode_chart_svg(chart: &ModeChart) -> Result<String, String> {
     let mut svg = String::new();
     {
         let root = SVGBackend::with_string(&mut svg, CHART_SIZE_PX).into_drawing_area();
-        draw_both(&root, chart).map_err(|e| {
-            format!("the chart of \"{}\" could not be drawn: {e}", chart.label)
-        })?;
+        draw_both(&root, chart)
+            .map_err(|e| format!("the chart of \"{}\" could not be drawn: {e}", chart.label))?;
         root.present()
             .map_err(|e| format!("the chart of \"{}\" could not be drawn: {e}", chart.label))?;
     }
@@ -85,7 +84,11 @@ fn frequency_range_hz(chart: &ModeChart) -> (f64, f64) {
 fn mass_range_g(chart: &ModeChart) -> (f64, f64) {
     let mut values: Vec<f64> = chart.history.iter().map(|p| p.mass_g).collect();
     if let Some(f) = usable_forecast(chart) {
-        values.extend([f.target_mass_g, f.target_mass_range_g.0, f.target_mass_range_g.1]);
+        values.extend([
+            f.target_mass_g,
+            f.target_mass_range_g.0,
+            f.target_mass_range_g.1,
+        ]);
     }
     padded_range(&values, 0.06, 0.5)
 }
@@ -108,9 +111,14 @@ fn padded_range(values: &[f64], fraction: f64, min_span: f64) -> (f64, f64) {
 
 fn usable_forecast<'a>(chart: &ModeChart<'a>) -> Option<&'a Forecast> {
     chart.forecast.filter(|f| {
-        [f.target_mass_g, f.target_hz, f.target_mass_range_g.0, f.target_mass_range_g.1]
-            .iter()
-            .all(|v| v.is_finite() && *v > 0.0)
+        [
+            f.target_mass_g,
+            f.target_hz,
+            f.target_mass_range_g.0,
+            f.target_mass_range_g.1,
+        ]
+        .iter()
+        .all(|v| v.is_finite() && *v > 0.0)
     })
 }
 
@@ -192,26 +200,22 @@ fn by_mass(
     Ok(())
 }
 
-type Plot<'a, 'b, X> = ChartContext<'a, SVGBackend<'b>, Cartesian2d<X, plotters::coord::types::RangedCoordf64>>;
+type Plot<'a, 'b, X> =
+    ChartContext<'a, SVGBackend<'b>, Cartesian2d<X, plotters::coord::types::RangedCoordf64>>;
 
 fn draw_track<X>(plot: &mut Plot<'_, '_, X>, points: &[(f64, f64)], colour: RGBColor) -> DrawResult
 where
     X: Ranged<ValueType = f64>,
 {
-    plot.draw_series(LineSeries::new(points.iter().copied(), colour.stroke_width(2)))?;
-    plot.draw_series(
-        points
-            .iter()
-            .map(|&p| Circle::new(p, 4, colour.filled())),
-    )?;
+    plot.draw_series(LineSeries::new(
+        points.iter().copied(),
+        colour.stroke_width(2),
+    ))?;
+    plot.draw_series(points.iter().map(|&p| Circle::new(p, 4, colour.filled())))?;
     Ok(())
 }
 
-fn draw_target<X>(
-    plot: &mut Plot<'_, '_, X>,
-    x: std::ops::Range<f64>,
-    target_hz: f64,
-) -> DrawResult
+fn draw_target<X>(plot: &mut Plot<'_, '_, X>, x: std::ops::Range<f64>, target_hz: f64) -> DrawResult
 where
     X: Ranged<ValueType = f64>,
 {
