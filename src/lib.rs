@@ -11,5 +11,6 @@ pub mod capture;
 pub mod cli;
 pub mod demo;
 pub mod ledger;
+pub mod report;
 pub mod ui;
 pub mod wav_io;

@@ -10,6 +10,7 @@ mod measure;
 pub mod output;
 mod parse_error;
 mod report;
+mod report_cmd;
 mod stock;
 
 use std::process::ExitCode;
@@ -53,6 +54,8 @@ pub enum Command {
     Drive(drive::DriveArgs),
     /// Grade a sample bar of tonewood from its taps.
     Stock(stock::StockArgs),
+    /// Write a build's report as one HTML file (passes, charts, forecasts, air check).
+    Report(report_cmd::ReportArgs),
 }
 
 /// Parses the process arguments, runs the chosen subcommand (or opens the
@@ -74,6 +77,7 @@ pub fn run_from_env() -> ExitCode {
         Some(Command::Air(args)) => air::run(args),
         Some(Command::Drive(args)) => drive::run(args),
         Some(Command::Stock(args)) => stock::run(args),
+        Some(Command::Report(args)) => report_cmd::run(args),
     };
     match outcome {
         Ok(()) => ExitCode::SUCCESS,

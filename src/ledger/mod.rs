@@ -8,6 +8,7 @@
 //! keep it on disk with [`store::load`] and [`store::save`].
 
 pub mod carry_over;
+pub mod compare;
 pub mod csv;
 pub mod forecast;
 pub mod from_analysis;

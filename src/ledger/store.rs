@@ -578,8 +578,9 @@ fn folder_of(path: &Path) -> &Path {
 /// A new temporary file in the same folder, named `.<file name>.XXXX.saving`,
 /// with the permissions `path` has now (or, for a new file, the ordinary
 /// read-write permissions less the umask) rather than the owner-only
-/// permissions temporary files get by default.
-fn temp_beside(path: &Path) -> io::Result<tempfile::NamedTempFile> {
+/// permissions temporary files get by default. Also used for the build
+/// report's file.
+pub fn temp_beside(path: &Path) -> io::Result<tempfile::NamedTempFile> {
     let name = path
         .file_name()
         .map(|n| n.to_string_lossy().into_owned())

@@ -4,6 +4,7 @@
 
 use eframe::egui;
 
+use crate::ledger::compare::{mode5_interval_semitones, plate_modes, top_and_back};
 use crate::ledger::{Build, LedgerError, Part, PartKind};
 
 use super::super::commands::{AppCommand, AreaContext};
@@ -361,52 +362,10 @@ pub fn part_summary(part: &Part) -> String {
     bits.join(" · ")
 }
 
-/// Mode 5 and mode 2 of a plate in its latest pass that has both.
-#[derive(Clone, Copy, Debug, PartialEq)]
-pub struct PlateModes {
-    /// The pass used.
-    pub pass_number: u32,
-    /// Mode 2, Hz.
-    pub mode2_hz: f64,
-    /// Mode 5, Hz.
-    pub mode5_hz: f64,
-}
-
-impl PlateModes {
-    /// Mode 5 / mode 2.
-    pub fn ratio(&self) -> f64 {
-        self.mode5_hz / self.mode2_hz
-    }
-}
-
-/// Mode 2 and mode 5 of `part`'s latest pass that has both labels.
-pub fn plate_modes(part: &Part) -> Option<PlateModes> {
-    part.passes().iter().rev().find_map(|pass| {
-        Some(PlateModes {
-            pass_number: pass.number(),
-            mode2_hz: pass.mode_labelled("mode 2")?.frequency_hz,
-            mode5_hz: pass.mode_labelled("mode 5")?.frequency_hz,
-        })
-    })
-}
-
-/// Semitones from the top's mode 5 to the back's: 12·log2(f_back/f_top).
-pub fn mode5_interval_semitones(top: &PlateModes, back: &PlateModes) -> f64 {
-    12.0 * (back.mode5_hz / top.mode5_hz).log2()
-}
-
 /// The top-against-back block.
 pub fn top_against_back(ui: &mut egui::Ui, build: &Build) {
     ui.strong("Top against back");
-    let top = build
-        .parts()
-        .iter()
-        .find(|p| *p.kind() == PartKind::TopPlate);
-    let back = build
-        .parts()
-        .iter()
-        .find(|p| *p.kind() == PartKind::BackPlate);
-    let (Some(top), Some(back)) = (top, back) else {
+    let Some((top, back)) = top_and_back(build) else {
         ui.weak("Needs a top plate and a back plate.");
         return;
     };
@@ -446,23 +405,6 @@ pub fn top_against_back(ui: &mut egui::Ui, build: &Build) {
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    #[test]
-    fn a_back_a_whole_tone_above_is_two_semitones() {
-        // Equal temperament: a whole tone is a frequency ratio of 2^(2/12)
-        // (definition of the semitone, common practice, no source).
-        let top = PlateModes {
-            pass_number: 1,
-            mode2_hz: 170.0,
-            mode5_hz: 340.0,
-        };
-        let back = PlateModes {
-            mode5_hz: 340.0 * 2f64.powf(2.0 / 12.0),
-            ..top
-        };
-        assert!((mode5_interval_semitones(&top, &back) - 2.0).abs() < 1e-9);
-        assert!((top.ratio() - 2.0).abs() < 1e-12);
-    }
 
     #[test]
     fn outline_must_be_positive() {

@@ -1,0 +1,266 @@
+//! The build report: the report of each sample build is valid HTML (parsed
+//! with html5ever through scraper, no parse errors), holds every pass and
+//! one SVG chart per labelled mode of each part; user text is escaped; the
+//! `report` command writes the file whole and answers bad input with one
+//! sentence and exit code 2.
+
+use std::path::Path;
+use std::process::{Command, Output};
+
+use scraper::{Html, Selector};
+use tapwright::acoustics::{CavityGeometry, Opening};
+use tapwright::ledger::{store, Build, Family, MeasuredMode, PartKind, PassInput, Timestamp};
+use tapwright::report::{build_report_html, ReportSettings};
+
+const SAMPLES: [&str; 2] = [
+    "sample_sessions/violin_wren.ron",
+    "sample_sessions/guitar_larkspur.ron",
+];
+
+fn settings() -> ReportSettings {
+    ReportSettings {
+        a4_hz: 440.0,
+        made: Timestamp::from_unix_seconds(1_718_000_000),
+    }
+}
+
+fn sample(file: &str) -> Build {
+    store::load(&Path::new(env!("CARGO_MANIFEST_DIR")).join(file)).expect("sample loads")
+}
+
+fn select(selector: &str) -> Selector {
+    Selector::parse(selector).expect("test selector")
+}
+
+/// Parses `html` as a whole document and fails on any parse error.
+fn parse_without_errors(html: &str) -> Html {
+    let document = Html::parse_document(html);
+    assert!(
+        document.errors.is_empty(),
+        "parse errors: {:?}",
+        document.errors
+    );
+    document
+}
+
+fn tapwright(args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_tapwright"))
+        .args(args)
+        .current_dir(env!("CARGO_MANIFEST_DIR"))
+        .output()
+        .expect("tapwright runs")
+}
+
+#[test]
+fn each_sample_report_is_valid_html_with_every_pass_and_a_chart_per_labelled_mode() {
+    for file in SAMPLES {
+        let build = sample(file);
+        let html = build_report_html(&build, &settings());
+        let document = parse_without_errors(&html);
+        assert_eq!(
+            document.select(&select("section.part")).count(),
+            build.parts().len(),
+            "{file}"
+        );
+        for part in build.parts() {
+            let section = document
+                .select(&select("section.part"))
+                .find(|s| s.value().attr("data-part") == Some(part.name()))
+                .unwrap_or_else(|| panic!("{file}: no section for {}", part.name()));
+            let passes: Vec<u32> = section
+                .select(&select("tbody.pass"))
+                .filter_map(|p| p.value().attr("data-pass")?.parse().ok())
+                .collect();
+            let expected: Vec<u32> = part.passes().iter().map(|p| p.number()).collect();
+            assert_eq!(passes, expected, "{file}, {}", part.name());
+            // Every labelled mode of every pass has its row.
+            let mode_rows = section.select(&select("tbody.pass tr.mode")).count();
+            let labelled: usize = part
+                .passes()
+                .iter()
+                .map(|p| p.modes().iter().filter(|m| m.label.is_some()).count())
+                .sum();
+            assert_eq!(mode_rows, labelled, "{file}, {}", part.name());
+            let charted: Vec<String> = section
+                .select(&select("figure.mode-chart"))
+                .filter(|f| f.select(&select("svg")).count() == 1)
+                .filter_map(|f| f.value().attr("data-label").map(str::to_owned))
+                .collect();
+            assert_eq!(charted, part.labels_in_use(), "{file}, {}", part.name());
+        }
+        // No script, no link to anything outside the file.
+        assert_eq!(document.select(&select("script")).count(), 0);
+        assert_eq!(document.select(&select("link, img, iframe")).count(), 0);
+        assert!(!html.contains("http://") || only_svg_namespace(&html));
+        assert!(!html.contains("https://"));
+    }
+}
+
+/// The only address allowed is the SVG namespace name, which is not fetched.
+fn only_svg_namespace(html: &str) -> bool {
+    html.matches("http://").count() == html.matches("http://www.w3.org/2000/svg").count()
+}
+
+#[test]
+fn the_violin_report_shows_changes_forecasts_top_against_back_and_cautions() {
+    let build = sample(SAMPLES[0]);
+    let html = build_report_html(&build, &settings());
+    let document = parse_without_errors(&html);
+    let text: String = document.root_element().text().collect();
+    let top = build.part("Top").expect("sample has a top");
+    // The change of mode 5 in the latest pass against the first, as the
+    // ledger computes it, appears in the table (cents, true minus sign).
+    let latest = top.latest_pass().expect("passes").number();
+    let change = top.change("mode 5", latest).expect("mode 5 labelled");
+    let first = change.vs_first.expect("more than one pass");
+    let cents = format!("{:+.0}", first.cents).replace('-', "\u{2212}");
+    assert!(text.contains(&cents), "{cents}");
+    for expected in [
+        "Targets and forecasts",
+        "Top against back",
+        "Mode 5 interval",
+        "Air check",
+        "Cautions",
+        "Wood dust",
+        "85 dB(A)",
+    ] {
+        assert!(text.contains(expected), "missing {expected}");
+    }
+    let forecast = top.forecast("mode 5").expect("the top has a mode 5 target");
+    let remove = format!("{:.1}", forecast.mass_to_remove_g).replace('-', "\u{2212}");
+    assert!(text.contains(&remove), "{remove}");
+    // Print rules: a page size margin and page breaks between parts.
+    assert!(html.contains("@page"));
+    assert!(html.contains("break-before: page"));
+}
+
+#[test]
+fn user_text_is_escaped_in_the_page_and_in_the_charts() {
+    let mut build = Build::new("<script>alert(1)</script> & \"Co\"", Family::Other);
+    build.notes = "</p><script>x()</script>".to_owned();
+    let part = build
+        .add_part(
+            "<img src=x onerror=y>",
+            PartKind::Custom("<b>bar</b>".into()),
+        )
+        .expect("test value");
+    part.add_label("<svg onload=z>").expect("test value");
+    for (mass_g, hz) in [(50.0, 300.0), (48.0, 290.0)] {
+        let mut input = PassInput::new(
+            mass_g,
+            vec![MeasuredMode {
+                frequency_hz: hz,
+                q: 40.0,
+                level_db: -20.0,
+                spread_hz: 0.5,
+            }],
+        );
+        input.note = "<i>thinned</i>".to_owned();
+        part.record_pass(input).expect("test value");
+    }
+    part.set_label(1, 0, Some("<svg onload=z>"))
+        .expect("test value");
+    let html = build_report_html(&build, &settings());
+    let document = parse_without_errors(&html);
+    assert_eq!(document.select(&select("script")).count(), 0);
+    assert_eq!(document.select(&select("img, b, i")).count(), 0);
+    // Only the chart makes an <svg>, none comes from the label.
+    assert_eq!(document.select(&select("svg")).count(), 1);
+    assert!(!html.contains("<svg onload"));
+    let text: String = document.root_element().text().collect();
+    assert!(text.contains("<script>alert(1)</script> & \"Co\""));
+    assert!(text.contains("<i>thinned</i>"));
+    let title: String = document
+        .select(&select("title"))
+        .flat_map(|t| t.text())
+        .collect();
+    assert!(title.contains("<script>"), "{title}");
+}
+
+#[test]
+fn the_air_check_compares_a_measured_a0_with_the_estimate() {
+    let mut build = sample(SAMPLES[0]);
+    // Invented body: 2.0 L, two slender slots (an f-hole pair, roughly).
+    build.air = Some(CavityGeometry::new(
+        2.0e-3,
+        vec![
+            Opening::Slot {
+                length_mm: 70.0,
+                mean_width_mm: 8.0,
+            },
+            Opening::Slot {
+                length_mm: 70.0,
+                mean_width_mm: 8.0,
+            },
+        ],
+    ));
+    let estimate = tapwright::acoustics::estimate_cavity(build.air.as_ref().expect("set"))
+        .expect("valid geometry");
+    let html = build_report_html(&build, &settings());
+    let document = parse_without_errors(&html);
+    let text: String = document.root_element().text().collect();
+    let estimate_text = format!("{:.1} Hz", estimate.helmholtz_hz);
+    assert!(text.contains(&estimate_text), "{estimate_text}");
+    let has_body_a0 = build
+        .parts()
+        .iter()
+        .filter(|p| *p.kind() == PartKind::AssembledBody)
+        .any(|p| {
+            p.passes()
+                .iter()
+                .any(|pass| pass.mode_labelled("A0").is_some())
+        });
+    assert!(has_body_a0, "the sample body has an A0");
+    assert!(text.contains("Measured A0"));
+    assert!(text.contains("Measured − estimated"));
+}
+
+#[test]
+fn the_report_command_writes_the_file_and_refuses_bad_input() {
+    let folder = tempfile::tempdir().expect("test value");
+    let out_path = folder.path().join("wren.html");
+    let out_text = out_path.to_str().expect("utf-8 path");
+    let out = tapwright(&["report", SAMPLES[0], "-o", out_text]);
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let written = std::fs::read_to_string(&out_path).expect("report written");
+    parse_without_errors(&written);
+    // Only the report is left in the folder (no stray temporary file).
+    assert_eq!(std::fs::read_dir(folder.path()).expect("dir").count(), 1);
+
+    let missing = tapwright(&["report", "no/such/build.ron", "-o", out_text]);
+    let no_folder = folder.path().join("none").join("r.html");
+    let bad_output = tapwright(&[
+        "report",
+        SAMPLES[0],
+        "-o",
+        no_folder.to_str().expect("utf-8"),
+    ]);
+    let folder_as_output = tapwright(&[
+        "report",
+        SAMPLES[0],
+        "-o",
+        folder.path().to_str().expect("utf-8"),
+    ]);
+    for (what, out) in [
+        ("missing build", &missing),
+        ("missing folder", &bad_output),
+        ("folder as output", &folder_as_output),
+    ] {
+        assert_eq!(out.status.code(), Some(2), "{what}");
+        assert!(out.stdout.is_empty(), "{what}");
+        let stderr = String::from_utf8_lossy(&out.stderr);
+        assert_eq!(stderr.trim_end().lines().count(), 1, "{what}: {stderr}");
+        assert!(stderr.starts_with("tapwright: "), "{what}: {stderr}");
+    }
+    assert!(String::from_utf8_lossy(&missing.stderr).contains("no/such/build.ron"));
+    assert!(String::from_utf8_lossy(&bad_output.stderr).contains("r.html"));
+    // The failed runs left the earlier report as it was.
+    assert_eq!(
+        std::fs::read_to_string(&out_path).expect("still there"),
+        written
+    );
+}
