@@ -264,3 +264,37 @@ fn the_report_command_writes_the_file_and_refuses_bad_input() {
         written
     );
 }
+
+/// The stock samples of the sample violin appear with the figures the
+/// acoustics layer gives for each bar (ASTM E1876 flexural modulus,
+/// density, speed of sound), one table row per bar.
+#[test]
+fn the_stock_samples_are_in_the_report() {
+    let build = sample("sample_sessions/violin_wren.ron");
+    assert!(!build.stock().is_empty(), "the sample violin has stock");
+    let html = build_report_html(&build, &settings());
+    let document = parse_without_errors(&html);
+    let rows: Vec<String> = document
+        .select(&select("table.stock tbody tr:not(.weak)"))
+        .map(|row| row.text().collect::<Vec<_>>().join("|"))
+        .collect();
+    let bars: usize = build
+        .stock()
+        .iter()
+        .map(|s| usize::from(s.along_grain.is_some()) + usize::from(s.cross_grain.is_some()))
+        .sum();
+    assert_eq!(rows.len(), bars, "{rows:?}");
+    for sample in build.stock() {
+        let figures = sample
+            .along_figures()
+            .expect("an along-grain bar")
+            .expect("valid figures");
+        let expected = format!("{:.2}", figures.youngs_modulus_gpa());
+        assert!(
+            rows.iter()
+                .any(|r| r.contains(&sample.name) && r.contains(&expected)),
+            "{} with E {expected} GPa in {rows:?}",
+            sample.name
+        );
+    }
+}

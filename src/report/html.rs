@@ -70,11 +70,58 @@ pub fn document(build: &Build, settings: &ReportSettings) -> Markup {
                 (parts_overview(build))
                 (top_against_back(build))
                 (air_check(build, settings))
-                // Further whole-build sections (the stock figures) go here.
+                (stock(build))
                 @for part in build.parts() {
                     (part_section(part, settings))
                 }
                 (footer(settings))
+            }
+        }
+    }
+}
+
+/// The build's wood samples, each bar with its figures (ASTM E1876 for the
+/// flexural modulus; see `acoustics::stock`); nothing when there are none.
+pub fn stock(build: &Build) -> Markup {
+    if build.stock().is_empty() {
+        return html! {};
+    }
+    html! {
+        h2 { "Stock" }
+        table.stock {
+            thead {
+                tr {
+                    th { "Sample" } th { "Species" } th { "Bar" } th { "Density (kg/m³)" }
+                    th { "E (GPa)" } th { "Speed of sound (m/s)" } th { "Radiation ratio" }
+                }
+            }
+            tbody {
+                @for sample in build.stock() {
+                    @for (grain, figures) in [("along the grain", sample.along_figures()), ("across the grain", sample.cross_figures())] {
+                        @if let Some(figures) = figures {
+                            tr {
+                                td { (sample.name) }
+                                td { (sample.species) }
+                                td { (grain) }
+                                @match figures {
+                                    Ok(f) => {
+                                        td.num { (num(f.density_kg_m3, 0)) }
+                                        td.num { (num(f.youngs_modulus_gpa(), 2)) }
+                                        td.num { (num(f.speed_of_sound_m_s, 0)) }
+                                        td.num { (num(f.radiation_ratio, 1)) }
+                                    }
+                                    Err(problem) => { td colspan="4" { (problem) } }
+                                }
+                            }
+                        }
+                    }
+                    @if let Some(ratio) = sample.grain_ratio() {
+                        tr.weak { td colspan="7" { (sample.name) ": along/across ratio of E " (num(ratio, 1)) } }
+                    }
+                    @if !sample.source_note.is_empty() {
+                        tr.weak { td colspan="7" { (sample.name) ": " (sample.source_note) } }
+                    }
+                }
             }
         }
     }
