@@ -10,6 +10,7 @@
 pub mod aggregate;
 mod linalg;
 pub mod modal;
+mod pencil;
 pub mod pitch;
 pub mod recording;
 pub mod spectrum;

@@ -24,6 +24,7 @@ use rustfft::num_complex::Complex64;
 use serde::{Deserialize, Serialize};
 
 use super::linalg::solve_symmetric;
+use super::pencil::{band_poles, Band, BandPole};
 use super::spectrum::{DisplaySpectrum, SpectrumMaker};
 use super::tap_finder::FoundTap;
 
@@ -116,6 +117,16 @@ impl Pole {
     fn tau_samples(&self) -> f64 {
         1.0 / (-self.z.norm().ln()).max(1e-9)
     }
+}
+
+/// What the matrix pencil says about the band of a mode that fits badly.
+enum PencilVerdict {
+    /// Two modes (or more; the two strongest), as starting values.
+    Pair([Pole; 2]),
+    /// One mode only: no split.
+    Single,
+    /// Nothing usable (too short, or no pole passed the tests).
+    Failed,
 }
 
 #[derive(Clone, Copy, Debug)]
@@ -318,29 +329,47 @@ impl TapAnalyzer {
     /// Two-mode fit in place of `pole` (already subtracted from the
     /// residual if `subtracted`, else only a starting guess); applied to the
     /// residual and returned when it is clearly better than what was there.
+    /// The starting values come from the matrix pencil on the mode's band
+    /// (`pencil`); if the pencil finds no pair there, from two guesses
+    /// either side of the mode.
     fn try_split(&mut self, pole: &Pole, subtracted: bool) -> Option<(Pole, Pole)> {
-        let len = fit_length(pole.tau_samples(), self.residual.len());
-        let mut signal = self.residual[..len].to_vec();
+        let pencil_span = fit_length(
+            PENCIL_TIME_CONSTANTS * pole.tau_samples(),
+            self.residual.len(),
+        );
+        let mut signal = self.residual[..pencil_span].to_vec();
         if subtracted {
             add_pole(&mut signal, pole, 1.0, 0.0);
         }
+        let offset = (-pole.z.norm().ln()).max(PI / pencil_span as f64);
+        let initial = match self.pencil_pair(pole, &signal) {
+            PencilVerdict::Pair(pair) => pair,
+            PencilVerdict::Single => return None,
+            PencilVerdict::Failed => {
+                let rotate = |p: &Pole, d_omega: f64, gain: Complex64| Pole {
+                    z: p.z * Complex64::from_polar(1.0, d_omega),
+                    c: p.c * gain,
+                };
+                [
+                    rotate(pole, -offset, Complex64::new(0.7, 0.0)),
+                    rotate(pole, offset, Complex64::new(0.0, 0.5)),
+                ]
+            }
+        };
+        let longest_tau = initial
+            .iter()
+            .map(Pole::tau_samples)
+            .fold(pole.tau_samples(), f64::max);
+        let len = fit_length(longest_tau, pencil_span);
+        let signal = &signal[..len];
         let single_cost: f64 = if subtracted {
             self.residual[..len].iter().map(|x| x * x).sum()
         } else {
             signal.iter().map(|x| x * x).sum()
         };
-        let offset = (-pole.z.norm().ln()).max(PI / len as f64);
-        let rotate = |p: &Pole, d_omega: f64, gain: Complex64| Pole {
-            z: p.z * Complex64::from_polar(1.0, d_omega),
-            c: p.c * gain,
-        };
-        let initial = [
-            rotate(pole, -offset, Complex64::new(0.7, 0.0)),
-            rotate(pole, offset, Complex64::new(0.0, 0.5)),
-        ];
-        let pair = refine_poles(&signal, &initial)?;
+        let pair = refine_poles(signal, &initial)?;
         let pair_cost = fit_cost(
-            &signal,
+            signal,
             &pair.iter().flat_map(pole_to_params).collect::<Vec<_>>(),
         );
         let sensible = pair
@@ -357,6 +386,28 @@ impl TapAnalyzer {
             add_pole(&mut self.residual, p, -1.0, self.tail_floor);
         }
         Some((pair[0], pair[1]))
+    }
+
+    /// The two strongest poles the matrix pencil finds in a band a few
+    /// bandwidths wide around `pole`, on `signal` (the residual with the
+    /// mode put back).
+    fn pencil_pair(&self, pole: &Pole, signal: &[f64]) -> PencilVerdict {
+        let decay = -pole.z.norm().ln();
+        let band = Band {
+            centre_rad: pole.z.arg(),
+            half_width_rad: (PENCIL_HALF_BANDWIDTHS * decay).max(8.0 * PI / signal.len() as f64),
+            span_samples: signal.len(),
+        };
+        let noise_rms = self.tail_floor / TAIL_BELOW_NOISE;
+        let found = band_poles(signal, &band, noise_rms);
+        match found.as_slice() {
+            [] => PencilVerdict::Failed,
+            [_] => PencilVerdict::Single,
+            [first, second, ..] => {
+                let to_pole = |p: &BandPole| Pole { z: p.z, c: p.c };
+                PencilVerdict::Pair([to_pole(first), to_pole(second)])
+            }
+        }
     }
 
     /// Estimates one candidate on the residual and subtracts it, if the
@@ -458,6 +509,13 @@ const TAIL_BELOW_NOISE: f64 = 0.05;
 /// Two modes replace one only if they leave at most this fraction of the
 /// one-mode residual energy.
 const SPLIT_GAIN: f64 = 0.5;
+/// The matrix pencil looks at this many time constants of a mode that fits
+/// badly (a close pair decays more slowly than the one broad mode fitted
+/// to it).
+const PENCIL_TIME_CONSTANTS: f64 = 8.0;
+/// The pencil's band reaches this many decay rates (half-bandwidths in
+/// rad/sample) either side of the mode.
+const PENCIL_HALF_BANDWIDTHS: f64 = 8.0;
 /// Passes of group refinement per round.
 const REFINE_SWEEPS: usize = 2;
 /// Rounds of looking again in the residual.
