@@ -289,7 +289,78 @@ impl TapAnalyzer {
                 }
             }
         }
+        self.reseed_close_groups(&mut poles);
         poles
+    }
+
+    /// Modes closer than a few bandwidths can settle in the joint fit on a
+    /// wrong pair (both near one frequency, large amplitudes that cancel).
+    /// The matrix pencil on the group's band gives independent starting
+    /// values; the refit from them replaces the group when it fits better.
+    fn reseed_close_groups(&mut self, poles: &mut [(Pole, f64)]) {
+        poles.sort_by(|a, b| a.0.z.arg().total_cmp(&b.0.z.arg()));
+        for group in overlapping_groups(poles) {
+            let members = &poles[group.clone()];
+            let close = members.windows(2).any(|pair| {
+                let (a, b) = (&pair[0].0, &pair[1].0);
+                let widths = -a.z.norm().ln() - b.z.norm().ln();
+                b.z.arg() - a.z.arg() < CLOSE_PAIR_BANDWIDTHS * widths
+            });
+            if close && members.len() <= MAX_PENCIL_GROUP {
+                self.reseed_group(&mut poles[group]);
+            }
+        }
+    }
+
+    fn reseed_group(&mut self, group: &mut [(Pole, f64)]) {
+        let longest_tau = group
+            .iter()
+            .map(|(p, _)| p.tau_samples())
+            .fold(0.0, f64::max);
+        let span = fit_length(PENCIL_TIME_CONSTANTS * longest_tau, self.residual.len());
+        let mut signal = self.residual[..span].to_vec();
+        for (pole, _) in group.iter() {
+            add_pole(&mut signal, pole, 1.0, 0.0);
+        }
+        let (low, high) = (group[0].0.z.arg(), group[group.len() - 1].0.z.arg());
+        let widest = group
+            .iter()
+            .map(|(p, _)| -p.z.norm().ln())
+            .fold(0.0, f64::max);
+        let band = Band {
+            centre_rad: 0.5 * (low + high),
+            half_width_rad: 0.5 * (high - low) + PENCIL_HALF_BANDWIDTHS * widest,
+            span_samples: span,
+        };
+        let found = band_poles(&signal, &band, self.tail_floor / TAIL_BELOW_NOISE);
+        if found.len() < group.len() {
+            return;
+        }
+        let mut initial: Vec<Pole> = found[..group.len()]
+            .iter()
+            .map(|p| Pole { z: p.z, c: p.c })
+            .collect();
+        initial.sort_by(|a, b| a.z.arg().total_cmp(&b.z.arg()));
+        let len = fit_length(
+            initial
+                .iter()
+                .map(Pole::tau_samples)
+                .fold(longest_tau, f64::max),
+            span,
+        );
+        let old: Vec<f64> = group.iter().flat_map(|(p, _)| pole_to_params(p)).collect();
+        let Some(new) = refine_poles(&signal[..len], &initial) else {
+            return;
+        };
+        let new_params: Vec<f64> = new.iter().flat_map(pole_to_params).collect();
+        if fit_cost(&signal[..len], &new_params) >= fit_cost(&signal[..len], &old) {
+            return;
+        }
+        for ((slot, _), p) in group.iter_mut().zip(new) {
+            add_pole(&mut self.residual, slot, 1.0, self.tail_floor);
+            add_pole(&mut self.residual, &p, -1.0, self.tail_floor);
+            *slot = p;
+        }
     }
 
     /// A lone mode whose neighbourhood still stands well above the floor
@@ -516,6 +587,11 @@ const PENCIL_TIME_CONSTANTS: f64 = 8.0;
 /// The pencil's band reaches this many decay rates (half-bandwidths in
 /// rad/sample) either side of the mode.
 const PENCIL_HALF_BANDWIDTHS: f64 = 8.0;
+/// Neighbours closer than this many summed half-power bandwidths get a
+/// second joint fit started from the matrix pencil.
+const CLOSE_PAIR_BANDWIDTHS: f64 = 5.0;
+/// Groups of at most this many modes are given to the pencil.
+const MAX_PENCIL_GROUP: usize = 3;
 /// Passes of group refinement per round.
 const REFINE_SWEEPS: usize = 2;
 /// Rounds of looking again in the residual.
