@@ -486,17 +486,44 @@ impl TapAnalyzer {
     fn add_candidate(&mut self, candidate: &Candidate, poles: &mut Vec<(Pole, f64)>) {
         let fs = self.sample_rate_hz;
         let omega = 2.0 * PI * candidate.frequency_hz / fs;
-        let Some(pole) = initial_estimate(&self.residual, omega) else {
-            return;
+        let plausible = |pole: &Pole| {
+            let moved_hz = (pole.frequency_hz(fs) - candidate.frequency_hz).abs();
+            pole.z.norm() < 1.0
+                && pole.z.arg() > 0.0
+                && moved_hz < 4.0 * candidate.bin_hz.max(pole.decay_per_s(fs) / PI)
         };
-        let moved_hz = (pole.frequency_hz(fs) - candidate.frequency_hz).abs();
-        let plausible = pole.z.norm() < 1.0
-            && pole.z.arg() > 0.0
-            && moved_hz < 4.0 * candidate.bin_hz.max(pole.decay_per_s(fs) / PI);
-        if plausible {
-            add_pole(&mut self.residual, &pole, -1.0, self.tail_floor);
-            poles.push((pole, candidate.prominence_db));
+        match initial_estimate(&self.residual, omega) {
+            Some(pole) if plausible(&pole) => {
+                add_pole(&mut self.residual, &pole, -1.0, self.tail_floor);
+                poles.push((pole, candidate.prominence_db));
+            }
+            _ => {
+                // Two modes beating inside one peak can make the three-bin
+                // estimate grow instead of decay: ask the pencil instead.
+                for pole in self.pencil_candidate(omega, candidate.bin_hz) {
+                    if plausible(&pole) {
+                        add_pole(&mut self.residual, &pole, -1.0, self.tail_floor);
+                        poles.push((pole, candidate.prominence_db));
+                    }
+                }
+            }
         }
+    }
+
+    /// The (at most two) strongest poles the matrix pencil finds within
+    /// a few display bins of `omega` in the residual.
+    fn pencil_candidate(&self, omega: f64, bin_hz: f64) -> Vec<Pole> {
+        let span = self.residual.len().min(RESIDUAL_SPECTRUM_SAMPLES);
+        let band = Band {
+            centre_rad: omega,
+            half_width_rad: 2.0 * PI * PENCIL_CANDIDATE_BINS * bin_hz / self.sample_rate_hz,
+            span_samples: span,
+        };
+        band_poles(&self.residual, &band, self.tail_floor / TAIL_BELOW_NOISE)
+            .iter()
+            .take(2)
+            .map(|p| Pole { z: p.z, c: p.c })
+            .collect()
     }
 
     fn refine_group(&mut self, group: &mut [(Pole, f64)]) {
@@ -590,6 +617,9 @@ const PENCIL_HALF_BANDWIDTHS: f64 = 8.0;
 /// Neighbours closer than this many summed half-power bandwidths get a
 /// second joint fit started from the matrix pencil.
 const CLOSE_PAIR_BANDWIDTHS: f64 = 5.0;
+/// A candidate the three-bin estimate cannot measure is searched by the
+/// pencil over this many display bins either side.
+const PENCIL_CANDIDATE_BINS: f64 = 16.0;
 /// Groups of at most this many modes are given to the pencil.
 const MAX_PENCIL_GROUP: usize = 3;
 /// Passes of group refinement per round.
