@@ -290,53 +290,58 @@ fn pitch_names_and_cents() {
     assert!((cents_between(440.0, 880.0) - 1200.0).abs() < 1e-12);
 }
 
-/// Two modes 4 Hz apart at Q 120 — the case the analysis design notes a
-/// plain peak-picking spectrum sees as one — and tighter pairs, are measured
-/// as two (joint least-squares refinement of the overlapping group). Known
-/// limit: when the two start nearly in opposite phase, the first estimate
-/// can take them for one broad mode and the pair is missed; the test counts
-/// how often each pair is resolved over eight starting phases and asks for
-/// at least six.
+/// Two modes closer than the record's DFT resolution can show as two peaks
+/// (3–6 Hz apart at Q 80–200; the analysis design notes that a plain
+/// peak-picking spectrum sees 4 Hz at Q 120 as one) are measured as two,
+/// in every one of eight starting phases of the second mode, to 0.2 Hz and
+/// 15 % in Q at 40 dB (peak over noise RMS). Targets from the issue; the
+/// subspace stage is the matrix pencil (Hua & Sarkar, IEEE Trans. ASSP
+/// 38(5), 1990) followed by the joint least-squares refinement.
 #[test]
 fn close_pairs_are_two_modes() {
-    for (i, &(gap_hz, q)) in [(4.0, 120.0), (3.0, 200.0), (6.0, 80.0)].iter().enumerate() {
-        let mut resolved = 0;
-        for trial in 0..8u64 {
-            let truth = [
-                SynthMode::new(300.0, q, 0.2),
-                SynthMode {
-                    phase_rad: 0.8 * trial as f64,
-                    ..SynthMode::new(300.0 + gap_hz, q, 0.15)
-                },
-            ];
-            let x = damped_modes(
-                FS,
-                48_000,
-                &truth,
-                0.002,
-                &mut NoiseGenerator::new(40 + 10 * i as u64 + trial),
-            );
-            let found = analyze_decay(&x);
-            let good = found.len() == 2
-                && truth.iter().all(|t| {
-                    let m = nearest(&found, t.frequency_hz);
-                    (m.frequency_hz - t.frequency_hz).abs() <= 0.1 && (m.q / t.q - 1.0).abs() <= 0.1
-                });
-            if good {
-                resolved += 1;
-            } else {
-                eprintln!(
-                    "gap {gap_hz} Hz, phase {:.1}: {found:?}",
-                    0.8 * trial as f64
+    let mut failures = Vec::new();
+    let mut case = 0u64;
+    for gap_hz in [3.0, 4.0, 5.0, 6.0] {
+        for q in [80.0, 120.0, 200.0] {
+            case += 1;
+            for trial in 0..8u64 {
+                let phase = 2.0 * PI * trial as f64 / 8.0;
+                let amplitude = 0.2;
+                let truth = [
+                    SynthMode::new(300.0, q, amplitude),
+                    SynthMode {
+                        phase_rad: phase,
+                        ..SynthMode::new(300.0 + gap_hz, q, 0.75 * amplitude)
+                    },
+                ];
+                let x = damped_modes(
+                    FS,
+                    48_000,
+                    &truth,
+                    amplitude / 100.0,
+                    &mut NoiseGenerator::new(4000 + 10 * case + trial),
                 );
+                let found = analyze_decay(&x);
+                let good = found.len() == 2
+                    && truth.iter().all(|t| {
+                        let m = nearest(&found, t.frequency_hz);
+                        (m.frequency_hz - t.frequency_hz).abs() <= 0.2
+                            && (m.q / t.q - 1.0).abs() <= 0.15
+                    });
+                if !good {
+                    failures.push(format!(
+                        "gap {gap_hz} Hz, Q {q}, phase {phase:.2}: {found:?}"
+                    ));
+                }
             }
         }
-        eprintln!("gap {gap_hz} Hz at Q {q}: {resolved} of 8 resolved");
-        assert!(
-            resolved >= 6,
-            "gap {gap_hz} Hz at Q {q}: only {resolved} of 8 resolved"
-        );
     }
+    assert!(
+        failures.is_empty(),
+        "{} missed:\n{}",
+        failures.len(),
+        failures.join("\n")
+    );
 }
 
 /// A steady tone under a tap (mains hum at 50 Hz, or a 150 Hz harmonic

@@ -11,6 +11,7 @@ pub mod aggregate;
 mod linalg;
 pub mod modal;
 pub mod onset;
+mod pencil;
 pub mod pitch;
 pub mod recording;
 pub mod sine_fit;

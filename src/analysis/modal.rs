@@ -24,6 +24,7 @@ use rustfft::num_complex::Complex64;
 use serde::{Deserialize, Serialize};
 
 use super::linalg::solve_symmetric;
+use super::pencil::{band_poles, Band, BandPole};
 use super::spectrum::{DisplaySpectrum, SpectrumMaker};
 use super::tap_finder::FoundTap;
 
@@ -116,6 +117,16 @@ impl Pole {
     fn tau_samples(&self) -> f64 {
         1.0 / (-self.z.norm().ln()).max(1e-9)
     }
+}
+
+/// What the matrix pencil says about the band of a mode that fits badly.
+enum PencilVerdict {
+    /// Two modes (or more; the two strongest), as starting values.
+    Pair([Pole; 2]),
+    /// One mode only: no split.
+    Single,
+    /// Nothing usable (too short, or no pole passed the tests).
+    Failed,
 }
 
 #[derive(Clone, Copy, Debug)]
@@ -278,7 +289,78 @@ impl TapAnalyzer {
                 }
             }
         }
+        self.reseed_close_groups(&mut poles);
         poles
+    }
+
+    /// Modes closer than a few bandwidths can settle in the joint fit on a
+    /// wrong pair (both near one frequency, large amplitudes that cancel).
+    /// The matrix pencil on the group's band gives independent starting
+    /// values; the refit from them replaces the group when it fits better.
+    fn reseed_close_groups(&mut self, poles: &mut [(Pole, f64)]) {
+        poles.sort_by(|a, b| a.0.z.arg().total_cmp(&b.0.z.arg()));
+        for group in overlapping_groups(poles) {
+            let members = &poles[group.clone()];
+            let close = members.windows(2).any(|pair| {
+                let (a, b) = (&pair[0].0, &pair[1].0);
+                let widths = -a.z.norm().ln() - b.z.norm().ln();
+                b.z.arg() - a.z.arg() < CLOSE_PAIR_BANDWIDTHS * widths
+            });
+            if close && members.len() <= MAX_PENCIL_GROUP {
+                self.reseed_group(&mut poles[group]);
+            }
+        }
+    }
+
+    fn reseed_group(&mut self, group: &mut [(Pole, f64)]) {
+        let longest_tau = group
+            .iter()
+            .map(|(p, _)| p.tau_samples())
+            .fold(0.0, f64::max);
+        let span = fit_length(PENCIL_TIME_CONSTANTS * longest_tau, self.residual.len());
+        let mut signal = self.residual[..span].to_vec();
+        for (pole, _) in group.iter() {
+            add_pole(&mut signal, pole, 1.0, 0.0);
+        }
+        let (low, high) = (group[0].0.z.arg(), group[group.len() - 1].0.z.arg());
+        let widest = group
+            .iter()
+            .map(|(p, _)| -p.z.norm().ln())
+            .fold(0.0, f64::max);
+        let band = Band {
+            centre_rad: 0.5 * (low + high),
+            half_width_rad: 0.5 * (high - low) + PENCIL_HALF_BANDWIDTHS * widest,
+            span_samples: span,
+        };
+        let found = band_poles(&signal, &band, self.tail_floor / TAIL_BELOW_NOISE);
+        if found.len() < group.len() {
+            return;
+        }
+        let mut initial: Vec<Pole> = found[..group.len()]
+            .iter()
+            .map(|p| Pole { z: p.z, c: p.c })
+            .collect();
+        initial.sort_by(|a, b| a.z.arg().total_cmp(&b.z.arg()));
+        let len = fit_length(
+            initial
+                .iter()
+                .map(Pole::tau_samples)
+                .fold(longest_tau, f64::max),
+            span,
+        );
+        let old: Vec<f64> = group.iter().flat_map(|(p, _)| pole_to_params(p)).collect();
+        let Some(new) = refine_poles(&signal[..len], &initial) else {
+            return;
+        };
+        let new_params: Vec<f64> = new.iter().flat_map(pole_to_params).collect();
+        if fit_cost(&signal[..len], &new_params) >= fit_cost(&signal[..len], &old) {
+            return;
+        }
+        for ((slot, _), p) in group.iter_mut().zip(new) {
+            add_pole(&mut self.residual, slot, 1.0, self.tail_floor);
+            add_pole(&mut self.residual, &p, -1.0, self.tail_floor);
+            *slot = p;
+        }
     }
 
     /// A lone mode whose neighbourhood still stands well above the floor
@@ -318,29 +400,47 @@ impl TapAnalyzer {
     /// Two-mode fit in place of `pole` (already subtracted from the
     /// residual if `subtracted`, else only a starting guess); applied to the
     /// residual and returned when it is clearly better than what was there.
+    /// The starting values come from the matrix pencil on the mode's band
+    /// (`pencil`); if the pencil finds no pair there, from two guesses
+    /// either side of the mode.
     fn try_split(&mut self, pole: &Pole, subtracted: bool) -> Option<(Pole, Pole)> {
-        let len = fit_length(pole.tau_samples(), self.residual.len());
-        let mut signal = self.residual[..len].to_vec();
+        let pencil_span = fit_length(
+            PENCIL_TIME_CONSTANTS * pole.tau_samples(),
+            self.residual.len(),
+        );
+        let mut signal = self.residual[..pencil_span].to_vec();
         if subtracted {
             add_pole(&mut signal, pole, 1.0, 0.0);
         }
+        let offset = (-pole.z.norm().ln()).max(PI / pencil_span as f64);
+        let initial = match self.pencil_pair(pole, &signal) {
+            PencilVerdict::Pair(pair) => pair,
+            PencilVerdict::Single => return None,
+            PencilVerdict::Failed => {
+                let rotate = |p: &Pole, d_omega: f64, gain: Complex64| Pole {
+                    z: p.z * Complex64::from_polar(1.0, d_omega),
+                    c: p.c * gain,
+                };
+                [
+                    rotate(pole, -offset, Complex64::new(0.7, 0.0)),
+                    rotate(pole, offset, Complex64::new(0.0, 0.5)),
+                ]
+            }
+        };
+        let longest_tau = initial
+            .iter()
+            .map(Pole::tau_samples)
+            .fold(pole.tau_samples(), f64::max);
+        let len = fit_length(longest_tau, pencil_span);
+        let signal = &signal[..len];
         let single_cost: f64 = if subtracted {
             self.residual[..len].iter().map(|x| x * x).sum()
         } else {
             signal.iter().map(|x| x * x).sum()
         };
-        let offset = (-pole.z.norm().ln()).max(PI / len as f64);
-        let rotate = |p: &Pole, d_omega: f64, gain: Complex64| Pole {
-            z: p.z * Complex64::from_polar(1.0, d_omega),
-            c: p.c * gain,
-        };
-        let initial = [
-            rotate(pole, -offset, Complex64::new(0.7, 0.0)),
-            rotate(pole, offset, Complex64::new(0.0, 0.5)),
-        ];
-        let pair = refine_poles(&signal, &initial)?;
+        let pair = refine_poles(signal, &initial)?;
         let pair_cost = fit_cost(
-            &signal,
+            signal,
             &pair.iter().flat_map(pole_to_params).collect::<Vec<_>>(),
         );
         let sensible = pair
@@ -359,22 +459,71 @@ impl TapAnalyzer {
         Some((pair[0], pair[1]))
     }
 
+    /// The two strongest poles the matrix pencil finds in a band a few
+    /// bandwidths wide around `pole`, on `signal` (the residual with the
+    /// mode put back).
+    fn pencil_pair(&self, pole: &Pole, signal: &[f64]) -> PencilVerdict {
+        let decay = -pole.z.norm().ln();
+        let band = Band {
+            centre_rad: pole.z.arg(),
+            half_width_rad: (PENCIL_HALF_BANDWIDTHS * decay).max(8.0 * PI / signal.len() as f64),
+            span_samples: signal.len(),
+        };
+        let noise_rms = self.tail_floor / TAIL_BELOW_NOISE;
+        let found = band_poles(signal, &band, noise_rms);
+        match found.as_slice() {
+            [] => PencilVerdict::Failed,
+            [_] => PencilVerdict::Single,
+            [first, second, ..] => {
+                let to_pole = |p: &BandPole| Pole { z: p.z, c: p.c };
+                PencilVerdict::Pair([to_pole(first), to_pole(second)])
+            }
+        }
+    }
+
     /// Estimates one candidate on the residual and subtracts it, if the
     /// estimate is a plausible decaying mode near the candidate.
     fn add_candidate(&mut self, candidate: &Candidate, poles: &mut Vec<(Pole, f64)>) {
         let fs = self.sample_rate_hz;
         let omega = 2.0 * PI * candidate.frequency_hz / fs;
-        let Some(pole) = initial_estimate(&self.residual, omega) else {
-            return;
+        let plausible = |pole: &Pole| {
+            let moved_hz = (pole.frequency_hz(fs) - candidate.frequency_hz).abs();
+            pole.z.norm() < 1.0
+                && pole.z.arg() > 0.0
+                && moved_hz < 4.0 * candidate.bin_hz.max(pole.decay_per_s(fs) / PI)
         };
-        let moved_hz = (pole.frequency_hz(fs) - candidate.frequency_hz).abs();
-        let plausible = pole.z.norm() < 1.0
-            && pole.z.arg() > 0.0
-            && moved_hz < 4.0 * candidate.bin_hz.max(pole.decay_per_s(fs) / PI);
-        if plausible {
-            add_pole(&mut self.residual, &pole, -1.0, self.tail_floor);
-            poles.push((pole, candidate.prominence_db));
+        match initial_estimate(&self.residual, omega) {
+            Some(pole) if plausible(&pole) => {
+                add_pole(&mut self.residual, &pole, -1.0, self.tail_floor);
+                poles.push((pole, candidate.prominence_db));
+            }
+            _ => {
+                // Two modes beating inside one peak can make the three-bin
+                // estimate grow instead of decay: ask the pencil instead.
+                for pole in self.pencil_candidate(omega, candidate.bin_hz) {
+                    if plausible(&pole) {
+                        add_pole(&mut self.residual, &pole, -1.0, self.tail_floor);
+                        poles.push((pole, candidate.prominence_db));
+                    }
+                }
+            }
         }
+    }
+
+    /// The (at most two) strongest poles the matrix pencil finds within
+    /// a few display bins of `omega` in the residual.
+    fn pencil_candidate(&self, omega: f64, bin_hz: f64) -> Vec<Pole> {
+        let span = self.residual.len().min(RESIDUAL_SPECTRUM_SAMPLES);
+        let band = Band {
+            centre_rad: omega,
+            half_width_rad: 2.0 * PI * PENCIL_CANDIDATE_BINS * bin_hz / self.sample_rate_hz,
+            span_samples: span,
+        };
+        band_poles(&self.residual, &band, self.tail_floor / TAIL_BELOW_NOISE)
+            .iter()
+            .take(2)
+            .map(|p| Pole { z: p.z, c: p.c })
+            .collect()
     }
 
     fn refine_group(&mut self, group: &mut [(Pole, f64)]) {
@@ -478,6 +627,21 @@ const TAIL_BELOW_NOISE: f64 = 0.05;
 /// Two modes replace one only if they leave at most this fraction of the
 /// one-mode residual energy.
 const SPLIT_GAIN: f64 = 0.5;
+/// The matrix pencil looks at this many time constants of a mode that fits
+/// badly (a close pair decays more slowly than the one broad mode fitted
+/// to it).
+const PENCIL_TIME_CONSTANTS: f64 = 8.0;
+/// The pencil's band reaches this many decay rates (half-bandwidths in
+/// rad/sample) either side of the mode.
+const PENCIL_HALF_BANDWIDTHS: f64 = 8.0;
+/// Neighbours closer than this many summed half-power bandwidths get a
+/// second joint fit started from the matrix pencil.
+const CLOSE_PAIR_BANDWIDTHS: f64 = 5.0;
+/// A candidate the three-bin estimate cannot measure is searched by the
+/// pencil over this many display bins either side.
+const PENCIL_CANDIDATE_BINS: f64 = 16.0;
+/// Groups of at most this many modes are given to the pencil.
+const MAX_PENCIL_GROUP: usize = 3;
 /// Passes of group refinement per round.
 const REFINE_SWEEPS: usize = 2;
 /// Rounds of looking again in the residual.
