@@ -399,3 +399,44 @@ fn a_mistyped_mass_can_be_corrected() {
     assert_eq!(pass.mass_g, 66.9);
     assert_eq!(pass.note, "Reweighed on the bench scale.");
 }
+
+/// "Save report here" writes the build report of the open build to the
+/// typed path (off the window's thread), with every part and the stock,
+/// and says so; a path of another kind is refused in one sentence.
+#[test]
+fn the_build_report_is_saved_from_the_ledger() {
+    let folder = tempfile::tempdir().expect("temporary folder");
+    let path = folder.path().join("wren report.html");
+    let mut harness = harness_with(demo_options());
+    harness.run_ok();
+    open_sample_violin(&mut harness);
+    harness.get_by_label("Save report…");
+
+    type_into(&mut harness, "File path", &path.display().to_string());
+    click(&mut harness, "Save report here");
+    let deadline = std::time::Instant::now() + PATIENCE;
+    while harness
+        .query_by_label_contains("Wrote the build report to")
+        .is_none()
+    {
+        assert!(std::time::Instant::now() < deadline, "no report note");
+        harness.step();
+        std::thread::sleep(std::time::Duration::from_millis(5));
+    }
+    let html = std::fs::read_to_string(&path).expect("the report was written");
+    let violin = build(&harness);
+    assert!(html.starts_with("<!DOCTYPE html>"), "{}", &html[..40]);
+    for part in violin.parts() {
+        assert!(html.contains(&format!("data-part=\"{}\"", part.name())));
+    }
+    for sample in violin.stock() {
+        assert!(html.contains(&sample.name), "{}", sample.name);
+    }
+
+    let mut harness = harness_with(demo_options());
+    harness.run_ok();
+    open_sample_violin(&mut harness);
+    type_into(&mut harness, "File path", "/tmp/wren.csv");
+    click(&mut harness, "Save report here");
+    harness.get_by_label_contains("but this needs a .html file");
+}

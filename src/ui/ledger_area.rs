@@ -302,6 +302,18 @@ fn build_bar(ui: &mut egui::Ui, state: &mut LedgerAreaState, ctx: &mut AreaConte
                     state.files.choose_csv_path(build);
                 }
             }
+            if ui
+                .button("Save report…")
+                .on_hover_text(
+                    "Write the build report: one web page with every pass, the charts, \
+                     targets, forecasts and the air check, to print or give to the client",
+                )
+                .clicked()
+            {
+                if let Some(build) = ctx.build {
+                    state.files.choose_report_path(build, ctx.a4_hz);
+                }
+            }
             if ui.button("Close build").clicked() {
                 ask_replace(state, ctx, Replace::Close);
             }
@@ -315,7 +327,7 @@ fn build_bar(ui: &mut egui::Ui, state: &mut LedgerAreaState, ctx: &mut AreaConte
         let field = ui
             .add(
                 egui::TextEdit::singleline(&mut state.file_path)
-                    .hint_text("/path/to/build.ron or table.csv")
+                    .hint_text("/path/to/build.ron, table.csv or report.html")
                     .desired_width(360.0),
             )
             .labelled_by(label.id);
@@ -340,6 +352,13 @@ fn build_bar(ui: &mut egui::Ui, state: &mut LedgerAreaState, ctx: &mut AreaConte
             if ui.button("Export CSV here").clicked() {
                 match (typed_path(&state.file_path, "csv"), ctx.build) {
                     (Ok(path), Some(build)) => state.files.export_csv(build, path),
+                    (Err(problem), _) => state.bar_note = Some(Note::error(problem)),
+                    _ => {}
+                }
+            }
+            if ui.button("Save report here").clicked() {
+                match (typed_path(&state.file_path, "html"), ctx.build) {
+                    (Ok(path), Some(build)) => state.files.export_report(build, path, ctx.a4_hz),
                     (Err(problem), _) => state.bar_note = Some(Note::error(problem)),
                     _ => {}
                 }

@@ -17,6 +17,7 @@ use std::sync::mpsc::{self, Receiver, Sender};
 use eframe::egui;
 
 use crate::ledger::{csv, store, Build};
+use crate::report::{build_report_html, ReportSettings};
 
 use super::super::commands::{AppCommand, AreaContext};
 use super::Note;
@@ -62,8 +63,12 @@ enum FileDone {
     OpenChosen(Option<PathBuf>),
     /// A path was chosen to save the build to (None: cancelled).
     SaveChosen(Option<PathBuf>),
-    /// The CSV export finished (None: the dialog was cancelled).
-    CsvWritten(Option<Result<PathBuf, String>>),
+    /// An export (the CSV pass table, the report) finished (None: the
+    /// dialog was cancelled). `what` names it for the note.
+    Exported {
+        what: &'static str,
+        result: Option<Result<PathBuf, String>>,
+    },
 }
 
 /// The file jobs of the Ledger area.
@@ -152,14 +157,47 @@ impl FileJobs {
                 .add_filter("CSV table", &["csv"])
                 .set_file_name(suggested)
                 .save_file();
-            FileDone::CsvWritten(path.map(|path| write_csv(path, &text)))
+            FileDone::Exported {
+                what: PASS_TABLE,
+                result: path.map(|path| write_text(path, &text)),
+            }
         });
     }
 
     /// Writes the pass table of `build` as CSV to `path`.
     pub fn export_csv(&mut self, build: &Build, path: PathBuf) {
         let text = csv::pass_table(build);
-        self.spawn(move || FileDone::CsvWritten(Some(write_csv(path, &text))));
+        self.spawn(move || FileDone::Exported {
+            what: PASS_TABLE,
+            result: Some(write_text(path, &text)),
+        });
+    }
+
+    /// Shows the dialog to choose where the build report goes, then writes
+    /// it (made on the job's thread from a copy of the build).
+    pub fn choose_report_path(&mut self, build: &Build, a4_hz: f64) {
+        let build = build.clone();
+        let suggested = format!("{} report.html", file_stem_for(&build.name));
+        self.spawn(move || {
+            let path = rfd::FileDialog::new()
+                .set_title("Save the build report")
+                .add_filter("Web page (HTML)", &["html"])
+                .set_file_name(suggested)
+                .save_file();
+            FileDone::Exported {
+                what: REPORT,
+                result: path.map(|path| write_report(path, &build, a4_hz)),
+            }
+        });
+    }
+
+    /// Writes the build report of `build` to `path`.
+    pub fn export_report(&mut self, build: &Build, path: PathBuf, a4_hz: f64) {
+        let build = build.clone();
+        self.spawn(move || FileDone::Exported {
+            what: REPORT,
+            result: Some(write_report(path, &build, a4_hz)),
+        });
     }
 
     /// Turns finished jobs into commands and notes.
@@ -171,19 +209,22 @@ impl FileJobs {
                 FileDone::SaveChosen(Some(path)) => ctx.push(AppCommand::SaveBuildAs(path)),
                 FileDone::OpenChosen(None)
                 | FileDone::SaveChosen(None)
-                | FileDone::CsvWritten(None) => {
+                | FileDone::Exported { result: None, .. } => {
                     *note = Some(Note::info(
                         "No file was chosen. If no dialog appeared, type the path in the \
                          File path field instead.",
                     ));
                 }
-                FileDone::CsvWritten(Some(Ok(path))) => {
-                    *note = Some(Note::info(format!(
-                        "Wrote the pass table to {}.",
-                        path.display()
-                    )));
+                FileDone::Exported {
+                    what,
+                    result: Some(Ok(path)),
+                } => {
+                    *note = Some(Note::info(format!("Wrote {what} to {}.", path.display())));
                 }
-                FileDone::CsvWritten(Some(Err(problem))) => *note = Some(Note::error(problem)),
+                FileDone::Exported {
+                    result: Some(Err(problem)),
+                    ..
+                } => *note = Some(Note::error(problem)),
             }
         }
     }
@@ -203,8 +244,36 @@ fn file_stem_for(name: &str) -> String {
     }
 }
 
+/// Names of the exports, for the notes.
+const PASS_TABLE: &str = "the pass table";
+const REPORT: &str = "the build report";
+
+/// Makes the build report and writes it atomically; the sentence to show
+/// on failure.
+fn write_report(path: PathBuf, build: &Build, a4_hz: f64) -> Result<PathBuf, String> {
+    let settings = ReportSettings {
+        a4_hz,
+        ..ReportSettings::default()
+    };
+    let html = build_report_html(build, &settings);
+    crate::report::write_report(&path, &html)
+        .map(|()| path.clone())
+        .map_err(|problem| sentence_of(&problem.to_string()))
+}
+
+fn sentence_of(text: &str) -> String {
+    let mut sentence = text.to_owned();
+    if let Some(first) = sentence.get(..1) {
+        sentence.replace_range(..1, &first.to_uppercase());
+    }
+    if !sentence.ends_with('.') {
+        sentence.push('.');
+    }
+    sentence
+}
+
 /// Writes `text` to `path` atomically; the sentence to show on failure.
-fn write_csv(path: PathBuf, text: &str) -> Result<PathBuf, String> {
+fn write_text(path: PathBuf, text: &str) -> Result<PathBuf, String> {
     write_atomic(&path, text.as_bytes())
         .map(|()| path.clone())
         .map_err(|problem| format!("Cannot write {}: {problem}.", path.display()))
@@ -245,13 +314,13 @@ mod tests {
     fn csv_is_written_whole_or_not_at_all() {
         let folder = tempfile::tempdir().expect("test value");
         let path = folder.path().join("t.csv");
-        write_csv(path.clone(), "a,b\n1,2\n").expect("test value");
+        write_text(path.clone(), "a,b\n1,2\n").expect("test value");
         assert_eq!(
             std::fs::read_to_string(&path).expect("test value"),
             "a,b\n1,2\n"
         );
         let missing = folder.path().join("no such folder").join("t.csv");
-        let problem = write_csv(missing, "x").unwrap_err();
+        let problem = write_text(missing, "x").unwrap_err();
         assert!(problem.contains("no such folder"), "{problem}");
         // Only the CSV is left in the folder (no stray temporary file).
         assert_eq!(
