@@ -299,11 +299,11 @@ impl Pencil {
         let top = self.v_h.rows(0, order);
         let w1 = top.columns(0, self.columns - 1);
         let w2 = top.columns(1, self.columns - 1);
-        let gram = &w1 * w1.adjoint();
+        let gram = w1 * w1.adjoint();
         let Some(gram_inverse) = gram.try_inverse() else {
             return Vec::new();
         };
-        let shifted = &w2 * w1.adjoint() * gram_inverse;
+        let shifted = w2 * w1.adjoint() * gram_inverse;
         eigenvalues(shifted)
     }
 }
