@@ -23,7 +23,7 @@ const ORDER: usize = 24;
 /// Length of the stretch each predictor is fitted to.
 const FIT_MS: f64 = 8.0;
 /// A new predictor is fitted this often.
-const REFIT_MS: f64 = 2.0;
+const REFIT_MS: f64 = 4.0;
 /// The prediction error is measured over blocks this long.
 const BLOCK_MS: f64 = 1.0;
 /// The error level is the median over this many blocks before.

@@ -36,6 +36,8 @@ th, td { padding: 0.8mm 1.6mm; text-align: left; vertical-align: top; }
 th { background: #eef2f7; font-weight: 600; }
 td.num, th.num { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap; }
 tbody.pass { break-inside: avoid; page-break-inside: avoid; }
+tbody.pass tr.mode td { white-space: nowrap; }
+table.passes { font-size: 8.5pt; }
 tbody.pass tr.pass-head td { background: #f6f6f6; border-top: 0.8pt solid #999; font-weight: 600; }
 tbody.pass tr.pass-detail td { font-weight: normal; color: #444; }
 table.facts td:first-child { width: 42%; color: #444; }
@@ -332,8 +334,8 @@ fn pass_table(part: &Part, settings: &ReportSettings) -> Markup {
             thead {
                 tr {
                     th { "Mode" } th.num { "Hz" } th.num { "Q" } th { "Note" }
-                    th.num colspan="3" { "against the previous pass (Hz, %, cents)" }
-                    th.num colspan="3" { "against the first pass (Hz, %, cents)" }
+                    th.num colspan="3" { "vs previous pass" br; "Hz · % · cents" }
+                    th.num colspan="3" { "vs first pass" br; "Hz · % · cents" }
                 }
             }
             @for pass in part.passes() {

@@ -14,7 +14,7 @@ use crate::capture::{CaptureError, CaptureHandle, CaptureSettings, DeviceInfo, S
 use crate::ledger::store::{DiskFingerprint, StoreError};
 use crate::ledger::Build;
 
-use super::session::{taps_of_recording, TapEntry};
+use super::session::{taps_of_stream, TapEntry};
 
 /// What a file dialog was opened for.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -316,13 +316,8 @@ fn read_and_analyse(
     trigger: &TriggerSettings,
     analysis: &AnalysisSettings,
 ) -> anyhow::Result<Vec<TapEntry>> {
-    let recording = crate::wav_io::read_mono(path)?;
-    let taps = taps_of_recording(
-        &recording.samples,
-        recording.sample_rate_hz,
-        trigger,
-        analysis,
-    );
+    let mut stream = crate::wav_io::WavStream::open(path)?;
+    let taps = taps_of_stream(&mut stream, trigger, analysis)?;
     if taps.is_empty() {
         anyhow::bail!(
             "no taps were found in {} (is the trigger margin of {:.0} dB too high for it?)",

@@ -6,9 +6,14 @@
 use std::time::SystemTime;
 
 use crate::analysis::{
-    aggregate_taps, find_taps, AnalysisSettings, DisplaySpectrum, FoundTap, PassResult,
-    RejectReason, TapAnalysis, TapAnalyzer, TriggerSettings,
+    aggregate_taps, AnalysisSettings, DisplaySpectrum, FoundTap, PassResult, RejectReason,
+    TapAnalysis, TapAnalyzer, TapTrigger, TriggerEvent, TriggerSettings,
 };
+use crate::wav_io::{WavError, WavStream};
+
+/// Frames read from a file at a time: the file is judged as it streams in,
+/// so only the tap records stay in memory, however long it is.
+const FILE_BLOCK_FRAMES: usize = 65_536;
 
 /// A label stays on a mode after the pass is recombined if the mode moved
 /// by less than this (relative): about 35 cents, well under the spacing of
@@ -40,6 +45,7 @@ pub struct TapEntry {
 
 /// Every tap of a whole recording, found and (if accepted) measured, as
 /// entries of the tap list.
+#[cfg(test)]
 pub fn taps_of_recording(
     samples: &[f32],
     sample_rate_hz: u32,
@@ -47,8 +53,44 @@ pub fn taps_of_recording(
     analysis: &AnalysisSettings,
 ) -> Vec<TapEntry> {
     let fs = f64::from(sample_rate_hz);
+    let found = crate::analysis::find_taps(samples, fs, trigger);
+    entries_of_taps(found, sample_rate_hz, analysis)
+}
+
+/// The taps of a WAV file read block by block, as the window lists them.
+pub fn taps_of_stream<R: std::io::Read>(
+    stream: &mut WavStream<R>,
+    trigger: &TriggerSettings,
+    analysis: &AnalysisSettings,
+) -> Result<Vec<TapEntry>, WavError> {
+    let sample_rate_hz = stream.sample_rate_hz();
+    let mut finder = TapTrigger::new(trigger.clone(), f64::from(sample_rate_hz));
+    let (mut block, mut events, mut found) = (Vec::new(), Vec::new(), Vec::new());
+    while stream.read_block(&mut block, FILE_BLOCK_FRAMES)? > 0 {
+        finder.push(&block, &mut events);
+        found.extend(events.drain(..).filter_map(finished_tap));
+    }
+    finder.finish(&mut events);
+    found.extend(events.drain(..).filter_map(finished_tap));
+    Ok(entries_of_taps(found, sample_rate_hz, analysis))
+}
+
+fn finished_tap(event: TriggerEvent) -> Option<FoundTap> {
+    match event {
+        TriggerEvent::Tap(tap) => Some(tap),
+        TriggerEvent::Started { .. } => None,
+    }
+}
+
+/// Measures the accepted taps and numbers them all from 1.
+fn entries_of_taps(
+    found: Vec<FoundTap>,
+    sample_rate_hz: u32,
+    analysis: &AnalysisSettings,
+) -> Vec<TapEntry> {
+    let fs = f64::from(sample_rate_hz);
     let mut analyzer = TapAnalyzer::new(analysis.clone(), fs);
-    find_taps(samples, fs, trigger)
+    found
         .into_iter()
         .enumerate()
         .map(|(i, tap)| TapEntry {
