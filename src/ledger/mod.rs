@@ -11,6 +11,7 @@ pub mod carry_over;
 pub mod compare;
 pub mod csv;
 pub mod forecast;
+pub mod format;
 pub mod from_analysis;
 pub mod labels;
 pub mod model;

@@ -16,6 +16,7 @@ use crate::ledger::{
 
 use super::charts::{mode_chart_svg, series_colour, ModeChart};
 use super::ReportSettings;
+use crate::ledger::format::{capitalised, date_text, num, signed};
 
 /// The style sheet: screen and print (A4 and Letter both fit the 180 mm
 /// text width; each part starts on a new page; rows and charts are not
@@ -592,41 +593,6 @@ fn note_text(frequency_hz: f64, a4_hz: f64) -> String {
     match nearest_note(frequency_hz, a4_hz) {
         Some(pitch) => format!("{} {} ct", pitch.note, signed(pitch.cents, 0)),
         None => "–".to_owned(),
-    }
-}
-
-/// `decimals` places with a true minus sign; "–" when not finite.
-fn num(value: f64, decimals: usize) -> String {
-    if value.is_finite() {
-        format!("{value:.decimals$}").replace('-', "\u{2212}")
-    } else {
-        "–".to_owned()
-    }
-}
-
-/// Like [`num`] with the sign always shown.
-fn signed(value: f64, decimals: usize) -> String {
-    if value.is_finite() {
-        format!("{value:+.decimals$}").replace('-', "\u{2212}")
-    } else {
-        "–".to_owned()
-    }
-}
-
-/// "2024-03-06T09:00:00Z" → "2024-03-06 09:00".
-fn date_text(rfc3339: &str) -> String {
-    let trimmed = rfc3339.trim_end_matches('Z');
-    match trimmed.split_once('T') {
-        Some((date, time)) => format!("{date} {}", time.get(..5).unwrap_or(time)),
-        None => trimmed.to_owned(),
-    }
-}
-
-fn capitalised(text: &str) -> String {
-    let mut chars = text.chars();
-    match chars.next() {
-        Some(first) => first.to_uppercase().chain(chars).collect(),
-        None => String::new(),
     }
 }
 

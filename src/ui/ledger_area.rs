@@ -27,6 +27,7 @@ use std::collections::{BTreeSet, HashMap};
 
 use eframe::egui;
 
+use crate::ledger::format::{capitalised, date_text, num, signed};
 use crate::ledger::{Build, Family, LedgerError, Part};
 
 use super::app::sentence;
@@ -676,42 +677,6 @@ fn parse_number(text: &str, what: &str) -> Result<Option<f64>, String> {
     match text.replace(',', ".").parse::<f64>() {
         Ok(value) if value.is_finite() => Ok(Some(value)),
         _ => Err(format!("{what} \"{text}\" is not a number.")),
-    }
-}
-
-/// A number for the screen: `decimals` places, with a true minus sign, or
-/// "–" for a value that is not finite.
-fn num(value: f64, decimals: usize) -> String {
-    if value.is_finite() {
-        format!("{value:.decimals$}").replace('-', "\u{2212}")
-    } else {
-        "–".to_owned()
-    }
-}
-
-/// Like [`num`] with a sign always shown.
-fn signed(value: f64, decimals: usize) -> String {
-    if value.is_finite() {
-        format!("{value:+.decimals$}").replace('-', "\u{2212}")
-    } else {
-        "–".to_owned()
-    }
-}
-
-/// "2024-03-06T09:00:00Z" → "2024-03-06 09:00".
-fn date_text(rfc3339: &str) -> String {
-    let trimmed = rfc3339.trim_end_matches('Z');
-    match trimmed.split_once('T') {
-        Some((date, time)) => format!("{date} {}", time.get(..5).unwrap_or(time)),
-        None => trimmed.to_owned(),
-    }
-}
-
-fn capitalised(text: &str) -> String {
-    let mut chars = text.chars();
-    match chars.next() {
-        Some(first) => first.to_uppercase().chain(chars).collect(),
-        None => String::new(),
     }
 }
 
