@@ -37,35 +37,44 @@ fn five_tap_file() -> Vec<f32> {
         .collect()
 }
 
-fn median_seconds(mut f: impl FnMut(), runs: usize) -> f64 {
-    let mut times: Vec<f64> = (0..runs)
-        .map(|_| {
-            let t = Instant::now();
-            f();
-            t.elapsed().as_secs_f64()
-        })
-        .collect();
+fn median(mut times: Vec<f64>) -> f64 {
     times.sort_by(f64::total_cmp);
-    times[runs / 2]
+    times[times.len() / 2]
 }
 
+fn seconds_of(f: &mut impl FnMut()) -> f64 {
+    let t = Instant::now();
+    f();
+    t.elapsed().as_secs_f64()
+}
+
+/// The tap and the FFT are timed in alternation, so that a slower stretch
+/// of a shared machine slows both and leaves the ratio alone.
 fn print_ratio() {
     let record = one_tap_record();
     let mut analyzer = TapAnalyzer::new(AnalysisSettings::default(), FS);
-    let tap_s = median_seconds(
-        || drop(black_box(analyzer.analyze_record(&record, 240))),
-        101,
-    );
-    for len in [48_000usize, 65_536] {
-        let fft = RealFftPlanner::<f32>::new().plan_fft_forward(len);
-        let mut input = vec![0.1f32; len];
-        let mut output = fft.make_output_vec();
-        let fft_s = median_seconds(
-            || {
-                let _ = fft.process(&mut input, &mut output);
-            },
-            301,
-        );
+    let mut tap = || drop(black_box(analyzer.analyze_record(&record, 240)));
+    let mut ffts: Vec<_> = [48_000usize, 65_536]
+        .into_iter()
+        .map(|len| {
+            let fft = RealFftPlanner::<f32>::new().plan_fft_forward(len);
+            let input = vec![0.1f32; len];
+            let output = fft.make_output_vec();
+            (len, fft, input, output)
+        })
+        .collect();
+    let (mut tap_s, mut fft_s) = (Vec::new(), vec![Vec::new(); ffts.len()]);
+    for _ in 0..201 {
+        tap_s.push(seconds_of(&mut tap));
+        for ((_, fft, input, output), times) in ffts.iter_mut().zip(&mut fft_s) {
+            times.push(seconds_of(&mut || {
+                let _ = fft.process(input, output);
+            }));
+        }
+    }
+    let tap_s = median(tap_s);
+    for ((len, ..), times) in ffts.iter().zip(fft_s) {
+        let fft_s = median(times);
         println!(
             "one 1 s tap: {:.3} ms; bare real FFT of {len}: {:.3} ms; ratio {:.1}x",
             tap_s * 1e3,
