@@ -97,7 +97,7 @@ pub struct TapAnalysis {
 
 /// A damped complex pole with its complex amplitude, in per-sample units:
 /// x[n] = 2·Re(c·zⁿ).
-#[derive(Clone, Copy, Debug, Default, PartialEq)]
+#[derive(Clone, Copy, Debug, PartialEq)]
 struct Pole {
     z: Complex64,
     c: Complex64,
@@ -920,24 +920,33 @@ fn fit_inverse_line(x: &[Complex64], rho: &[Complex64; 3]) -> Option<(Complex64,
 /// signal is cut into four segments run side by side (twelve independent
 /// recurrences instead of three, so the loop is not bound by the latency
 /// of one chain), and each segment's sum is turned back to the record's
-/// time origin: X = Σ_seg e^{−jω·end_seg}·(e^{jω}·s1 − s2).
+/// time origin: X = Σ_seg e^{−jω·end_seg}·(e^{jω}·s1 − s2). The model's
+/// own DFT is added in closed form (`model_bin`).
 fn dft_bins(signal: &[f64], bins: [i64; 3], own: Option<&Pole>) -> [Complex64; 3] {
     let len = signal.len();
     let omegas = bins.map(|m| 2.0 * PI * m as f64 / len as f64);
-    let state = match own {
-        None => goertzel_segments::<false>(signal, omegas, Pole::default()),
-        Some(pole) => goertzel_segments::<true>(signal, omegas, *pole),
-    };
+    let state = goertzel_segments(signal, omegas);
     let ends = segment_ends(len);
     [0, 1, 2].map(|b| {
-        (0..SEGMENTS)
+        let measured: Complex64 = (0..SEGMENTS)
             .map(|s| {
                 let (s1, s2) = (state.s1[b][s], state.s2[b][s]);
                 let sum = Complex64::from_polar(1.0, omegas[b]) * s1 - s2;
                 Complex64::from_polar(1.0, -omegas[b] * ends[s] as f64) * sum
             })
-            .sum()
+            .sum();
+        measured + own.map_or(Complex64::new(0.0, 0.0), |p| model_bin(p, len, omegas[b]))
     })
+}
+
+/// DFT at ω = 2πm/L (integer m) of the L samples 2·Re(c·zⁿ), n < L:
+/// c(1 − z^L)/(1 − z·e^{−jω}) + c̄(1 − z̄^L)/(1 − z̄·e^{−jω}).
+fn model_bin(pole: &Pole, len: usize, omega: f64) -> Complex64 {
+    let one = Complex64::new(1.0, 0.0);
+    let rho = Complex64::from_polar(1.0, -omega);
+    let z_len = pole.z.powu(len as u32);
+    pole.c * (one - z_len) / (one - pole.z * rho)
+        + pole.c.conj() * (one - z_len.conj()) / (one - pole.z.conj() * rho)
 }
 
 /// Segments the Goertzel passes run side by side.
@@ -953,40 +962,24 @@ struct GoertzelState {
 /// remainder.
 fn segment_ends(len: usize) -> [usize; SEGMENTS] {
     let segment = len / SEGMENTS;
-    let mut ends = [0; SEGMENTS];
-    for (s, end) in ends.iter_mut().enumerate() {
-        *end = if s + 1 == SEGMENTS {
+    std::array::from_fn(|s| {
+        if s + 1 == SEGMENTS {
             len
         } else {
             segment * (s + 1)
-        };
-    }
-    ends
+        }
+    })
 }
 
-/// The Goertzel recurrences of `dft_bins`, with the model 2·Re(c·zⁿ) of
-/// `own` added to every sample when `WITH_MODEL`.
-fn goertzel_segments<const WITH_MODEL: bool>(
-    signal: &[f64],
-    omegas: [f64; 3],
-    own: Pole,
-) -> GoertzelState {
-    let len = signal.len();
-    let segment = len / SEGMENTS;
+/// The Goertzel recurrences of `dft_bins`.
+fn goertzel_segments(signal: &[f64], omegas: [f64; 3]) -> GoertzelState {
+    let segment = signal.len() / SEGMENTS;
     let coeffs = omegas.map(|w| 2.0 * w.cos());
     let mut s1 = [[0.0f64; SEGMENTS]; 3];
     let mut s2 = [[0.0f64; SEGMENTS]; 3];
-    let mut model: [Complex64; SEGMENTS] =
-        std::array::from_fn(|s| own.c * 2.0 * own.z.powu((s * segment) as u32));
     let parts: [&[f64]; SEGMENTS] = std::array::from_fn(|s| &signal[s * segment..][..segment]);
     for i in 0..segment {
-        let mut x: [f64; SEGMENTS] = std::array::from_fn(|s| parts[s][i]);
-        if WITH_MODEL {
-            for s in 0..SEGMENTS {
-                x[s] += model[s].re;
-                model[s] *= own.z;
-            }
-        }
+        let x: [f64; SEGMENTS] = std::array::from_fn(|s| parts[s][i]);
         for b in 0..3 {
             for s in 0..SEGMENTS {
                 let s0 = x[s] + coeffs[b] * s1[b][s] - s2[b][s];
@@ -998,9 +991,7 @@ fn goertzel_segments<const WITH_MODEL: bool>(
     // The last segment goes on alone over the remainder (fewer than
     // SEGMENTS samples).
     let last = SEGMENTS - 1;
-    for &value in &signal[SEGMENTS * segment..] {
-        let x = value + if WITH_MODEL { model[last].re } else { 0.0 };
-        model[last] *= own.z;
+    for &x in &signal[SEGMENTS * segment..] {
         for b in 0..3 {
             let s0 = x + coeffs[b] * s1[b][last] - s2[b][last];
             s2[b][last] = s1[b][last];
