@@ -116,8 +116,10 @@ pub struct SpectrumMaker {
     input: Vec<f32>,
     output: Vec<Complex32>,
     scratch: Vec<Complex32>,
-    /// The fade-out of the last call, kept for records of the same shape.
+    /// The fade-out of the last call, kept for records of the same shape,
+    /// and its sum (the window's gain without the flat pre-trigger part).
     fade: Vec<f32>,
+    fade_sum: f64,
 }
 
 impl std::fmt::Debug for SpectrumMaker {
@@ -147,6 +149,7 @@ impl SpectrumMaker {
             output,
             scratch,
             fade: Vec::new(),
+            fade_sum: 0.0,
         }
     }
 
@@ -173,6 +176,7 @@ impl SpectrumMaker {
                         .powi(2)
                 })
                 .collect();
+            self.fade_sum = self.fade.iter().map(|&w| f64::from(w)).sum();
         }
         self.input.fill(0.0);
         self.input[..onset].copy_from_slice(&record[..onset]);
@@ -183,7 +187,7 @@ impl SpectrumMaker {
         {
             *slot = x * w;
         }
-        let window_sum = onset as f64 + self.fade.iter().map(|&w| f64::from(w)).sum::<f64>();
+        let window_sum = onset as f64 + self.fade_sum;
         let mut power = vec![0.0f32; self.output.len()];
         // The lengths match by construction, so the FFT cannot fail.
         if self
