@@ -347,9 +347,10 @@ fn close_pairs_are_two_modes() {
 /// A steady tone under a tap (mains hum at 50 Hz, or a 150 Hz harmonic
 /// 20 Hz below a mode) is not reported as a mode, and the tap's modes are
 /// measured as without it (steady tones do not decay: common practice, no
-/// source). Known limit, not covered: on a bare decay (no sound before
-/// the strike) a steady tone can still be fitted as a slowly decaying
-/// "mode" (Q in the hundreds) — seen with 50 and 150 Hz hum together. Tap
+/// source). On a bare decay (no sound before the strike) the fit may still
+/// give the hum a slow decay (Q above a thousand); a mode must fall by 3 dB
+/// over the record to be listed, which a steady tone never does. Known
+/// limit, not covered: 50 and 150 Hz hum together on a bare decay. Tap
 /// records keep 100 ms before the strike; see the next test.
 #[test]
 fn steady_hum_is_not_a_mode() {
