@@ -94,10 +94,15 @@ pub(super) fn band_poles(record: &[f64], band: &Band, noise_rms: f64) -> Vec<Ban
     if kept.is_empty() {
         return kept;
     }
-    let walls: Vec<Complex64> = kept
+    let mut walls: Vec<Complex64> = kept
         .iter()
         .map(|p| pole_decimated(p.z, band, &decimated))
         .collect();
+    let noise_dec_var = noise_dec * noise_dec;
+    while let Some(weakest) = least_needed(&decimated.samples, &walls, noise_dec_var) {
+        walls.remove(weakest);
+        kept.remove(weakest);
+    }
     let Some(amplitudes) = least_squares_amplitudes(&decimated.samples, &walls) else {
         return Vec::new();
     };
@@ -232,6 +237,46 @@ fn stays_put(w: Complex64, v: Complex64, factor: usize) -> bool {
     let (dw, dv) = (-w.norm().ln() / factor, -v.norm().ln() / factor);
     let shift = ((v / w).arg() / factor).abs();
     dw > 0.0 && shift <= 0.5 * dw && (dv - dw).abs() <= 0.25 * dw
+}
+
+/// Backward elimination: the index of the pole whose removal costs the
+/// least-squares fit least, if that cost is under what one complex
+/// amplitude soaks up from noise (`MIN_ENERGY_OVER_NOISE` times the noise
+/// variance). A pencil of too high an order can place a spare pole beside
+/// a real one; the two then get large amplitudes that nearly cancel, and
+/// removing either costs almost nothing.
+fn least_needed(y: &[Complex64], poles: &[Complex64], noise_var: f64) -> Option<usize> {
+    if poles.len() < 2 {
+        return None;
+    }
+    let full = fit_residual_energy(y, poles)?;
+    (0..poles.len())
+        .filter_map(|i| {
+            let mut rest = poles.to_vec();
+            rest.remove(i);
+            Some((i, fit_residual_energy(y, &rest)? - full))
+        })
+        .min_by(|a, b| a.1.total_cmp(&b.1))
+        .filter(|&(_, cost)| cost < MIN_ENERGY_OVER_NOISE * noise_var)
+        .map(|(i, _)| i)
+}
+
+/// Residual energy of the least-squares fit of `poles` to `y`.
+fn fit_residual_energy(y: &[Complex64], poles: &[Complex64]) -> Option<f64> {
+    let b = least_squares_amplitudes(y, poles)?;
+    let energy = y
+        .iter()
+        .enumerate()
+        .map(|(k, &yk)| {
+            let model: Complex64 = poles
+                .iter()
+                .zip(&b)
+                .map(|(w, bi)| bi * w.powu(k as u32))
+                .sum();
+            (yk - model).norm_sqr()
+        })
+        .sum();
+    Some(energy)
 }
 
 /// Least-squares amplitudes b of y[k] ≈ Σ bᵢ·wᵢᵏ.
