@@ -136,6 +136,8 @@ struct Candidate {
     prominence_db: f64,
     /// Bin spacing of the spectrum it was found in.
     bin_hz: f64,
+    /// Width of the peak where it stays above half its power.
+    half_power_width_hz: f64,
 }
 
 /// The maker in `slot`, replaced if its FFT length is not `fft_len`.
@@ -145,6 +147,17 @@ fn maker_for(slot: &mut Option<SpectrumMaker>, fft_len: usize) -> &mut SpectrumM
     }
     slot.get_or_insert_with(|| SpectrumMaker::new(fft_len))
 }
+
+/// Two poles whose frequencies and decay rates differ by less than a tenth
+/// of their decay rate (a twentieth of a bandwidth) are one pole.
+fn coincide(a: &Pole, b: &Pole) -> bool {
+    let (decay_a, decay_b) = (-a.z.norm().ln(), -b.z.norm().ln());
+    let reach = COINCIDENT_DECAYS * decay_a.max(decay_b);
+    (a.z.arg() - b.z.arg()).abs() < reach && (decay_a - decay_b).abs() < reach
+}
+
+/// See [`coincide`].
+const COINCIDENT_DECAYS: f64 = 0.1;
 
 /// A candidate within two bins of a mode already found is that mode again.
 /// (Farther away, a peak left in the residual that keeps most of the
@@ -277,6 +290,7 @@ impl TapAnalyzer {
             if poles.len() >= self.settings.max_modes * 2 {
                 break;
             }
+            self.merge_coincident(&mut poles);
             let left = self.residual_spectrum();
             let split = self.split_misfits(&mut poles, &left);
             candidates = find_candidates(&left, Some(original), &self.settings);
@@ -290,7 +304,33 @@ impl TapAnalyzer {
             }
         }
         self.reseed_close_groups(&mut poles);
+        self.merge_coincident(&mut poles);
         poles
+    }
+
+    /// Two poles at nearly the same place are one mode whose amplitude is
+    /// their sum. A joint fit (or the pencil on a beating peak) can drift
+    /// into such a pair with large amplitudes that nearly cancel: an
+    /// ill-conditioned fit, not two resonances. The pair is replaced by
+    /// the stronger pole carrying the summed amplitude; if that is weak,
+    /// the model-order test drops it later.
+    fn merge_coincident(&mut self, poles: &mut Vec<(Pole, f64)>) {
+        let mut i = 0;
+        while i < poles.len() {
+            let Some(j) = (i + 1..poles.len()).find(|&j| coincide(&poles[i].0, &poles[j].0)) else {
+                i += 1;
+                continue;
+            };
+            let (b, b_prominence_db) = poles.remove(j);
+            let (a, a_prominence_db) = poles[i];
+            let z = if a.c.norm() >= b.c.norm() { a.z } else { b.z };
+            let merged = Pole { z, c: a.c + b.c };
+            for old in [&a, &b] {
+                add_pole(&mut self.residual, old, 1.0, self.tail_floor);
+            }
+            add_pole(&mut self.residual, &merged, -1.0, self.tail_floor);
+            poles[i] = (merged, a_prominence_db.max(b_prominence_db));
+        }
     }
 
     /// Modes closer than a few bandwidths can settle in the joint fit on a
@@ -378,8 +418,9 @@ impl TapAnalyzer {
         }
         let floor = median(&left.power[low..=high]);
         let threshold = floor * 10f32.powf((self.settings.min_above_floor_db / 10.0) as f32);
+        let angles: Vec<f64> = poles.iter().map(|(p, _)| p.z.arg()).collect();
         let mut added = Vec::new();
-        for (pole, prominence_db) in poles.iter_mut() {
+        for (index, (pole, prominence_db)) in poles.iter_mut().enumerate() {
             let width_hz = (2.0 * pole.decay_per_s(fs) / PI).max(2.0 * left.bin_hz);
             let around = left.bin_of_hz(pole.frequency_hz(fs) - width_hz)
                 ..=left.bin_of_hz(pole.frequency_hz(fs) + width_hz);
@@ -387,7 +428,13 @@ impl TapAnalyzer {
             if !misfit {
                 continue;
             }
-            if let Some((first, second)) = self.try_split(pole, true) {
+            let room_rad = angles
+                .iter()
+                .enumerate()
+                .filter(|&(other, _)| other != index)
+                .map(|(_, &angle)| (angle - pole.z.arg()).abs())
+                .fold(f64::INFINITY, f64::min);
+            if let Some((first, second)) = self.try_split(pole, room_rad) {
                 *pole = first;
                 added.push((second, *prominence_db));
             }
@@ -398,22 +445,20 @@ impl TapAnalyzer {
     }
 
     /// Two-mode fit in place of `pole` (already subtracted from the
-    /// residual if `subtracted`, else only a starting guess); applied to the
-    /// residual and returned when it is clearly better than what was there.
-    /// The starting values come from the matrix pencil on the mode's band
-    /// (`pencil`); if the pencil finds no pair there, from two guesses
-    /// either side of the mode.
-    fn try_split(&mut self, pole: &Pole, subtracted: bool) -> Option<(Pole, Pole)> {
+    /// residual); applied to the residual and returned when it is clearly
+    /// better than what was there. The starting values come from the
+    /// matrix pencil on the mode's band (`pencil_pair`; `room_rad` is the
+    /// distance to the nearest other mode); if the pencil finds no pair
+    /// there, from two guesses either side of the mode.
+    fn try_split(&mut self, pole: &Pole, room_rad: f64) -> Option<(Pole, Pole)> {
         let pencil_span = fit_length(
             PENCIL_TIME_CONSTANTS * pole.tau_samples(),
             self.residual.len(),
         );
         let mut signal = self.residual[..pencil_span].to_vec();
-        if subtracted {
-            add_pole(&mut signal, pole, 1.0, 0.0);
-        }
+        add_pole(&mut signal, pole, 1.0, 0.0);
         let offset = (-pole.z.norm().ln()).max(PI / pencil_span as f64);
-        let initial = match self.pencil_pair(pole, &signal) {
+        let initial = match self.pencil_pair(pole, &signal, room_rad) {
             PencilVerdict::Pair(pair) => pair,
             PencilVerdict::Single => return None,
             PencilVerdict::Failed => {
@@ -433,11 +478,7 @@ impl TapAnalyzer {
             .fold(pole.tau_samples(), f64::max);
         let len = fit_length(longest_tau, pencil_span);
         let signal = &signal[..len];
-        let single_cost: f64 = if subtracted {
-            self.residual[..len].iter().map(|x| x * x).sum()
-        } else {
-            signal.iter().map(|x| x * x).sum()
-        };
+        let single_cost: f64 = self.residual[..len].iter().map(|x| x * x).sum();
         let pair = refine_poles(signal, &initial)?;
         let pair_cost = fit_cost(
             signal,
@@ -450,9 +491,7 @@ impl TapAnalyzer {
         if !(sensible && pair_cost < SPLIT_GAIN * single_cost) {
             return None;
         }
-        if subtracted {
-            add_pole(&mut self.residual, pole, 1.0, self.tail_floor);
-        }
+        add_pole(&mut self.residual, pole, 1.0, self.tail_floor);
         for p in &pair {
             add_pole(&mut self.residual, p, -1.0, self.tail_floor);
         }
@@ -461,12 +500,36 @@ impl TapAnalyzer {
 
     /// The two strongest poles the matrix pencil finds in a band a few
     /// bandwidths wide around `pole`, on `signal` (the residual with the
-    /// mode put back).
-    fn pencil_pair(&self, pole: &Pole, signal: &[f64]) -> PencilVerdict {
+    /// mode put back). A single mode fitted to a pair can settle with a Q
+    /// well above the pair's, between the two or beside one of them, so
+    /// that the other lies at the edge of that band: if the pencil sees
+    /// one mode there, it looks again in a band twice as wide, but never
+    /// past half way to the nearest other mode (`room_rad` away), whose
+    /// leftovers would make a false pair.
+    fn pencil_pair(&self, pole: &Pole, signal: &[f64], room_rad: f64) -> PencilVerdict {
         let decay = -pole.z.norm().ln();
+        let narrow_rad = (PENCIL_HALF_BANDWIDTHS * decay).max(8.0 * PI / signal.len() as f64);
+        let wide_rad = (2.0 * narrow_rad).min(0.5 * room_rad);
+        match self.pencil_in_band(pole.z.arg(), narrow_rad, signal) {
+            PencilVerdict::Single if wide_rad > narrow_rad => {
+                match self.pencil_in_band(pole.z.arg(), wide_rad, signal) {
+                    pair @ PencilVerdict::Pair(_) => pair,
+                    _ => PencilVerdict::Single,
+                }
+            }
+            verdict => verdict,
+        }
+    }
+
+    fn pencil_in_band(
+        &self,
+        centre_rad: f64,
+        half_width_rad: f64,
+        signal: &[f64],
+    ) -> PencilVerdict {
         let band = Band {
-            centre_rad: pole.z.arg(),
-            half_width_rad: (PENCIL_HALF_BANDWIDTHS * decay).max(8.0 * PI / signal.len() as f64),
+            centre_rad,
+            half_width_rad,
             span_samples: signal.len(),
         };
         let noise_rms = self.tail_floor / TAIL_BELOW_NOISE;
@@ -486,11 +549,19 @@ impl TapAnalyzer {
     fn add_candidate(&mut self, candidate: &Candidate, poles: &mut Vec<(Pole, f64)>) {
         let fs = self.sample_rate_hz;
         let omega = 2.0 * PI * candidate.frequency_hz / fs;
+        // A mode's peak in a windowed spectrum is never narrower than its
+        // own bandwidth α/π; an estimate far broader than the peak it came
+        // from is the three-bin estimate misled by two modes beating in
+        // one peak, and is left to the pencil.
+        let widest_hz =
+            BROADER_THAN_PEAK * candidate.half_power_width_hz.max(2.0 * candidate.bin_hz);
         let plausible = |pole: &Pole| {
             let moved_hz = (pole.frequency_hz(fs) - candidate.frequency_hz).abs();
+            let bandwidth_hz = pole.decay_per_s(fs) / PI;
             pole.z.norm() < 1.0
                 && pole.z.arg() > 0.0
-                && moved_hz < 4.0 * candidate.bin_hz.max(pole.decay_per_s(fs) / PI)
+                && bandwidth_hz <= widest_hz
+                && moved_hz < 4.0 * candidate.bin_hz.max(bandwidth_hz)
         };
         match initial_estimate(&self.residual, omega) {
             Some(pole) if plausible(&pole) => {
@@ -654,6 +725,9 @@ const CLOSE_PAIR_BANDWIDTHS: f64 = 5.0;
 /// A candidate the three-bin estimate cannot measure is searched by the
 /// pencil over this many display bins either side.
 const PENCIL_CANDIDATE_BINS: f64 = 16.0;
+/// An estimate may be at most this many times broader than the peak it
+/// was found in.
+const BROADER_THAN_PEAK: f64 = 2.0;
 /// Groups of at most this many modes are given to the pencil.
 const MAX_PENCIL_GROUP: usize = 3;
 /// Passes of group refinement per round.
@@ -764,6 +838,7 @@ fn find_candidates(
                 power: power[k],
                 prominence_db,
                 bin_hz: spectrum.bin_hz,
+                half_power_width_hz: half_power_width_bins(power, k) as f64 * spectrum.bin_hz,
             })
         })
         .collect();
@@ -782,6 +857,24 @@ fn median(values: &[f32]) -> f32 {
 /// Topographic prominence of the peak at `k`: its height above the higher of
 /// the two lowest points that separate it from higher ground on either side
 /// (searched over ±10 % of the frequency, at least ±32 bins).
+/// Bins from the last one above half of `power[k]` on the left to the last
+/// one on the right (at most `MAX_WIDTH_BINS` either side).
+fn half_power_width_bins(power: &[f32], k: usize) -> usize {
+    let half = power[k] / 2.0;
+    let above = |i: &usize| power[*i] > half;
+    let right = (k + 1..power.len().min(k + 1 + MAX_WIDTH_BINS))
+        .take_while(above)
+        .count();
+    let left = (k.saturating_sub(MAX_WIDTH_BINS)..k)
+        .rev()
+        .take_while(above)
+        .count();
+    left + right + 1
+}
+
+/// See [`half_power_width_bins`].
+const MAX_WIDTH_BINS: usize = 128;
+
 fn prominence_db(power: &[f32], k: usize) -> f64 {
     let reach = (k / 10).max(32);
     let peak = power[k];
@@ -1330,21 +1423,44 @@ fn drop_skirts(modes: &mut Vec<Mode>) {
 }
 
 /// Two modes within a tenth of a bandwidth are one mode found twice: keep
-/// the stronger.
+/// the stronger. A weaker mode whose own peak lies more than 20 dB under
+/// a stronger mode's skirt (the stronger mode's spectral density |A/(α +
+/// iΔω)|² at the weaker one's frequency, against the weaker one's |A/α|²)
+/// is invisible in the spectrum: what the fit put there is the stronger
+/// mode's small misfit or noise beside it, and a real mode so buried
+/// could not be measured from one tap (tapwright's rule, no source). Real
+/// close pairs of similar level are 20 dB or more above each other's
+/// skirts and are kept.
 fn drop_duplicates(modes: &mut Vec<Mode>) {
     modes.sort_by(|a, b| b.amplitude.total_cmp(&a.amplitude));
     let mut kept: Vec<Mode> = Vec::with_capacity(modes.len());
     for mode in modes.drain(..) {
-        let twin = kept.iter().any(|k| {
-            (k.frequency_hz - mode.frequency_hz).abs()
-                < 0.1 * k.bandwidth_hz().max(mode.bandwidth_hz())
+        let covered = kept.iter().any(|k| {
+            let gap_hz = (k.frequency_hz - mode.frequency_hz).abs();
+            let twin = gap_hz < DUPLICATE_BANDWIDTHS * k.bandwidth_hz().max(mode.bandwidth_hz());
+            twin || skirt_over_peak(k, &mode) > BURIED_UNDER_SKIRT_RATIO
         });
-        if !twin {
+        if !covered {
             kept.push(mode);
         }
     }
     *modes = kept;
 }
+
+/// The ratio of `strong`'s spectral power density at `weak`'s frequency
+/// to `weak`'s own peak density (single-pole Lorentzians).
+fn skirt_over_peak(strong: &Mode, weak: &Mode) -> f64 {
+    let offset_rad_per_s = 2.0 * PI * (strong.frequency_hz - weak.frequency_hz);
+    let skirt = strong.amplitude.powi(2) / (strong.decay_per_s.powi(2) + offset_rad_per_s.powi(2));
+    let peak = (weak.amplitude / weak.decay_per_s.max(1e-12)).powi(2);
+    skirt / peak.max(1e-300)
+}
+
+/// See [`drop_duplicates`]: closer than this many bandwidths is one mode.
+const DUPLICATE_BANDWIDTHS: f64 = 0.1;
+/// See [`drop_duplicates`]: a peak this far (20 dB) under a stronger
+/// mode's skirt is buried.
+const BURIED_UNDER_SKIRT_RATIO: f64 = 100.0;
 
 #[cfg(test)]
 mod tests {
