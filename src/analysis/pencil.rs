@@ -491,4 +491,28 @@ mod tests {
         let none = band_poles(&noise, &band_around(500.0, 40.0, span), 0.003);
         assert!(none.is_empty(), "{none:?}");
     }
+
+    /// A spare pole beside a real one adds nothing to the fit and is the
+    /// one eliminated; two well separated real poles are both needed.
+    /// (Least squares: a pole whose column the others nearly span explains
+    /// almost no energy. Common practice, no source.)
+    #[test]
+    fn backward_elimination_drops_a_spare_pole_only() {
+        let real = [
+            Complex64::from_polar(0.97, 0.3),
+            Complex64::from_polar(0.95, 0.9),
+        ];
+        let y: Vec<Complex64> = (0..160)
+            .map(|k| real[0].powu(k) * 0.8 + real[1].powu(k) * Complex64::new(0.0, 0.5))
+            .collect();
+        let noise_var = 1e-6;
+        assert_eq!(least_needed(&y, &real, noise_var), None);
+        let spare = real[1] * Complex64::from_polar(1.0, 1e-4);
+        let with_spare = [real[0], real[1], spare];
+        let dropped = least_needed(&y, &with_spare, noise_var);
+        assert!(matches!(dropped, Some(1 | 2)), "{dropped:?}");
+        let far_real = [real[0], Complex64::from_polar(0.96, 2.0)];
+        let y_far_only: Vec<Complex64> = (0..160).map(|k| far_real[0].powu(k)).collect();
+        assert_eq!(least_needed(&y_far_only, &far_real, noise_var), Some(1));
+    }
 }
