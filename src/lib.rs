@@ -7,6 +7,7 @@
 
 pub mod acoustics;
 pub mod analysis;
+pub mod atomic_file;
 pub mod capture;
 pub mod cli;
 pub mod demo;

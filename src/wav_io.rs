@@ -594,22 +594,13 @@ fn plain(message: &str) -> String {
 }
 
 /// Writes mono 32-bit float samples (or 16-bit integer when `pcm16` is set)
-/// atomically: a temporary file in the same folder, synced, then renamed.
+/// atomically (see [`crate::atomic_file`]).
 pub fn write_mono(
     path: &Path,
     sample_rate_hz: u32,
     samples: &[f32],
     pcm16: bool,
 ) -> Result<(), WavError> {
-    let fail = |detail: String| WavError::Write {
-        path: path.to_owned(),
-        detail,
-    };
-    let folder = match path.parent() {
-        Some(p) if !p.as_os_str().is_empty() => p.to_owned(),
-        _ => PathBuf::from("."),
-    };
-    let temp = tempfile::NamedTempFile::new_in(&folder).map_err(|e| fail(e.to_string()))?;
     let spec = hound::WavSpec {
         channels: 1,
         sample_rate: sample_rate_hz,
@@ -620,26 +611,27 @@ pub fn write_mono(
             hound::SampleFormat::Float
         },
     };
-    {
-        let file = temp
-            .as_file()
-            .try_clone()
-            .map_err(|e| fail(e.to_string()))?;
-        let mut writer = hound::WavWriter::new(std::io::BufWriter::new(file), spec)
-            .map_err(|e| fail(e.to_string()))?;
+    let as_io = |e: hound::Error| match e {
+        hound::Error::IoError(e) => e,
+        other => std::io::Error::other(other.to_string()),
+    };
+    crate::atomic_file::write_atomically(path, |file| {
+        let mut writer =
+            hound::WavWriter::new(std::io::BufWriter::new(file), spec).map_err(as_io)?;
         for &s in samples {
             let result = if pcm16 {
                 writer.write_sample((f64::from(s).clamp(-1.0, 1.0) * 32767.0).round() as i16)
             } else {
                 writer.write_sample(s)
             };
-            result.map_err(|e| fail(e.to_string()))?;
+            result.map_err(as_io)?;
         }
-        writer.finalize().map_err(|e| fail(e.to_string()))?;
-    }
-    temp.as_file().sync_all().map_err(|e| fail(e.to_string()))?;
-    temp.persist(path).map_err(|e| fail(e.error.to_string()))?;
-    Ok(())
+        writer.finalize().map_err(as_io)
+    })
+    .map_err(|e| WavError::Write {
+        path: path.to_owned(),
+        detail: e.to_string(),
+    })
 }
 
 #[cfg(test)]

@@ -36,6 +36,7 @@ use super::model::{Build, SCHEMA_VERSION};
 use super::schema_v1;
 use super::schema_v2;
 use super::LedgerError;
+use crate::atomic_file::{folder_of, sync_folder, temp_beside};
 
 /// Largest build file [`load`] reads, MB (a 200-pass build with spectra is
 /// about 3 MB).
@@ -568,48 +569,8 @@ fn remove_stale_temps(path: &Path) {
     }
 }
 
-fn folder_of(path: &Path) -> &Path {
-    match path.parent() {
-        Some(parent) if !parent.as_os_str().is_empty() => parent,
-        _ => Path::new("."),
-    }
-}
-
-/// A new temporary file in the same folder, named `.<file name>.XXXX.saving`,
-/// with the permissions `path` has now (or, for a new file, the ordinary
-/// read-write permissions less the umask) rather than the owner-only
-/// permissions temporary files get by default. Also used for the build
-/// report's file.
-pub fn temp_beside(path: &Path) -> io::Result<tempfile::NamedTempFile> {
-    let name = path
-        .file_name()
-        .map(|n| n.to_string_lossy().into_owned())
-        .unwrap_or_default();
-    let prefix = format!(".{name}.");
-    let mut builder = tempfile::Builder::new();
-    builder.prefix(&prefix).suffix(".saving");
-    if let Some(permissions) = permissions_for(path) {
-        builder.permissions(permissions);
-    }
-    builder.tempfile_in(folder_of(path))
-}
-
-fn permissions_for(path: &Path) -> Option<fs::Permissions> {
-    if let Ok(metadata) = fs::metadata(path) {
-        return Some(metadata.permissions());
-    }
-    #[cfg(unix)]
-    {
-        use std::os::unix::fs::PermissionsExt;
-        Some(fs::Permissions::from_mode(0o666))
-    }
-    #[cfg(not(unix))]
-    {
-        None
-    }
-}
-
-/// Copies the current file to its backup path atomically.
+/// Copies the current file to its backup path atomically (the backup gets
+/// the build file's permissions).
 fn keep_backup(path: &Path) -> io::Result<()> {
     let mut source = File::open(path)?;
     let mut copy = temp_beside(path)?;
@@ -617,13 +578,4 @@ fn keep_backup(path: &Path) -> io::Result<()> {
     copy.as_file().sync_all()?;
     copy.persist(backup_path(path)).map_err(|e| e.error)?;
     Ok(())
-}
-
-/// Makes the renames durable where the platform allows opening a folder
-/// (Unix); elsewhere the rename is already as durable as it gets.
-fn sync_folder(path: &Path) {
-    if let Ok(folder) = File::open(folder_of(path)) {
-        // A failure here cannot undo the rename; the file is already whole.
-        let _ = folder.sync_all();
-    }
 }

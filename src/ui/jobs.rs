@@ -6,7 +6,6 @@
 use std::path::{Path, PathBuf};
 use std::sync::mpsc::{self, Receiver, Sender};
 
-use anyhow::Context as _;
 use eframe::egui;
 
 use crate::analysis::{AnalysisSettings, FoundTap, TapAnalysis, TapAnalyzer, TriggerSettings};
@@ -337,29 +336,16 @@ pub fn save_wav(path: PathBuf, recording: crate::wav_io::MonoRecording) -> JobDo
     JobDone::Saved(result)
 }
 
-/// Writes text to a file atomically (temporary file beside it, then rename).
+/// Writes text to a file atomically (see [`crate::atomic_file`]).
 pub fn save_text(path: PathBuf, text: String, what: &'static str) -> JobDone {
-    let result = write_atomic(&path, text.as_bytes())
+    let result = crate::atomic_file::write_bytes_atomically(&path, text.as_bytes())
         .map(|()| format!("Saved {what} to {}.", path.display()))
-        .map_err(|e| crate::cli::one_sentence(&e));
+        .map_err(|e| {
+            crate::cli::one_sentence(
+                &anyhow::Error::new(e).context(format!("cannot save {}", path.display())),
+            )
+        });
     JobDone::Saved(result)
-}
-
-fn write_atomic(path: &Path, bytes: &[u8]) -> anyhow::Result<()> {
-    use std::io::Write as _;
-    let folder = match path.parent() {
-        Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
-        _ => PathBuf::from("."),
-    };
-    let mut temp = tempfile::NamedTempFile::new_in(&folder)
-        .with_context(|| format!("cannot write in the folder {}", folder.display()))?;
-    temp.write_all(bytes)
-        .and_then(|()| temp.as_file().sync_all())
-        .with_context(|| format!("cannot write {}", path.display()))?;
-    temp.persist(path)
-        .map_err(|e| e.error)
-        .with_context(|| format!("cannot save {}", path.display()))?;
-    Ok(())
 }
 
 /// Reads a build file and the fingerprint of what was read.

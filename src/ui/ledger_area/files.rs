@@ -10,7 +10,6 @@
 //! has no file, neither Save nor the autosave after a recorded pass can write
 //! over the shipped samples (the maker keeps a copy with Save as…).
 
-use std::io::Write as _;
 use std::path::{Path, PathBuf};
 use std::sync::mpsc::{self, Receiver, Sender};
 
@@ -274,21 +273,9 @@ fn sentence_of(text: &str) -> String {
 
 /// Writes `text` to `path` atomically; the sentence to show on failure.
 fn write_text(path: PathBuf, text: &str) -> Result<PathBuf, String> {
-    write_atomic(&path, text.as_bytes())
+    crate::atomic_file::write_bytes_atomically(&path, text.as_bytes())
         .map(|()| path.clone())
         .map_err(|problem| format!("Cannot write {}: {problem}.", path.display()))
-}
-
-fn write_atomic(path: &Path, bytes: &[u8]) -> Result<(), std::io::Error> {
-    let folder = match path.parent() {
-        Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
-        _ => PathBuf::from("."),
-    };
-    let mut temp = tempfile::NamedTempFile::new_in(&folder)?;
-    temp.write_all(bytes)?;
-    temp.as_file().sync_all()?;
-    temp.persist(path).map_err(|e| e.error)?;
-    Ok(())
 }
 
 #[cfg(test)]
