@@ -61,7 +61,7 @@ fn report_of_the_violin_sample_shows_passes_changes_and_forecasts() {
         "B1−",
         "Targets and forecasts",
         "mode 5 → 340.00 Hz",
-        "method: fitted f ∝ m^k over 7 passes",
+        "method: fitted to this part's own 7 passes",
         "mean thickness",
     ] {
         assert!(

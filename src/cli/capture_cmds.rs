@@ -6,13 +6,15 @@ use std::time::{Duration, Instant};
 
 use anyhow::{bail, Context};
 
-use super::measure::{band_for, parse_count, MeasureArgs};
+use super::measure::{band_for, MeasureArgs};
 use super::output::{note, write_stdout};
 use super::report::ReportInput;
+use super::values::parse_count;
 use crate::analysis::{aggregate_taps, RejectReason, TapAnalysis};
 use crate::capture::{
     list_input_devices, CaptureEvent, CaptureHandle, CaptureSettings, DeviceInfo, SourceChoice,
 };
+use crate::text::read_number;
 use crate::wav_io::write_mono;
 
 /// Longest wait for one event before the deadline is checked again.
@@ -45,8 +47,8 @@ fn parse_taps(text: &str) -> Result<u32, String> {
 
 /// More than 0 and at most a day.
 fn parse_seconds(text: &str) -> Result<f64, String> {
-    match text.trim().parse::<f64>() {
-        Ok(s) if s.is_finite() && s > 0.0 && s <= 86_400.0 => Ok(s),
+    match read_number(text) {
+        Ok(s) if s > 0.0 && s <= 86_400.0 => Ok(s),
         Ok(s) => Err(format!("{s} s is not more than 0 and at most 86400 s")),
         Err(_) => Err(format!(
             "'{text}' is not a number of seconds; give more than 0, at most 86400"

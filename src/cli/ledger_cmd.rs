@@ -7,10 +7,8 @@ use std::path::PathBuf;
 
 use anyhow::Context;
 
-use crate::ledger::{
-    csv, store, Build, FallbackReason, Forecast, ForecastMethod, ForecastWarning, FrequencyChange,
-    Part, Pass, PassChange,
-};
+use crate::ledger::{csv, store, Build, Forecast, FrequencyChange, Part, Pass, PassChange};
+use crate::text::forecast;
 
 /// Arguments of `tapwright ledger`.
 #[derive(Debug, clap::Args)]
@@ -186,51 +184,15 @@ fn forecast_report(out: &mut String, f: &Forecast) {
             t.mean_now_mm, t.mean_target_mm, t.change_mm, t.change_range_mm.0, t.change_range_mm.1
         ));
     }
-    out.push_str(&format!("      method: {}\n", method_text(&f.method)));
+    out.push_str(&format!(
+        "      method: {}\n",
+        forecast::method_text(&f.method, f.from_pass)
+    ));
     for warning in &f.warnings {
-        out.push_str(&format!("      warning: {}\n", warning_text(warning)));
-    }
-}
-
-fn method_text(method: &ForecastMethod) -> String {
-    match method {
-        ForecastMethod::FittedExponent {
-            exponent,
-            exponent_std_error,
-            passes_used,
-        } => format!(
-            "fitted f ∝ m^k over {passes_used} passes, k = {exponent:.2} ± {exponent_std_error:.2}"
-        ),
-        ForecastMethod::UniformThinning { reason } => {
-            let why = match reason {
-                FallbackReason::FewerThanThreePasses { passes } => {
-                    let s = if *passes == 1 { "" } else { "es" };
-                    format!("only {passes} pass{s} with this label")
-                }
-                FallbackReason::NoMassSpread => "the passes' masses barely differ".to_string(),
-                FallbackReason::FitDoesNotFall { fitted_exponent } => {
-                    format!("the fitted k = {fitted_exponent:.2} does not describe a falling mode")
-                }
-            };
-            format!("uniform-thinning rule f ∝ m (thin-plate theory), because {why}")
-        }
-    }
-}
-
-fn warning_text(warning: &ForecastWarning) -> String {
-    match warning {
-        ForecastWarning::ExtrapolatesBeyondHistory {
-            outside_g,
-            history_span_g,
-        } => format!(
-            "the target mass lies {outside_g:.1} g outside the masses measured so far (which span {history_span_g:.1} g); treat it as a rough guide"
-        ),
-        ForecastWarning::TargetAboveCurrent => {
-            "the target is above the mode's frequency; removing wood lowers it".to_string()
-        }
-        ForecastWarning::StartsFromEarlierPass { latest_pass } => {
-            format!("pass {latest_pass} does not have this label; the forecast starts from an earlier pass")
-        }
+        out.push_str(&format!(
+            "      warning: {}\n",
+            forecast::warning_text(warning)
+        ));
     }
 }
 

@@ -12,12 +12,15 @@ mod parse_error;
 mod report;
 mod report_cmd;
 mod stock;
+mod values;
 
 use std::process::ExitCode;
 
 use clap::{CommandFactory, Parser, Subcommand};
 
 use output::{note, StdoutClosed};
+
+use crate::text::one_sentence;
 
 /// Exit code for anything the user can fix: a bad file, a missing device,
 /// impossible geometry.
@@ -122,20 +125,4 @@ fn command_words(args: &[std::ffi::OsString]) -> String {
         Some(name) => format!("tapwright {name}"),
         None => "tapwright".to_owned(),
     }
-}
-
-/// Joins an error and its causes into one line: "reading x.wav: not a WAV file".
-pub fn one_sentence(error: &anyhow::Error) -> String {
-    let mut parts: Vec<String> = Vec::new();
-    for cause in error.chain() {
-        let text = cause.to_string();
-        if !parts.iter().any(|p| p.contains(&text)) {
-            parts.push(text);
-        }
-    }
-    let mut sentence = parts.join(": ");
-    if !sentence.ends_with('.') {
-        sentence.push('.');
-    }
-    sentence
 }

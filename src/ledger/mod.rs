@@ -11,7 +11,6 @@ pub mod carry_over;
 pub mod compare;
 pub mod csv;
 pub mod forecast;
-pub mod format;
 pub mod from_analysis;
 pub mod labels;
 pub mod model;

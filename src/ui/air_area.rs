@@ -63,7 +63,7 @@ impl Checked {
         match draft.to_geometry() {
             Ok(geometry) => {
                 let estimate =
-                    estimate_cavity(&geometry).map_err(|e| form::sentence(&e.to_string()));
+                    estimate_cavity(&geometry).map_err(|e| crate::text::sentence(&e.to_string()));
                 Checked {
                     geometry: Some(geometry),
                     estimate,

@@ -12,6 +12,7 @@ use crate::capture::{
     CaptureEvent, CaptureHandle, CaptureSettings, DeviceInfo, InputLevel, Pacing, SourceChoice,
 };
 use crate::ledger::Build;
+use crate::text::sentence;
 
 use super::air_area::{self, AirAreaState};
 use super::commands::{AppCommand, Area, AreaContext, ListenCommand, SourcePick};
@@ -1369,20 +1370,6 @@ fn set_text_sizes(ctx: &egui::Context) {
         );
         style.spacing.item_spacing = egui::vec2(8.0, 5.0);
     });
-}
-
-/// A message as one sentence: capital first letter, full stop at the end.
-pub(crate) fn sentence(text: &str) -> String {
-    let text = text.trim();
-    let mut chars = text.chars();
-    let mut out: String = match chars.next() {
-        Some(first) => first.to_uppercase().chain(chars).collect(),
-        None => String::new(),
-    };
-    if !out.ends_with(['.', '!', '?']) {
-        out.push('.');
-    }
-    out
 }
 
 fn file_name(path: &Path) -> String {

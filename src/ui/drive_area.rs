@@ -23,10 +23,9 @@ use crate::capture::tone::{
 };
 use crate::capture::{open_output, CaptureError, OutputChoice, ToneOutput};
 use crate::ledger::Build;
+use crate::text::{note_text, read_number, sentence};
 
-use super::app::sentence;
 use super::commands::AreaContext;
-use super::listen_area::note_text;
 
 /// The caution shown beside the controls (and, shorter, on the command line).
 pub const DRIVE_CAUTION: &str = "Loud tones damage hearing and loudspeakers. Start at a low \
@@ -529,15 +528,13 @@ fn frequency_row(ui: &mut egui::Ui, state: &mut DriveAreaState) {
     }
 }
 
-/// A typed frequency, or one sentence saying what is wrong with it.
+/// A typed frequency (a trailing "Hz" allowed), or one sentence saying
+/// what is wrong with it.
 fn parse_hz(text: &str) -> Result<f64, String> {
     let text = text.trim().trim_end_matches("Hz").trim();
-    let value: f64 = text
-        .replace(',', ".")
-        .parse()
-        .map_err(|_| format!("\"{text}\" is not a frequency in Hz."))?;
+    let value = read_number(text).map_err(|_| format!("\"{text}\" is not a frequency in Hz."))?;
     let highest = highest_hz(None);
-    if !value.is_finite() || !(LOWEST_HZ..=highest).contains(&value) {
+    if !(LOWEST_HZ..=highest).contains(&value) {
         return Err(format!(
             "A drive frequency of {value} Hz is outside {LOWEST_HZ} to {highest} Hz."
         ));

@@ -288,7 +288,7 @@ pub fn analyse_recording(
     analysis: AnalysisSettings,
 ) -> JobDone {
     let result =
-        read_and_analyse(&path, &trigger, &analysis).map_err(|e| crate::cli::one_sentence(&e));
+        read_and_analyse(&path, &trigger, &analysis).map_err(|e| crate::text::one_sentence(&e));
     JobDone::RecordingAnalysed { path, result }
 }
 
@@ -332,7 +332,7 @@ pub fn save_wav(path: PathBuf, recording: crate::wav_io::MonoRecording) -> JobDo
     let result =
         crate::wav_io::write_mono(&path, recording.sample_rate_hz, &recording.samples, false)
             .map(|()| format!("Saved the kept taps to {}.", path.display()))
-            .map_err(|e| crate::cli::one_sentence(&anyhow::Error::new(e)));
+            .map_err(|e| crate::text::one_sentence(&anyhow::Error::new(e)));
     JobDone::Saved(result)
 }
 
@@ -341,7 +341,7 @@ pub fn save_text(path: PathBuf, text: String, what: &'static str) -> JobDone {
     let result = crate::atomic_file::write_bytes_atomically(&path, text.as_bytes())
         .map(|()| format!("Saved {what} to {}.", path.display()))
         .map_err(|e| {
-            crate::cli::one_sentence(
+            crate::text::one_sentence(
                 &anyhow::Error::new(e).context(format!("cannot save {}", path.display())),
             )
         });
@@ -351,7 +351,7 @@ pub fn save_text(path: PathBuf, text: String, what: &'static str) -> JobDone {
 /// Reads a build file and the fingerprint of what was read.
 pub fn load_build(path: PathBuf) -> JobDone {
     let result = crate::ledger::store::load_with_fingerprint(&path)
-        .map_err(|e| crate::cli::one_sentence(&anyhow::Error::new(e)));
+        .map_err(|e| crate::text::one_sentence(&anyhow::Error::new(e)));
     JobDone::BuildLoaded { path, result }
 }
 
@@ -448,9 +448,9 @@ fn save_one_build(
             Ok(())
         }
         Err(error @ StoreError::ChangedOnDisk { .. }) => Err(SaveProblem::ChangedOnDisk(
-            crate::cli::one_sentence(&anyhow::Error::new(error)),
+            crate::text::one_sentence(&anyhow::Error::new(error)),
         )),
-        Err(error) => Err(SaveProblem::Failed(crate::cli::one_sentence(
+        Err(error) => Err(SaveProblem::Failed(crate::text::one_sentence(
             &anyhow::Error::new(error),
         ))),
     }

@@ -27,11 +27,9 @@ use std::collections::{BTreeSet, HashMap};
 
 use eframe::egui;
 
-use crate::ledger::format::{capitalised, date_text, num, signed};
-use crate::ledger::{Build, Family, LedgerError, Part};
-
-use super::app::sentence;
 use super::commands::{AppCommand, AreaContext};
+use crate::ledger::{Build, Family, LedgerError, Part};
+use crate::text::{capitalised, date_text, sentence};
 
 pub use files::SAMPLE_BUILDS;
 
@@ -667,30 +665,9 @@ where
     Ok(())
 }
 
-/// A number typed by the maker (a decimal comma is accepted); None when
-/// empty.
-fn parse_number(text: &str, what: &str) -> Result<Option<f64>, String> {
-    let text = text.trim();
-    if text.is_empty() {
-        return Ok(None);
-    }
-    match text.replace(',', ".").parse::<f64>() {
-        Ok(value) if value.is_finite() => Ok(Some(value)),
-        _ => Err(format!("{what} \"{text}\" is not a number.")),
-    }
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    #[test]
-    fn numbers_on_screen_are_finite_and_use_a_true_minus() {
-        assert_eq!(num(-1.234, 2), "\u{2212}1.23");
-        assert_eq!(num(f64::NAN, 2), "–");
-        assert_eq!(signed(2.0, 1), "+2.0");
-        assert_eq!(signed(f64::INFINITY, 1), "–");
-    }
 
     #[test]
     fn typed_paths_get_their_extension_and_refuse_another() {
@@ -701,18 +678,5 @@ mod tests {
         assert!(typed_path("/tmp/violin.ron", "csv").is_err());
         assert!(typed_path("  ", "ron").is_err());
         assert!(typed_path("/tmp/a.CSV", "csv").is_ok());
-    }
-
-    #[test]
-    fn typed_numbers_accept_a_decimal_comma() {
-        assert_eq!(parse_number("67,5", "mass"), Ok(Some(67.5)));
-        assert_eq!(parse_number("", "mass"), Ok(None));
-        assert!(parse_number("abc", "mass").is_err());
-        assert!(parse_number("inf", "mass").is_err());
-    }
-
-    #[test]
-    fn dates_read_as_day_and_minute() {
-        assert_eq!(date_text("2024-03-06T09:00:00Z"), "2024-03-06 09:00");
     }
 }

@@ -6,8 +6,8 @@ use std::path::PathBuf;
 
 use eframe::egui;
 
-use crate::analysis::pitch::nearest_note;
 use crate::capture::CaptureSettings;
+use crate::text::note_text;
 
 use super::app::{InputView, SourceState};
 use super::commands::{AppCommand, AreaContext, ListenCommand, SourcePick};
@@ -596,12 +596,4 @@ fn tap_list(ui: &mut egui::Ui, facts: &ListenFacts, ctx: &mut AreaContext) {
                     }
                 });
         });
-}
-
-/// "E4 −17 ct", or "–" when the frequency has no note.
-pub fn note_text(frequency_hz: f64, a4_hz: f64) -> String {
-    match nearest_note(frequency_hz, a4_hz) {
-        Some(pitch) => format!("{} {:+.0} ct", pitch.note, pitch.cents).replace('-', "\u{2212}"),
-        None => "–".to_owned(),
-    }
 }

@@ -31,7 +31,6 @@ pub use commands::{
     stored_spectrum_of, AppCommand, Area, AreaContext, BuildEdit, ListenCommand, SourcePick,
 };
 pub use export::pass_json;
-pub use listen_area::note_text;
 pub use session::{ListenSession, TapEntry};
 
 /// Options for opening the window.

@@ -18,8 +18,8 @@ use egui_plot::{Legend, MarkerShape, Plot, Points};
 use crate::acoustics::stock::{bar_figures, BarFigures, BarMode, BarSample, WOOD_POISSON_RATIO};
 use crate::ledger::StockSample;
 
-use super::air_area::form::{fixed, parse_number, sentence};
 use super::{AppCommand, AreaContext};
+use crate::text::{capitalised, num, parse_number, sentence};
 
 /// Width of a number field, points.
 const FIELD_WIDTH: f32 = 64.0;
@@ -79,14 +79,14 @@ impl BarDraft {
             if text.trim().is_empty() {
                 Ok(None)
             } else {
-                parse_number(&format!("{which} {what}"), text).map(Some)
+                parse_number(&format!("the {which} {what}"), text).map(Some)
             }
         };
         Ok(Some(BarSample {
-            length_mm: parse_number(&format!("{which} length"), &self.length_mm)?,
-            width_mm: parse_number(&format!("{which} width"), &self.width_mm)?,
-            thickness_mm: parse_number(&format!("{which} thickness"), &self.thickness_mm)?,
-            mass_g: parse_number(&format!("{which} mass"), &self.mass_g)?,
+            length_mm: parse_number(&format!("the {which} length"), &self.length_mm)?,
+            width_mm: parse_number(&format!("the {which} width"), &self.width_mm)?,
+            thickness_mm: parse_number(&format!("the {which} thickness"), &self.thickness_mm)?,
+            mass_g: parse_number(&format!("the {which} mass"), &self.mass_g)?,
             flexural_hz: optional("first flexural frequency", &self.flexural_hz)?,
             second_flexural_hz: optional("second flexural frequency", &self.second_flexural_hz)?,
             longitudinal_hz: optional("longitudinal frequency", &self.longitudinal_hz)?,
@@ -250,7 +250,7 @@ fn sample_form(ui: &mut egui::Ui, state: &mut StockAreaState, ctx: &mut AreaCont
         ui.label(
             egui::RichText::new(format!(
                 "E along / E across: {}",
-                fixed(crate::acoustics::stock::grain_ratio(along, across), 1)
+                num(crate::acoustics::stock::grain_ratio(along, across), 1)
             ))
             .strong(),
         );
@@ -270,14 +270,6 @@ fn tap_instructions(ui: &mut egui::Ui) {
                 });
             }
         });
-}
-
-fn capitalised(text: &str) -> String {
-    let mut chars = text.chars();
-    match chars.next() {
-        Some(first) => first.to_uppercase().chain(chars).collect(),
-        None => String::new(),
-    }
 }
 
 /// The Listen mode picker; returns the picked mode's frequency.
@@ -300,8 +292,8 @@ fn listen_mode_picker(
     }
     let picked = state.listen_mode.unwrap_or(0);
     let text = |(hz, label): &(f64, Option<String>)| match label {
-        Some(label) => format!("{} Hz ({label})", fixed(*hz, 1)),
-        None => format!("{} Hz", fixed(*hz, 1)),
+        Some(label) => format!("{} Hz ({label})", num(*hz, 1)),
+        None => format!("{} Hz", num(*hz, 1)),
     };
     ui.horizontal(|ui| {
         let label = ui.label("Listen mode");
@@ -407,43 +399,43 @@ fn figures_grid(ui: &mut egui::Ui, which: &str, figures: &BarFigures) {
             };
             row(
                 "Density",
-                format!("{} kg/m³", fixed(figures.density_kg_m3, 0)),
+                format!("{} kg/m³", num(figures.density_kg_m3, 0)),
             );
             if let Some(flexural) = &figures.flexural {
                 row(
                     "E, flexural (ASTM E1876)",
                     format!(
                         "{} GPa  (T1 {}, μ {WOOD_POISSON_RATIO})",
-                        fixed(flexural.youngs_modulus_pa * 1e-9, 2),
-                        fixed(flexural.t1_correction, 4)
+                        num(flexural.youngs_modulus_pa * 1e-9, 2),
+                        num(flexural.t1_correction, 4)
                     ),
                 );
             }
             if let Some(longitudinal) = &figures.longitudinal {
                 row(
                     "E, longitudinal",
-                    format!("{} GPa", fixed(longitudinal.youngs_modulus_pa * 1e-9, 2)),
+                    format!("{} GPa", num(longitudinal.youngs_modulus_pa * 1e-9, 2)),
                 );
             }
             row(
                 "Speed of sound",
-                format!("{} m/s", fixed(figures.speed_of_sound_m_s, 0)),
+                format!("{} m/s", num(figures.speed_of_sound_m_s, 0)),
             );
             row(
                 "Radiation ratio c/ρ",
-                format!("{} m⁴/(kg·s)", fixed(figures.radiation_ratio, 2)),
+                format!("{} m⁴/(kg·s)", num(figures.radiation_ratio, 2)),
             );
             row(
                 "Specific modulus E/ρ",
-                format!("{} GPa/(g/cm³)", fixed(figures.specific_modulus, 2)),
+                format!("{} GPa/(g/cm³)", num(figures.specific_modulus, 2)),
             );
             if let Some(check) = &figures.second_mode {
                 row(
                     "Second / first flexural",
                     format!(
                         "{} (slender bar {})",
-                        fixed(check.ratio, 3),
-                        fixed(check.slender_ratio, 3)
+                        num(check.ratio, 3),
+                        num(check.slender_ratio, 3)
                     ),
                 );
             }
@@ -453,7 +445,7 @@ fn figures_grid(ui: &mut egui::Ui, which: &str, figures: &BarFigures) {
             ui.visuals().warn_fg_color,
             format!(
                 "The second mode is {}% from where a slender bar puts it: check that both are flexural modes of this bar.",
-                fixed(check.deviation_pct, 1)
+                num(check.deviation_pct, 1)
             ),
         );
     }
@@ -667,21 +659,21 @@ fn stock_table(
                     .on_hover_text(&row.sample.source_note);
                 ui.label(&row.sample.species);
                 let main = row.main();
-                ui.monospace(main.map_or_else(dash, |f| fixed(f.density_kg_m3, 0)));
+                ui.monospace(main.map_or_else(dash, |f| num(f.density_kg_m3, 0)));
                 ui.monospace(
                     row.along
                         .as_ref()
-                        .map_or_else(dash, |f| fixed(f.youngs_modulus_gpa(), 2)),
+                        .map_or_else(dash, |f| num(f.youngs_modulus_gpa(), 2)),
                 );
-                ui.monospace(main.map_or_else(dash, |f| fixed(f.speed_of_sound_m_s, 0)));
-                ui.monospace(main.map_or_else(dash, |f| fixed(f.radiation_ratio, 2)));
-                ui.monospace(main.map_or_else(dash, |f| fixed(f.specific_modulus, 1)));
+                ui.monospace(main.map_or_else(dash, |f| num(f.speed_of_sound_m_s, 0)));
+                ui.monospace(main.map_or_else(dash, |f| num(f.radiation_ratio, 2)));
+                ui.monospace(main.map_or_else(dash, |f| num(f.specific_modulus, 1)));
                 ui.monospace(
                     row.across
                         .as_ref()
-                        .map_or_else(dash, |f| fixed(f.youngs_modulus_gpa(), 3)),
+                        .map_or_else(dash, |f| num(f.youngs_modulus_gpa(), 3)),
                 );
-                ui.monospace(row.sample.grain_ratio().map_or_else(dash, |r| fixed(r, 1)));
+                ui.monospace(row.sample.grain_ratio().map_or_else(dash, |r| num(r, 1)));
                 ui.horizontal(|ui| {
                     if ui
                         .small_button("Edit")

@@ -9,11 +9,9 @@ use crate::acoustics::{
     speed_of_sound_m_s, CavityGeometry, EndCorrection, Opening, SpeedOfSoundModel,
 };
 
-use super::form::{
-    self, fixed, number_text, parse_number, signed, GeometryDraft, OpeningDraft, OpeningKind,
-    Preset, VolumeUnit,
-};
+use super::form::{GeometryDraft, OpeningDraft, OpeningKind, Preset, VolumeUnit};
 use super::{AirAreaState, Checked};
+use crate::text::{capitalised, note_text, num, number_text, parse_number, sentence, signed};
 
 /// Width of a number field, points.
 const FIELD_WIDTH: f32 = 72.0;
@@ -192,14 +190,6 @@ fn openings_list(ui: &mut egui::Ui, draft: &mut GeometryDraft) -> bool {
     changed
 }
 
-fn capitalised(text: &str) -> String {
-    let mut chars = text.chars();
-    match chars.next() {
-        Some(first) => first.to_uppercase().chain(chars).collect(),
-        None => String::new(),
-    }
-}
-
 fn end_correction_name(choice: EndCorrection) -> &'static str {
     match choice {
         EndCorrection::AcrossWall => "thin to thick wall",
@@ -329,7 +319,7 @@ pub(super) fn estimate(ui: &mut egui::Ui, draft: &GeometryDraft, checked: &Check
         ui.label("Speed of sound");
         match &speed {
             Ok(speed_m_s) => {
-                ui.monospace(format!("{} m/s", fixed(*speed_m_s, 2)));
+                ui.monospace(format!("{} m/s", num(*speed_m_s, 2)));
                 ui.weak(format!("({})", model_name(draft.sound_model)));
             }
             Err(_) => {
@@ -364,8 +354,8 @@ pub(super) fn estimate(ui: &mut egui::Ui, draft: &GeometryDraft, checked: &Check
             for (index, opening) in estimate.openings.iter().enumerate() {
                 ui.label(format!("{}. {}", index + 1, opening.opening.kind()));
                 ui.monospace(opening.opening.size_text());
-                ui.monospace(format!("{} cm²", fixed(opening.area_m2 * 1e4, 2)));
-                ui.monospace(format!("{} mm", fixed(opening.conductance_m * 1e3, 1)));
+                ui.monospace(format!("{} cm²", num(opening.area_m2 * 1e4, 2)));
+                ui.monospace(format!("{} mm", num(opening.conductance_m * 1e3, 1)));
                 let slope = estimate
                     .sensitivities
                     .hz_per_mm_of_opening
@@ -384,12 +374,12 @@ pub(super) fn estimate(ui: &mut egui::Ui, draft: &GeometryDraft, checked: &Check
             ui.label("");
             ui.monospace(format!(
                 "{} cm²",
-                fixed(
+                num(
                     estimate.openings.iter().map(|o| o.area_m2).sum::<f64>() * 1e4,
                     2
                 )
             ));
-            ui.monospace(format!("{} mm", fixed(estimate.conductance_m * 1e3, 1)));
+            ui.monospace(format!("{} mm", num(estimate.conductance_m * 1e3, 1)));
             ui.label("");
             ui.end_row();
         });
@@ -399,14 +389,12 @@ pub(super) fn estimate(ui: &mut egui::Ui, draft: &GeometryDraft, checked: &Check
     ui.label("Helmholtz frequency (rigid walls)");
     ui.horizontal(|ui| {
         ui.label(
-            egui::RichText::new(format!("{} Hz", fixed(estimate.helmholtz_hz, 1)))
+            egui::RichText::new(format!("{} Hz", num(estimate.helmholtz_hz, 1)))
                 .size(26.0)
                 .strong(),
         );
-        ui.label(
-            egui::RichText::new(super::super::note_text(estimate.helmholtz_hz, a4_hz)).size(16.0),
-        )
-        .on_hover_text(format!("Nearest note, A4 = {} Hz", number_text(a4_hz)));
+        ui.label(egui::RichText::new(note_text(estimate.helmholtz_hz, a4_hz)).size(16.0))
+            .on_hover_text(format!("Nearest note, A4 = {} Hz", number_text(a4_hz)));
     });
 
     ui.add_space(4.0);
@@ -523,12 +511,12 @@ enum Solved {
 /// Runs the solve; the answer and the frequency it gives (fed forward), or
 /// one sentence.
 fn run_solve(solve: &SolveDraft, draft: &GeometryDraft) -> Result<(Solved, f64), String> {
-    let target_hz = parse_number("target frequency", &solve.target_hz)?;
+    let target_hz = parse_number("the target frequency", &solve.target_hz)?;
     let mut geometry = match solve.solve_for {
         // The volume is the unknown: a half-typed volume must not block it.
         SolveFor::Volume => {
             let mut with_volume = draft.clone();
-            if parse_number("volume", &with_volume.volume).is_err() {
+            if parse_number("the volume", &with_volume.volume).is_err() {
                 with_volume.volume_unit = VolumeUnit::Litre;
                 with_volume.volume = "1".to_owned();
             }
@@ -536,7 +524,7 @@ fn run_solve(solve: &SolveDraft, draft: &GeometryDraft) -> Result<(Solved, f64),
         }
         _ => draft.to_geometry()?,
     };
-    let acoustics = |e: crate::acoustics::AcousticsError| form::sentence(&e.to_string());
+    let acoustics = |e: crate::acoustics::AcousticsError| sentence(&e.to_string());
     let replaces = solve.replaces.filter(|&i| i < geometry.openings.len());
     let solved = match solve.solve_for {
         SolveFor::Volume => Solved::Volume {
@@ -552,7 +540,7 @@ fn run_solve(solve: &SolveDraft, draft: &GeometryDraft) -> Result<(Solved, f64),
                         .map_err(acoustics)?,
                 }
             } else {
-                let width_mm = parse_number("slot's mean width", &solve.slot_width_mm)?;
+                let width_mm = parse_number("the slot's mean width", &solve.slot_width_mm)?;
                 Opening::Slot {
                     length_mm: solve_slot_length_mm(&geometry, width_mm, target_hz)
                         .map_err(acoustics)?,
@@ -572,7 +560,7 @@ fn run_solve(solve: &SolveDraft, draft: &GeometryDraft) -> Result<(Solved, f64),
         .to_geometry()
         .and_then(|g: CavityGeometry| estimate_cavity(&g).map_err(|e| e.to_string()))
         .map(|e| e.helmholtz_hz)
-        .map_err(|e| form::sentence(&e))?;
+        .map_err(|e| sentence(&e))?;
     Ok((solved, achieved_hz))
 }
 
@@ -677,7 +665,7 @@ pub(super) fn solve(ui: &mut egui::Ui, state: &mut AirAreaState) -> bool {
     let (answer, button) = match &solved {
         Solved::Opening { opening, .. } => match *opening {
             Opening::Round { diameter_mm } => (
-                format!("Round hole Ø {} mm", fixed(diameter_mm, 2)),
+                format!("Round hole Ø {} mm", num(diameter_mm, 2)),
                 "Apply this diameter",
             ),
             Opening::Slot {
@@ -686,7 +674,7 @@ pub(super) fn solve(ui: &mut egui::Ui, state: &mut AirAreaState) -> bool {
             } => (
                 format!(
                     "Slot {} × {} mm",
-                    fixed(length_mm, 2),
+                    num(length_mm, 2),
                     number_text(mean_width_mm)
                 ),
                 "Apply this length",
@@ -708,7 +696,7 @@ pub(super) fn solve(ui: &mut egui::Ui, state: &mut AirAreaState) -> bool {
     let mut applied = false;
     ui.horizontal_wrapped(|ui| {
         ui.label(egui::RichText::new(answer).strong());
-        ui.weak(format!("gives {} Hz", fixed(achieved_hz, 2)));
+        ui.weak(format!("gives {} Hz", num(achieved_hz, 2)));
         if ui
             .button(button)
             .on_hover_text("Put this size into the body's fields")

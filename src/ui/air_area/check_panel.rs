@@ -7,8 +7,8 @@ use crate::acoustics::{compare_with_measured, coupled_correction, CoupledCorrect
 use crate::analysis::pitch::cents_between;
 use crate::ledger::{Build, PartKind};
 
-use super::form::{self, fixed, parse_number, signed};
 use super::Checked;
+use crate::text::{note_text, num, parse_number, sentence, signed};
 use crate::ui::AreaContext;
 
 /// Width of a number field, points.
@@ -35,10 +35,10 @@ impl CoupledDraft {
     }
 
     fn correction(&self) -> Result<CoupledCorrection, String> {
-        let f_minus = parse_number("lower coupled resonance f−", &self.f_minus_hz)?;
-        let f_plus = parse_number("upper coupled resonance f+", &self.f_plus_hz)?;
-        let f_sealed = parse_number("sealed-hole resonance f_c", &self.f_sealed_hz)?;
-        coupled_correction(f_minus, f_plus, f_sealed).map_err(|e| form::sentence(&e.to_string()))
+        let f_minus = parse_number("the lower coupled resonance f−", &self.f_minus_hz)?;
+        let f_plus = parse_number("the upper coupled resonance f+", &self.f_plus_hz)?;
+        let f_sealed = parse_number("the sealed-hole resonance f_c", &self.f_sealed_hz)?;
+        coupled_correction(f_minus, f_plus, f_sealed).map_err(|e| sentence(&e.to_string()))
     }
 }
 
@@ -86,15 +86,15 @@ pub(super) fn coupled(ui: &mut egui::Ui, draft: &mut CoupledDraft, checked: &Che
         .spacing([10.0, 3.0])
         .show(ui, |ui| {
             ui.label("Air alone, rigid walls (f_h)");
-            ui.monospace(format!("{} Hz", fixed(correction.helmholtz_hz, 1)));
+            ui.monospace(format!("{} Hz", num(correction.helmholtz_hz, 1)));
             ui.end_row();
             ui.label("Top alone (f_t)");
-            ui.monospace(format!("{} Hz", fixed(correction.plate_hz, 1)));
+            ui.monospace(format!("{} Hz", num(correction.plate_hz, 1)));
             ui.end_row();
             ui.label("The walls pull A0 down by");
             ui.monospace(format!(
                 "{} Hz ({} cents)",
-                fixed(correction.wall_pull_hz, 1),
+                num(correction.wall_pull_hz, 1),
                 signed(correction.wall_pull_cents, 0)
             ));
             ui.end_row();
@@ -103,7 +103,7 @@ pub(super) fn coupled(ui: &mut egui::Ui, draft: &mut CoupledDraft, checked: &Che
         let cents = cents_between(estimate.helmholtz_hz, correction.helmholtz_hz);
         ui.weak(format!(
             "The geometry estimate is {} Hz; f_h from the measurements is {} cents from it.",
-            fixed(estimate.helmholtz_hz, 1),
+            num(estimate.helmholtz_hz, 1),
             signed(cents, 0)
         ));
     }
@@ -148,7 +148,7 @@ impl BodyA0 {
             "{}, pass {}: A0 {} Hz",
             self.part,
             self.pass_number,
-            fixed(self.frequency_hz, 1)
+            num(self.frequency_hz, 1)
         )
     }
 }
@@ -195,7 +195,7 @@ pub(super) fn air_check(
     ui.label("Measured A0");
     ui.add_enabled_ui(listen_a0.is_some(), |ui| {
         let text = match listen_a0 {
-            Some(hz) => format!("From Listen: {} Hz", fixed(hz, 1)),
+            Some(hz) => format!("From Listen: {} Hz", num(hz, 1)),
             None => "From Listen (label a mode \"A0\" there)".to_owned(),
         };
         ui.radio_value(&mut chosen, A0Source::Listen, text)
@@ -277,7 +277,7 @@ pub(super) fn air_check(
                 ui.weak("Type the measured A0 to compare it with the estimate.");
                 return;
             }
-            parse_number("typed A0", &draft.typed_a0_hz).map(|hz| (hz, None))
+            parse_number("the typed A0", &draft.typed_a0_hz).map(|hz| (hz, None))
         }
     };
     let (measured_hz, pass_temp_c) = match measured {
@@ -297,10 +297,7 @@ pub(super) fn air_check(
     let check = match compare_with_measured(measured_hz, estimate.helmholtz_hz) {
         Ok(check) => check,
         Err(error) => {
-            ui.colored_label(
-                ui.visuals().error_fg_color,
-                form::sentence(&error.to_string()),
-            );
+            ui.colored_label(ui.visuals().error_fg_color, sentence(&error.to_string()));
             return;
         }
     };
@@ -311,15 +308,15 @@ pub(super) fn air_check(
             ui.label("Measured A0");
             ui.monospace(format!(
                 "{} Hz  {}",
-                fixed(check.measured_hz, 1),
-                crate::ui::note_text(check.measured_hz, ctx.a4_hz)
+                num(check.measured_hz, 1),
+                note_text(check.measured_hz, ctx.a4_hz)
             ));
             ui.end_row();
             ui.label("Rigid-wall estimate");
             ui.monospace(format!(
                 "{} Hz  {}",
-                fixed(check.estimated_hz, 1),
-                crate::ui::note_text(check.estimated_hz, ctx.a4_hz)
+                num(check.estimated_hz, 1),
+                note_text(check.estimated_hz, ctx.a4_hz)
             ));
             ui.end_row();
             ui.label("Measured − estimated");
@@ -344,8 +341,8 @@ pub(super) fn air_check(
         if let Some(typed_c) = typed_c.filter(|t| (t - temp_c).abs() >= 1.0) {
             ui.weak(format!(
                 "The pass was measured at {} °C and the estimate uses {} °C ({} Hz per °C).",
-                fixed(temp_c, 1),
-                fixed(typed_c, 1),
+                num(temp_c, 1),
+                num(typed_c, 1),
                 signed(estimate.sensitivities.hz_per_degree_c, 2)
             ));
         }

@@ -1,15 +1,15 @@
 //! What the maker types in the Air area, kept as text, and how it becomes a
-//! [`CavityGeometry`]. No egui here: parsing, presets, unit conversion and
-//! number formatting, so they can be tested on their own.
+//! [`CavityGeometry`]. No egui here: presets and unit conversion, so they
+//! can be tested on their own.
 //!
 //! Every refusal is one sentence that names the field ("The volume \"abc\"
-//! is not a number."). "NaN" and "inf", which Rust's float parser accepts,
-//! are refused here without being echoed, so they never reach the screen.
+//! is not a number."), read by the one rule of `text::typed`.
 
 use crate::acoustics::{
     AirConditions, CavityGeometry, EndCorrection, Opening, SpeedOfSoundModel, M3_PER_CM3,
     M3_PER_IN3, M3_PER_LITRE,
 };
+use crate::text::{number_text, parse_number};
 
 /// The unit the volume is typed in.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
@@ -173,11 +173,14 @@ impl OpeningDraft {
     pub fn to_opening(&self, position: usize) -> Result<Opening, String> {
         let (first_name, second_name) = self.kind.size_names();
         let first = parse_number(
-            &format!("{first_name} of opening {position}"),
+            &format!("the {first_name} of opening {position}"),
             &self.first_mm,
         )?;
         let second = match second_name {
-            Some(name) => parse_number(&format!("{name} of opening {position}"), &self.second_mm)?,
+            Some(name) => parse_number(
+                &format!("the {name} of opening {position}"),
+                &self.second_mm,
+            )?,
             None => 0.0,
         };
         Ok(match self.kind {
@@ -305,29 +308,29 @@ impl GeometryDraft {
     pub fn set_volume_unit(&mut self, unit: VolumeUnit) {
         let old = self.volume_unit;
         self.volume_unit = unit;
-        if let Ok(value) = parse_number("volume", &self.volume) {
+        if let Ok(value) = parse_number("the volume", &self.volume) {
             self.set_volume_m3(old.to_m3(value));
         }
     }
 
     /// The air conditions, or one sentence naming the field.
     pub fn air(&self) -> Result<AirConditions, String> {
-        let temp_c = parse_number("air temperature", &self.temp_c)?;
+        let temp_c = parse_number("the air temperature", &self.temp_c)?;
         // ISO 9613-1 uses the temperature only: the other fields are not
         // read, so a half-typed humidity does not block the result.
         let (relative_humidity_pct, pressure_pa) = match self.sound_model {
             SpeedOfSoundModel::Iso9613 => {
                 let defaults = AirConditions::default();
                 (
-                    parse_number("relative humidity", &self.relative_humidity_pct)
+                    parse_number("the relative humidity", &self.relative_humidity_pct)
                         .unwrap_or(defaults.relative_humidity_pct),
-                    parse_number("air pressure", &self.pressure_kpa)
+                    parse_number("the air pressure", &self.pressure_kpa)
                         .map_or(defaults.pressure_pa, |kpa| kpa * 1000.0),
                 )
             }
             SpeedOfSoundModel::Cramer => (
-                parse_number("relative humidity", &self.relative_humidity_pct)?,
-                parse_number("air pressure", &self.pressure_kpa)? * 1000.0,
+                parse_number("the relative humidity", &self.relative_humidity_pct)?,
+                parse_number("the air pressure", &self.pressure_kpa)? * 1000.0,
             ),
         };
         Ok(AirConditions {
@@ -341,14 +344,14 @@ impl GeometryDraft {
     /// The geometry as typed (not yet checked by the acoustics layer), or
     /// one sentence naming the field that is not a number.
     pub fn to_geometry(&self) -> Result<CavityGeometry, String> {
-        let volume = parse_number("volume", &self.volume)?;
+        let volume = parse_number("the volume", &self.volume)?;
         let openings = self
             .openings
             .iter()
             .enumerate()
             .map(|(index, draft)| draft.to_opening(index + 1))
             .collect::<Result<Vec<_>, _>>()?;
-        let wall_thickness_mm = parse_number("wall thickness", &self.thickness_mm)?;
+        let wall_thickness_mm = parse_number("the wall thickness", &self.thickness_mm)?;
         Ok(CavityGeometry {
             volume_m3: self.volume_unit.to_m3(volume),
             openings,
@@ -359,72 +362,6 @@ impl GeometryDraft {
         })
     }
 }
-
-/// A typed number, or one sentence: "the volume is empty" / "the volume
-/// \"abc\" is not a number". A decimal comma is read as a point.
-pub fn parse_number(what: &str, text: &str) -> Result<f64, String> {
-    let trimmed = text.trim();
-    if trimmed.is_empty() {
-        return Err(sentence(&format!("the {what} is empty: type a number")));
-    }
-    match trimmed.replace(',', ".").parse::<f64>() {
-        Ok(value) if value.is_finite() => Ok(value),
-        // "NaN" and "inf" parse as floats; say so without echoing them.
-        Ok(_) => Err(sentence(&format!("the {what} must be an ordinary number"))),
-        Err(_) => Err(sentence(&format!(
-            "the {what} \"{trimmed}\" is not a number"
-        ))),
-    }
-}
-
-/// A number as a maker would type it: six significant digits at most,
-/// no trailing zeros ("2", "86.1235", "0.0025").
-pub fn number_text(value: f64) -> String {
-    if !value.is_finite() {
-        return "–".to_owned();
-    }
-    if value == 0.0 {
-        return "0".to_owned();
-    }
-    let magnitude = value.abs().log10().floor() as i32;
-    let decimals = (5 - magnitude).clamp(0, 9) as usize;
-    let text = format!("{value:.decimals$}");
-    let text = if text.contains('.') {
-        text.trim_end_matches('0').trim_end_matches('.').to_owned()
-    } else {
-        text
-    };
-    if text == "-0" {
-        "0".to_owned()
-    } else {
-        text
-    }
-}
-
-/// A signed number with a true minus sign: "+12.3", "−4.0"; "–" when not
-/// finite, so no "NaN" reaches the screen.
-pub fn signed(value: f64, decimals: usize) -> String {
-    if !value.is_finite() {
-        return "–".to_owned();
-    }
-    let text = format!("{value:+.decimals$}");
-    // "-0.0" reads oddly: show zero without a sign.
-    if text[1..].chars().all(|c| c == '0' || c == '.') {
-        return text[1..].to_owned();
-    }
-    text.replace('-', "\u{2212}")
-}
-
-/// A plain number with `decimals` decimals; "–" when not finite.
-pub fn fixed(value: f64, decimals: usize) -> String {
-    if value.is_finite() {
-        format!("{value:.decimals$}").replace('-', "\u{2212}")
-    } else {
-        "–".to_owned()
-    }
-}
-
-pub(crate) use crate::ui::app::sentence;
 
 /// True when two geometries agree to nine significant digits (a geometry
 /// shown as text and read back is not bit-for-bit the same).
@@ -472,40 +409,6 @@ pub fn same_geometry(a: &CavityGeometry, b: &CavityGeometry) -> bool {
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    #[test]
-    fn numbers_are_read_with_one_sentence_on_refusal() {
-        assert_eq!(parse_number("volume", " 2,5 "), Ok(2.5));
-        for bad in ["abc", "1.2.3", "2 L"] {
-            let message = parse_number("volume", bad).unwrap_err();
-            assert!(message.starts_with("The volume \""), "{message}");
-            assert!(message.ends_with("is not a number."), "{message}");
-        }
-        for bad in ["NaN", "inf", "-inf"] {
-            assert_eq!(
-                parse_number("volume", bad).unwrap_err(),
-                "The volume must be an ordinary number."
-            );
-        }
-        assert_eq!(
-            parse_number("volume", "  ").unwrap_err(),
-            "The volume is empty: type a number."
-        );
-    }
-
-    #[test]
-    fn numbers_are_written_as_typed() {
-        assert_eq!(number_text(2.0), "2");
-        assert_eq!(number_text(86.123_456), "86.1235");
-        assert_eq!(number_text(0.0025), "0.0025");
-        assert_eq!(number_text(101.325), "101.325");
-        assert_eq!(number_text(-0.0), "0");
-        assert_eq!(signed(-3.25, 1), "\u{2212}3.2");
-        assert_eq!(signed(12.0, 0), "+12");
-        assert_eq!(signed(-0.01, 1), "0.0");
-        assert_eq!(signed(f64::NAN, 1), "–");
-        assert_eq!(fixed(f64::INFINITY, 1), "–");
-    }
 
     #[test]
     fn the_default_is_the_violin_like_body_and_round_trips() {

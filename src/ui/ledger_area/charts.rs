@@ -10,7 +10,8 @@ use egui_plot::{HLine, Legend, Line, LineStyle, MarkerShape, Plot, Points};
 
 use crate::ledger::Part;
 
-use super::{num, LedgerAreaState};
+use super::LedgerAreaState;
+use crate::text::num;
 use crate::ui::spectrum_plot::{frequency_label, log_frequency_marks};
 
 /// Which chart is shown.

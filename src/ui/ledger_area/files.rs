@@ -257,18 +257,7 @@ fn write_report(path: PathBuf, build: &Build, a4_hz: f64) -> Result<PathBuf, Str
     let html = build_report_html(build, &settings);
     crate::report::write_report(&path, &html)
         .map(|()| path.clone())
-        .map_err(|problem| sentence_of(&problem.to_string()))
-}
-
-fn sentence_of(text: &str) -> String {
-    let mut sentence = text.to_owned();
-    if let Some(first) = sentence.get(..1) {
-        sentence.replace_range(..1, &first.to_uppercase());
-    }
-    if !sentence.ends_with('.') {
-        sentence.push('.');
-    }
-    sentence
+        .map_err(crate::text::error_sentence)
 }
 
 /// Writes `text` to `path` atomically; the sentence to show on failure.

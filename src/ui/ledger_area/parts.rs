@@ -8,7 +8,8 @@ use crate::ledger::compare::{mode5_interval_semitones, plate_modes, top_and_back
 use crate::ledger::{Build, LedgerError, Part, PartKind};
 
 use super::super::commands::{AppCommand, AreaContext};
-use super::{num, parse_number, signed, try_edit, LedgerAreaState, Note};
+use super::{try_edit, LedgerAreaState, Note};
+use crate::text::{num, parse_optional_number, signed};
 
 /// The kinds offered when adding a part.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Default)]
@@ -329,7 +330,7 @@ fn add_part_edit(form: &AddPartForm) -> Result<PartEdit, String> {
 }
 
 fn positive_or_none(text: &str, what: &str) -> Result<Option<f64>, String> {
-    match parse_number(text, what)? {
+    match parse_optional_number(what, text)? {
         Some(value) if value <= 0.0 => Err(format!(
             "{what} is {value} mm; it must be a positive number."
         )),

@@ -9,7 +9,8 @@ use eframe::egui;
 use crate::ledger::{Part, PassInput, PassOutcome, ThicknessReading};
 
 use super::super::commands::{AppCommand, Area, AreaContext};
-use super::{num, parse_number, Note};
+use super::Note;
+use crate::text::{num, parse_optional_number, sentence};
 
 /// One thickness reading being typed.
 #[derive(Clone, Debug, Default, PartialEq)]
@@ -286,7 +287,7 @@ fn readings_editor(ui: &mut egui::Ui, form: &mut RecordForm) {
 
 /// The typed values as a check-ready pass input (modes left empty).
 fn typed_values(form: &RecordForm) -> Result<(f64, PassInput), String> {
-    let mass_g = parse_number(&form.mass_g, "The mass")?
+    let mass_g = parse_optional_number("The mass", &form.mass_g)?
         .ok_or_else(|| "Type the part's mass in grams first.".to_owned())?;
     if mass_g <= 0.0 {
         return Err(format!("The mass is {mass_g} g; it must be more than 0 g."));
@@ -303,7 +304,7 @@ fn typed_values(form: &RecordForm) -> Result<(f64, PassInput), String> {
         } else {
             format!("The thickness at \"{point}\"")
         };
-        let Some(thickness_mm) = parse_number(typed, &what)? else {
+        let Some(thickness_mm) = parse_optional_number(&what, typed)? else {
             continue;
         };
         let point = if point.is_empty() {
@@ -316,9 +317,9 @@ fn typed_values(form: &RecordForm) -> Result<(f64, PassInput), String> {
             thickness_mm,
         });
     }
-    input.air_temp_c = parse_number(&form.air_temp_c, "The air temperature")?;
+    input.air_temp_c = parse_optional_number("The air temperature", &form.air_temp_c)?;
     input.relative_humidity_pct =
-        parse_number(&form.relative_humidity_pct, "The relative humidity")?;
+        parse_optional_number("The relative humidity", &form.relative_humidity_pct)?;
     input.note = form.note.trim().to_owned();
     Ok((mass_g, input))
 }
@@ -343,7 +344,7 @@ fn record(form: &mut RecordForm, part: &Part, ctx: &mut AreaContext) -> Result<(
     let preview = part
         .clone()
         .record_pass(input.clone())
-        .map_err(|e| super::sentence(&e.to_string()))?;
+        .map_err(|e| sentence(&e.to_string()))?;
     ctx.push(AppCommand::RecordPass {
         part: part_name.clone(),
         input,

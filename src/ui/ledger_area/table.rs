@@ -8,7 +8,8 @@ use eframe::egui;
 use crate::ledger::{FrequencyChange, LedgerError, Part, Pass};
 
 use super::super::commands::AreaContext;
-use super::{date_text, num, parse_number, signed, try_edit, LedgerAreaState, Note};
+use super::{try_edit, LedgerAreaState, Note};
+use crate::text::{date_text, num, parse_optional_number, signed};
 
 /// Tallest the table grows before it scrolls, points.
 const TABLE_MAX_HEIGHT: f32 = 320.0;
@@ -291,7 +292,7 @@ fn pass_edit_form(
 }
 
 fn apply_pass_edit(edit: &PassEdit, ctx: &mut AreaContext) -> Result<(), String> {
-    let mass_g = parse_number(&edit.mass_text, "The mass")?
+    let mass_g = parse_optional_number("The mass", &edit.mass_text)?
         .filter(|m| *m > 0.0)
         .ok_or_else(|| "The mass must be a number of grams above 0.".to_owned())?;
     let (part, number, note) = (edit.part.clone(), edit.number, edit.note.trim().to_owned());
