@@ -21,7 +21,7 @@ use std::time::{Duration, Instant};
 use criterion::Criterion;
 use tapwright::analysis::synth::SynthMode;
 use tapwright::analysis::{FoundTap, TapAnalyzer};
-use tapwright::capture::{
+use tapwright::audio::{
     CaptureEvent, CaptureHandle, CaptureSettings, Pacing, SampleGenerator, SourceChoice,
     SyntheticGenerator, SyntheticStrike, SyntheticTaps, TapPipeline,
 };

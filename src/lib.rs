@@ -8,7 +8,7 @@
 pub mod acoustics;
 pub mod analysis;
 pub mod atomic_file;
-pub mod capture;
+pub mod audio;
 pub mod cli;
 pub mod demo;
 pub mod ledger;

@@ -8,7 +8,7 @@ use std::time::{Duration, Instant};
 
 use tapwright::analysis::synth::SynthMode;
 use tapwright::analysis::{analyze_recording, AnalysisSettings, RejectReason, TriggerSettings};
-use tapwright::capture::{
+use tapwright::audio::{
     CaptureError, CaptureEvent, CaptureHandle, CaptureSettings, Direction, OpenSource, Pacing,
     SampleGenerator, SampleSource, SourceChoice, SourceRead, SyntheticGenerator, SyntheticStrike,
     SyntheticTaps,
@@ -473,7 +473,7 @@ fn stop_and_drop_end_the_worker() {
 fn notify_is_called_for_events() {
     let count = std::sync::Arc::new(std::sync::atomic::AtomicUsize::new(0));
     let seen = std::sync::Arc::clone(&count);
-    let notify: tapwright::capture::Notify = std::sync::Arc::new(move || {
+    let notify: tapwright::audio::Notify = std::sync::Arc::new(move || {
         seen.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
     });
     let mut handle = CaptureHandle::start(

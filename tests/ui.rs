@@ -8,7 +8,7 @@ use common::*;
 use eframe::egui;
 use egui_kittest::kittest::Queryable;
 use tapwright::analysis::synth::{add_modes, NoiseGenerator, SynthMode};
-use tapwright::capture::Pacing;
+use tapwright::audio::Pacing;
 use tapwright::ledger::{Family, PartKind};
 use tapwright::ui::{AppCommand, AppOptions, SourceState, StartSource, TapwrightApp};
 
@@ -373,7 +373,7 @@ fn a_new_band_measures_the_taps_already_heard_again() {
     let mut harness = demo_harness();
     demo_finished(&mut harness);
     assert_eq!(harness.state().pass().unwrap().modes.len(), 7);
-    let mut settings = tapwright::capture::CaptureSettings::default();
+    let mut settings = tapwright::audio::CaptureSettings::default();
     settings.analysis.band_low_hz = 300.0;
     settings.analysis.band_high_hz = 600.0;
     harness.state_mut().queue(AppCommand::Listen(

@@ -11,7 +11,7 @@ use super::output::{note, write_stdout};
 use super::report::ReportInput;
 use super::values::parse_count;
 use crate::analysis::{aggregate_taps, RejectReason, TapAnalysis};
-use crate::capture::{
+use crate::audio::{
     list_input_devices, CaptureEvent, CaptureHandle, CaptureSettings, DeviceInfo, SourceChoice,
 };
 use crate::text::read_number;

@@ -8,7 +8,7 @@ use std::time::{Duration, Instant};
 use eframe::egui;
 
 use crate::analysis::{PassResult, DEFAULT_A4_HZ};
-use crate::capture::{
+use crate::audio::{
     CaptureEvent, CaptureHandle, CaptureSettings, DeviceInfo, InputLevel, Pacing, SourceChoice,
 };
 use crate::ledger::Build;
@@ -51,7 +51,7 @@ pub struct AppOptions {
     /// (printed on stderr when set).
     pub started_at: Option<Instant>,
     /// Where the Drive area plays its tone.
-    pub drive_output: crate::capture::OutputChoice,
+    pub drive_output: crate::audio::OutputChoice,
 }
 
 impl Default for AppOptions {
@@ -62,7 +62,7 @@ impl Default for AppOptions {
             build: None,
             sample_build_with_demo: false,
             started_at: None,
-            drive_output: crate::capture::OutputChoice::default(),
+            drive_output: crate::audio::OutputChoice::default(),
         }
     }
 }
@@ -683,7 +683,7 @@ impl TapwrightApp {
         }
     }
 
-    fn capture_opened(&mut self, result: Result<CaptureHandle, crate::capture::CaptureError>) {
+    fn capture_opened(&mut self, result: Result<CaptureHandle, crate::audio::CaptureError>) {
         match result {
             Ok(handle) => {
                 self.input.description = handle.description().to_owned();
@@ -1276,7 +1276,7 @@ impl TapwrightApp {
 
     /// Called by the capture worker after each event: wakes the window
     /// within [`NEWS_REPAINT_DELAY`], so a burst of events costs one frame.
-    fn repaint_hook(&self) -> crate::capture::Notify {
+    fn repaint_hook(&self) -> crate::audio::Notify {
         let ctx = self.ctx.clone();
         Arc::new(move || {
             if let Some(ctx) = &ctx {

@@ -121,7 +121,7 @@ pub enum ListenCommand {
     /// List the input devices again.
     RefreshDevices,
     /// New trigger and analysis settings (applied to taps that follow).
-    SetSettings(crate::capture::CaptureSettings),
+    SetSettings(crate::audio::CaptureSettings),
     /// Average this many of the latest kept taps.
     SetTapsToAverage(usize),
     /// Leave a tap out of the pass (true) or take it back (false).

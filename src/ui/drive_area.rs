@@ -17,11 +17,11 @@ use std::time::Duration;
 
 use eframe::egui;
 
-use crate::capture::tone::{
+use crate::audio::tone::{
     highest_hz, ToneControls, ToneSettings, ToneState, HIGHEST_LEVEL_CAP_DB, LOWEST_HZ,
     LOWEST_LEVEL_DB, SWEEP_PERIOD_RANGE_S, WIDEST_FINE_TUNE_HZ, WIDEST_SWEEP_HZ,
 };
-use crate::capture::{open_output, CaptureError, OutputChoice, ToneOutput};
+use crate::audio::{open_output, CaptureError, OutputChoice, ToneOutput};
 use crate::ledger::Build;
 use crate::text::{note_text, read_number, sentence};
 

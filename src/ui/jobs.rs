@@ -9,7 +9,7 @@ use std::sync::mpsc::{self, Receiver, Sender};
 use eframe::egui;
 
 use crate::analysis::{AnalysisSettings, FoundTap, TapAnalysis, TapAnalyzer, TriggerSettings};
-use crate::capture::{CaptureError, CaptureHandle, CaptureSettings, DeviceInfo, SourceChoice};
+use crate::audio::{CaptureError, CaptureHandle, CaptureSettings, DeviceInfo, SourceChoice};
 use crate::ledger::store::{DiskFingerprint, StoreError};
 use crate::ledger::Build;
 
@@ -238,7 +238,7 @@ impl Jobs {
 
 /// Lists the input devices.
 pub fn list_devices() -> JobDone {
-    JobDone::Devices(crate::capture::list_input_devices())
+    JobDone::Devices(crate::audio::list_input_devices())
 }
 
 /// Opens a capture source.
@@ -246,7 +246,7 @@ pub fn start_capture(
     generation: u64,
     source: SourceChoice,
     settings: CaptureSettings,
-    notify: crate::capture::Notify,
+    notify: crate::audio::Notify,
 ) -> JobDone {
     JobDone::CaptureStarted {
         generation,

@@ -6,7 +6,7 @@ use std::path::PathBuf;
 
 use eframe::egui;
 
-use crate::capture::CaptureSettings;
+use crate::audio::CaptureSettings;
 use crate::text::note_text;
 
 use super::app::{InputView, SourceState};

@@ -2,7 +2,7 @@
 
 use eframe::egui::{self, Color32, Rect, Sense, Stroke};
 
-use crate::capture::InputLevel;
+use crate::audio::InputLevel;
 
 /// Lowest level the meter shows, dB full scale.
 const METER_FLOOR_DBFS: f64 = -80.0;

@@ -6,7 +6,7 @@ use std::time::{Duration, Instant};
 
 use eframe::egui;
 use egui_kittest::Harness;
-use tapwright::capture::Pacing;
+use tapwright::audio::Pacing;
 use tapwright::ui::{AppOptions, SourceState, StartSource, TapwrightApp};
 
 /// Upper bound on waiting for background work, so a broken build fails
