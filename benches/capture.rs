@@ -28,7 +28,7 @@ use tapwright::audio::{
 
 const FS: u32 = 48_000;
 const QUIET_SECONDS: f64 = 60.0;
-/// The worker's block size (READ_CHUNK in src/capture/worker.rs).
+/// The worker's block size (READ_CHUNK in src/audio/input/worker.rs).
 const BLOCK: usize = 2048;
 
 fn generate(taps: SyntheticTaps) -> Vec<f32> {

@@ -80,7 +80,7 @@ fn write_raw(path: &Path, samples: &[i16]) {
 /// `plug` it is read through mmap and the samples come out wrong. So there
 /// is no conversion: the program must ask for exactly the file's format.
 /// tapwright asks a device that offers everything for 16-bit mono at
-/// 48 kHz (see `choose_config` in src/capture/device.rs), which is the
+/// 48 kHz (see `choose_config` in src/audio/device.rs), which is the
 /// file's format.
 fn asoundrc(raw: &Path) -> String {
     format!(

@@ -9,7 +9,7 @@ use std::time::{Duration, Instant};
 use tapwright::analysis::synth::SynthMode;
 use tapwright::analysis::{analyze_recording, AnalysisSettings, RejectReason, TriggerSettings};
 use tapwright::audio::{
-    CaptureError, CaptureEvent, CaptureHandle, CaptureSettings, Direction, OpenSource, Pacing,
+    AudioError, CaptureEvent, CaptureHandle, CaptureSettings, Direction, OpenSource, Pacing,
     SampleGenerator, SampleSource, SourceChoice, SourceRead, SyntheticGenerator, SyntheticStrike,
     SyntheticTaps,
 };
@@ -520,7 +520,7 @@ fn empty_recording_is_refused_at_start() {
 /// What one attempt to open the scripted device does.
 #[derive(Debug)]
 enum Attempt {
-    Fail(CaptureError),
+    Fail(AudioError),
     /// Delivers the samples, then is unplugged (Lost) or goes silent.
     Deliver {
         samples: Vec<f32>,
@@ -534,9 +534,9 @@ struct ScriptedDevice {
 }
 
 impl OpenSource for ScriptedDevice {
-    fn open(&mut self, _ring_capacity_s: f64) -> Result<Box<dyn SampleSource>, CaptureError> {
+    fn open(&mut self, _ring_capacity_s: f64) -> Result<Box<dyn SampleSource>, AudioError> {
         if self.attempts.is_empty() {
-            return Err(CaptureError::DeviceBusy {
+            return Err(AudioError::DeviceBusy {
                 direction: Direction::Input,
                 device: "scripted".to_owned(),
             });
@@ -618,7 +618,7 @@ fn lost_busy_and_silent_devices_are_retried_until_stopped() {
                 samples: one_tap_samples(),
                 then_lost: Some("the scripted device was unplugged".to_owned()),
             },
-            Attempt::Fail(CaptureError::DeviceBusy {
+            Attempt::Fail(AudioError::DeviceBusy {
                 direction: Direction::Input,
                 device: "scripted".to_owned(),
             }),
@@ -682,7 +682,7 @@ fn lost_busy_and_silent_devices_are_retried_until_stopped() {
 #[test]
 fn a_device_that_cannot_open_fails_at_start() {
     let device = ScriptedDevice {
-        attempts: vec![Attempt::Fail(CaptureError::DeviceBusy {
+        attempts: vec![Attempt::Fail(AudioError::DeviceBusy {
             direction: Direction::Input,
             device: "mic".to_owned(),
         })],

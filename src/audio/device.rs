@@ -1,40 +1,24 @@
-//! Audio input devices through cpal: listing them, and a [`DeviceSource`]
-//! that runs a cpal input stream into a sample ring.
-//!
-//! The data callback converts whatever sample format the device delivers
-//! (f32, f64, i8, i16, i24, i32, i64, u8, u16, u24, u32, u64) to f32, mixes
-//! the channels to mono and pushes into the pre-allocated ring; samples that
-//! do not fit are counted, never waited for. Stream errors travel through a
-//! second small ring to the worker. The callback allocates nothing, takes no
-//! lock and makes no system call.
+//! Audio devices through cpal, both ways, written once for the input (the
+//! microphone) and the output (the drive tone): the audio system, listing
+//! the input devices, finding a device by name or id, choosing its stream
+//! configuration, opening errors as one sentence, building a stream for
+//! whatever sample format the device takes, stream errors as sentences,
+//! and closing a stream without waiting on a stuck driver.
 
-use std::time::{Duration, Instant};
+use std::time::Duration;
 
 use cpal::traits::{DeviceTrait, HostTrait, StreamTrait};
 use cpal::{FromSample, SampleFormat, SizedSample, StreamConfig, SupportedStreamConfig};
 
-use super::ring::{sample_ring, RingReader, RingWriter};
-use super::source::{OpenSource, SampleSource, SourceRead};
-use super::{check_sample_rate, ring_capacity_samples, CaptureError, Direction};
+use super::error::{AudioError, Direction};
+use super::settings::check_sample_rate;
 
-/// Stream errors waiting for the worker (more are dropped).
-const ERROR_RING_LEN: usize = 16;
+/// Stream errors waiting to be read (more are dropped).
+pub(crate) const ERROR_RING_LEN: usize = 16;
 /// How long cpal may wait for the backend (ALSA uses it as its poll timeout).
-const BACKEND_TIMEOUT: Duration = Duration::from_millis(500);
+pub(crate) const BACKEND_TIMEOUT: Duration = Duration::from_millis(500);
 /// Longest wait for a stream to close before it is left behind.
 const STREAM_CLOSE_LIMIT: Duration = Duration::from_millis(500);
-/// Sleep between looks at an empty ring. The callback may not wake the
-/// worker (no syscalls there), so the worker polls: 4 ms keeps an armed,
-/// quiet input near 0.5 % of a core and adds at most 4 ms to a tap's event.
-const POLL_SLEEP: Duration = Duration::from_millis(4);
-/// A device that has delivered more than this many times the sound the
-/// wall clock allows (plus [`FAST_DELIVERY_SLACK_S`] for the first
-/// buffers) is not a live input but one with no clock, e.g. ALSA's `null`
-/// device, which returns zeros as fast as they are read, or a `file`
-/// plug-in. Samples it overfills the ring with are not sound the computer
-/// failed to keep up with, so they are not counted as lost.
-const FAST_DELIVERY_RATIO: f64 = 1.5;
-const FAST_DELIVERY_SLACK_S: f64 = 1.0;
 
 /// An input device as `tapwright devices` and the window list it.
 #[derive(Clone, Debug, PartialEq, Eq)]
@@ -55,7 +39,7 @@ pub struct DeviceInfo {
 /// The first audio system that starts (on Linux: ALSA). Every thread that
 /// lists or opens devices comes through here, so alsa-lib's own messages
 /// are silenced on it first.
-pub(crate) fn audio_host() -> Result<cpal::Host, CaptureError> {
+pub(crate) fn audio_host() -> Result<cpal::Host, AudioError> {
     silence_audio_library_messages();
     let mut last_problem = String::from("no audio system is compiled in");
     for id in cpal::available_hosts() {
@@ -64,7 +48,7 @@ pub(crate) fn audio_host() -> Result<cpal::Host, CaptureError> {
             Err(error) => last_problem = error.to_string(),
         }
     }
-    Err(CaptureError::NoAudioSystem {
+    Err(AudioError::NoAudioSystem {
         detail: last_problem,
     })
 }
@@ -101,7 +85,7 @@ fn silence_audio_library_messages() {
 #[cfg(not(target_os = "linux"))]
 fn silence_audio_library_messages() {}
 
-pub(crate) fn device_name(device: &cpal::Device) -> String {
+fn device_name(device: &cpal::Device) -> String {
     match device.description() {
         Ok(description) => description.name().to_owned(),
         Err(_) => device_id(device),
@@ -114,12 +98,12 @@ fn device_id(device: &cpal::Device) -> String {
 
 /// Lists the input devices that can be opened now, the default first.
 /// An empty list means there is no usable input device.
-pub fn list_input_devices() -> Result<Vec<DeviceInfo>, CaptureError> {
+pub fn list_input_devices() -> Result<Vec<DeviceInfo>, AudioError> {
     let host = audio_host()?;
     let default_id = host.default_input_device().map(|d| device_id(&d));
     let mut devices: Vec<cpal::Device> = host
         .input_devices()
-        .map_err(|e| CaptureError::NoAudioSystem {
+        .map_err(|e| AudioError::NoAudioSystem {
             detail: e.to_string(),
         })?
         .collect();
@@ -165,7 +149,7 @@ fn describe(device: &cpal::Device, default_id: Option<&str>) -> Option<DeviceInf
     })
 }
 
-pub(crate) fn is_pcm(format: SampleFormat) -> bool {
+fn is_pcm(format: SampleFormat) -> bool {
     !matches!(
         format,
         SampleFormat::DsdU8 | SampleFormat::DsdU16 | SampleFormat::DsdU32
@@ -173,12 +157,12 @@ pub(crate) fn is_pcm(format: SampleFormat) -> bool {
 }
 
 /// The devices that go one way, the system default among them.
-fn devices_of(host: &cpal::Host, direction: Direction) -> Result<Vec<cpal::Device>, CaptureError> {
+fn devices_of(host: &cpal::Host, direction: Direction) -> Result<Vec<cpal::Device>, AudioError> {
     let listed = match direction {
         Direction::Input => host.input_devices().map(|d| d.collect::<Vec<_>>()),
         Direction::Output => host.output_devices().map(|d| d.collect::<Vec<_>>()),
     };
-    let mut devices = listed.map_err(|e| CaptureError::NoAudioSystem {
+    let mut devices = listed.map_err(|e| AudioError::NoAudioSystem {
         detail: e.to_string(),
     })?;
     if let Some(default) = default_device(host, direction) {
@@ -190,7 +174,7 @@ fn devices_of(host: &cpal::Host, direction: Direction) -> Result<Vec<cpal::Devic
 }
 
 /// The system's default device one way, if there is one.
-pub(crate) fn default_device(host: &cpal::Host, direction: Direction) -> Option<cpal::Device> {
+fn default_device(host: &cpal::Host, direction: Direction) -> Option<cpal::Device> {
     match direction {
         Direction::Input => host.default_input_device(),
         Direction::Output => host.default_output_device(),
@@ -199,11 +183,11 @@ pub(crate) fn default_device(host: &cpal::Host, direction: Direction) -> Option<
 
 /// Finds a device by exact id (with or without the host prefix), exact
 /// name, or a case-insensitive part of exactly one name.
-pub(crate) fn find_device(
+fn find_device(
     host: &cpal::Host,
     wanted: &str,
     direction: Direction,
-) -> Result<cpal::Device, CaptureError> {
+) -> Result<cpal::Device, AudioError> {
     let mut devices = devices_of(host, direction)?;
     let by_id = devices.iter().position(|d| {
         d.id()
@@ -221,12 +205,12 @@ pub(crate) fn find_device(
         .collect();
     match partial.len() {
         1 => Ok(devices.swap_remove(partial.remove(0))),
-        0 => Err(CaptureError::DeviceNotFound {
+        0 => Err(AudioError::DeviceNotFound {
             direction,
             name: wanted.to_owned(),
             known: known_names(&devices),
         }),
-        _ => Err(CaptureError::AmbiguousDevice {
+        _ => Err(AudioError::AmbiguousDevice {
             direction,
             name: wanted.to_owned(),
             matches: partial
@@ -252,32 +236,115 @@ fn known_names(devices: &[cpal::Device]) -> String {
     text
 }
 
-/// The stream configuration to ask for. tapwright measures one channel, so
-/// it asks for what a tap needs and every interface offers: mono before
-/// stereo before more channels (the channels are averaged anyway), 48 kHz
-/// before 44.1 kHz before the highest rate up to 192 kHz, and 16-bit
-/// integer samples before 32-bit, 24-bit and float (16 bits give about
-/// 96 dB of range, far more than the 50–60 dB between a workshop's
-/// background and a firm tap). On a device that converts to anything (an
-/// ALSA plug-in) this asks for plain 16-bit mono at 48 kHz; on a hardware
-/// device it picks among what the hardware does. If the device cannot list
-/// its configurations, its default configuration is used.
+/// A device found and its stream configuration chosen, ready for a stream.
+pub(crate) struct ChosenDevice {
+    device: cpal::Device,
+    /// The device's name, for messages.
+    pub name: String,
+    is_default: bool,
+    direction: Direction,
+    supported: SupportedStreamConfig,
+    /// The rate of the chosen configuration (checked to be one tapwright
+    /// works at).
+    pub sample_rate_hz: u32,
+}
+
+impl ChosenDevice {
+    /// The configuration the stream is built with.
+    pub fn config(&self) -> StreamConfig {
+        self.supported.config()
+    }
+
+    /// "name (48000 Hz, 1 ch, i16)".
+    pub fn description(&self) -> String {
+        format!(
+            "{} ({} Hz, {} ch, {})",
+            self.name,
+            self.sample_rate_hz,
+            self.supported.channels(),
+            self.supported.sample_format()
+        )
+    }
+
+    /// Builds the stream with `maker` for the device's sample format and
+    /// starts it; a failure is one sentence naming the device.
+    pub fn start(&self, maker: impl StreamMaker) -> Result<cpal::Stream, AudioError> {
+        let failed = |e: cpal::Error| open_error(&self.name, self.is_default, self.direction, &e);
+        let stream = build_for_format(
+            &self.device,
+            &self.config(),
+            self.supported.sample_format(),
+            maker,
+        )
+        .map_err(failed)?;
+        stream.play().map_err(failed)?;
+        Ok(stream)
+    }
+}
+
+/// Finds the default device going `direction` (`wanted` None) or the named
+/// one, and chooses its stream configuration.
+pub(crate) fn choose_device(
+    wanted: Option<&str>,
+    direction: Direction,
+) -> Result<ChosenDevice, AudioError> {
+    let host = audio_host()?;
+    let device = match wanted {
+        None => default_device(&host, direction).ok_or(match direction {
+            Direction::Input => AudioError::NoInputDevice,
+            Direction::Output => AudioError::NoOutputDevice,
+        })?,
+        Some(name) => find_device(&host, name, direction)?,
+    };
+    let name = device_name(&device);
+    let is_default = wanted.is_none();
+    let supported = choose_config(&device, &name, is_default, direction)?;
+    let sample_rate_hz = check_sample_rate(supported.sample_rate())?;
+    Ok(ChosenDevice {
+        device,
+        name,
+        is_default,
+        direction,
+        supported,
+        sample_rate_hz,
+    })
+}
+
+/// The stream configuration to ask for. tapwright records one channel and
+/// plays the same tone in every channel, so it asks for what every
+/// interface offers: mono before stereo before more channels, 48 kHz
+/// before 44.1 kHz before the highest rate up to 192 kHz, and the sample
+/// format in the order of [`format_rank`]. On a device that converts to
+/// anything (an ALSA plug-in) this asks for plain 16-bit mono at 48 kHz to
+/// record and float mono at 48 kHz to play; on a hardware device it picks
+/// among what the hardware does. If the device cannot list its
+/// configurations, its default configuration is used.
 fn choose_config(
     device: &cpal::Device,
     name: &str,
     is_default: bool,
-) -> Result<SupportedStreamConfig, CaptureError> {
-    let ranges: Vec<cpal::SupportedStreamConfigRange> = match device.supported_input_configs() {
-        Ok(ranges) => ranges.filter(|c| is_pcm(c.sample_format())).collect(),
-        Err(_) => Vec::new(),
+    direction: Direction,
+) -> Result<SupportedStreamConfig, AudioError> {
+    let listed = match direction {
+        Direction::Input => device
+            .supported_input_configs()
+            .map(|ranges| ranges.collect::<Vec<_>>()),
+        Direction::Output => device
+            .supported_output_configs()
+            .map(|ranges| ranges.collect::<Vec<_>>()),
     };
+    let ranges: Vec<cpal::SupportedStreamConfigRange> = listed
+        .unwrap_or_default()
+        .into_iter()
+        .filter(|c| is_pcm(c.sample_format()))
+        .collect();
     let best = ranges
         .iter()
         .filter_map(|range| {
             let rate = preferred_rate(range)?;
             let config = range.try_with_sample_rate(rate)?;
             Some((
-                config_rank(range.channels(), rate, range.sample_format()),
+                config_rank(direction, range.channels(), rate, range.sample_format()),
                 config,
             ))
         })
@@ -285,18 +352,22 @@ fn choose_config(
     if let Some((_, config)) = best {
         return Ok(config);
     }
-    match device.default_input_config() {
+    let default = match direction {
+        Direction::Input => device.default_input_config(),
+        Direction::Output => device.default_output_config(),
+    };
+    match default {
         Ok(config) if is_pcm(config.sample_format()) => Ok(config),
-        Ok(_) => Err(CaptureError::NoUsableFormat {
-            direction: Direction::Input,
+        Ok(_) => Err(AudioError::NoUsableFormat {
+            direction,
             device: name.to_owned(),
         }),
-        Err(error) => Err(open_error(name, is_default, Direction::Input, &error)),
+        Err(error) => Err(open_error(name, is_default, direction, &error)),
     }
 }
 
 /// 48 kHz, else 44.1 kHz, else the highest rate tapwright accepts.
-pub(crate) fn preferred_rate(range: &cpal::SupportedStreamConfigRange) -> Option<u32> {
+fn preferred_rate(range: &cpal::SupportedStreamConfigRange) -> Option<u32> {
     let (low, high) = (range.min_sample_rate(), range.max_sample_rate());
     let accepted = crate::wav_io::MIN_SAMPLE_RATE_HZ..=crate::wav_io::MAX_SAMPLE_RATE_HZ;
     [48_000, 44_100]
@@ -308,7 +379,12 @@ pub(crate) fn preferred_rate(range: &cpal::SupportedStreamConfigRange) -> Option
 }
 
 /// Larger is better: channels first, then rate, then sample format.
-fn config_rank(channels: u16, rate_hz: u32, format: SampleFormat) -> (u8, u8, u8) {
+fn config_rank(
+    direction: Direction,
+    channels: u16,
+    rate_hz: u32,
+    format: SampleFormat,
+) -> (u8, u8, u8) {
     let channel_rank = match channels {
         1 => 3,
         2 => 2,
@@ -320,27 +396,37 @@ fn config_rank(channels: u16, rate_hz: u32, format: SampleFormat) -> (u8, u8, u8
         44_100 => 1,
         _ => 0,
     };
-    let format_rank = match format {
-        SampleFormat::I16 => 8,
-        SampleFormat::I32 => 7,
-        SampleFormat::I24 => 6,
-        SampleFormat::F32 => 5,
-        SampleFormat::F64 => 4,
-        SampleFormat::U16 => 3,
-        SampleFormat::U24 | SampleFormat::U32 => 2,
+    (channel_rank, rate_rank, format_rank(direction, format))
+}
+
+/// Larger is better. To record, 16-bit integers come first: they give
+/// about 96 dB of range, far more than the 50–60 dB between a workshop's
+/// background and a firm tap, and every interface has them. To play,
+/// 32-bit float comes first: it is what the tone generator makes. Then
+/// 32- and 24-bit integers, the other of the two, 64-bit float, and the
+/// unsigned formats.
+fn format_rank(direction: Direction, format: SampleFormat) -> u8 {
+    use Direction::{Input, Output};
+    match (direction, format) {
+        (Input, SampleFormat::I16) | (Output, SampleFormat::F32) => 8,
+        (_, SampleFormat::I32) => 7,
+        (_, SampleFormat::I24) => 6,
+        (Input, SampleFormat::F32) | (Output, SampleFormat::I16) => 5,
+        (_, SampleFormat::F64) => 4,
+        (_, SampleFormat::U16) => 3,
+        (_, SampleFormat::U24 | SampleFormat::U32) => 2,
         _ => 1,
-    };
-    (channel_rank, rate_rank, format_rank)
+    }
 }
 
 /// Turns a cpal error met while opening into one of ours. `is_default`
 /// says whether the system default was asked for (no name given).
-pub(crate) fn open_error(
+fn open_error(
     device: &str,
     is_default: bool,
     direction: Direction,
     error: &cpal::Error,
-) -> CaptureError {
+) -> AudioError {
     let device = device.to_owned();
     // cpal's own message when it has one (the kind's text is generic).
     let detail = error
@@ -348,28 +434,28 @@ pub(crate) fn open_error(
         .map(|m| format!(" ({})", m.trim_end_matches('.')))
         .unwrap_or_default();
     match error.kind() {
-        cpal::ErrorKind::DeviceBusy => CaptureError::DeviceBusy { direction, device },
+        cpal::ErrorKind::DeviceBusy => AudioError::DeviceBusy { direction, device },
         cpal::ErrorKind::DeviceNotAvailable | cpal::ErrorKind::HostUnavailable if is_default => {
-            CaptureError::DefaultUnavailable {
+            AudioError::DefaultUnavailable {
                 direction,
                 device,
                 detail,
             }
         }
         cpal::ErrorKind::DeviceNotAvailable | cpal::ErrorKind::HostUnavailable => {
-            CaptureError::DeviceUnavailable {
+            AudioError::DeviceUnavailable {
                 direction,
                 device,
                 detail,
             }
         }
-        cpal::ErrorKind::PermissionDenied => CaptureError::PermissionDenied {
+        cpal::ErrorKind::PermissionDenied => AudioError::PermissionDenied {
             direction,
             device,
             detail,
         },
-        cpal::ErrorKind::UnsupportedConfig => CaptureError::NoUsableFormat { direction, device },
-        _ => CaptureError::Open {
+        cpal::ErrorKind::UnsupportedConfig => AudioError::NoUsableFormat { direction, device },
+        _ => AudioError::Open {
             direction,
             device,
             detail: error.to_string().trim_end_matches('.').to_owned(),
@@ -377,135 +463,41 @@ pub(crate) fn open_error(
     }
 }
 
-/// A live input stream read through a ring.
-pub struct DeviceSource {
-    description: String,
-    sample_rate_hz: u32,
-    reader: RingReader,
-    errors: rtrb::Consumer<cpal::Error>,
-    /// Kept alive for as long as the source is; dropping it stops the stream.
-    stream: Option<cpal::Stream>,
-    last_notice: Option<Instant>,
-    pace: DeliveryPace,
+/// Builds a cpal stream for one sample type; [`ChosenDevice::start`] picks
+/// the type from the device's sample format. The input converts each type
+/// to f32, the output converts f32 to it, so every type offers both.
+pub(crate) trait StreamMaker {
+    /// Builds the stream with samples of type `T`.
+    fn build<T>(
+        self,
+        device: &cpal::Device,
+        config: &StreamConfig,
+    ) -> Result<cpal::Stream, cpal::Error>
+    where
+        T: SizedSample + FromSample<f32> + Send + 'static,
+        f32: FromSample<T>;
 }
 
-/// How fast the device delivers, to tell a live input that the worker
-/// fell behind from a device that delivers faster than real time.
-#[derive(Debug)]
-struct DeliveryPace {
-    opened_at: Instant,
-    samples_read: u64,
-    /// Drops seen so far (the ring's running total when last looked at).
-    drops_seen: u64,
-    /// The part of `drops_seen` that came while the device ran faster
-    /// than real time.
-    drops_while_fast: u64,
-    told_fast: bool,
-}
-
-impl DeliveryPace {
-    fn new() -> Self {
-        Self {
-            opened_at: Instant::now(),
-            samples_read: 0,
-            drops_seen: 0,
-            drops_while_fast: 0,
-            told_fast: false,
-        }
-    }
-
-    /// Seconds of sound delivered against seconds since the stream opened.
-    fn delivered_and_elapsed_s(&self, waiting: usize, sample_rate_hz: u32) -> (f64, f64) {
-        let delivered = self.samples_read + self.drops_seen + waiting as u64;
-        (
-            delivered as f64 / f64::from(sample_rate_hz),
-            self.opened_at.elapsed().as_secs_f64(),
-        )
-    }
-
-    /// Drops that are sound a live input lost.
-    fn lost_samples(&self) -> u64 {
-        self.drops_seen - self.drops_while_fast
-    }
-}
-
-impl std::fmt::Debug for DeviceSource {
-    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
-        f.debug_struct("DeviceSource")
-            .field("description", &self.description)
-            .field("sample_rate_hz", &self.sample_rate_hz)
-            .finish_non_exhaustive()
-    }
-}
-
-/// Opens the default input (`None`) or the named one, with a ring of
-/// `ring_capacity_s` seconds, and starts it.
-pub fn open_device(
-    wanted: Option<&str>,
-    ring_capacity_s: f64,
-) -> Result<DeviceSource, CaptureError> {
-    let host = audio_host()?;
-    let device = match wanted {
-        None => host
-            .default_input_device()
-            .ok_or(CaptureError::NoInputDevice)?,
-        Some(name) => find_device(&host, name, Direction::Input)?,
-    };
-    let name = device_name(&device);
-    let is_default = wanted.is_none();
-    let supported = choose_config(&device, &name, is_default)?;
-    let sample_rate_hz = check_sample_rate(supported.sample_rate())?;
-    let config: StreamConfig = supported.config();
-    let (writer, reader) = sample_ring(ring_capacity_samples(ring_capacity_s, sample_rate_hz));
-    let (error_writer, errors) = rtrb::RingBuffer::new(ERROR_RING_LEN);
-    let stream = build_stream(
-        &device,
-        &config,
-        supported.sample_format(),
-        writer,
-        error_writer,
-    )
-    .map_err(|e| open_error(&name, is_default, Direction::Input, &e))?;
-    stream
-        .play()
-        .map_err(|e| open_error(&name, is_default, Direction::Input, &e))?;
-    let channels = config.channels;
-    Ok(DeviceSource {
-        description: format!(
-            "{name} ({} Hz, {channels} ch, {})",
-            sample_rate_hz,
-            supported.sample_format()
-        ),
-        sample_rate_hz,
-        reader,
-        errors,
-        stream: Some(stream),
-        last_notice: None,
-        pace: DeliveryPace::new(),
-    })
-}
-
-fn build_stream(
+fn build_for_format(
     device: &cpal::Device,
     config: &StreamConfig,
     format: SampleFormat,
-    writer: RingWriter,
-    errors: rtrb::Producer<cpal::Error>,
+    maker: impl StreamMaker,
 ) -> Result<cpal::Stream, cpal::Error> {
     use cpal::{I24, U24};
     match format {
-        SampleFormat::F32 => build_typed::<f32>(device, config, writer, errors),
-        SampleFormat::F64 => build_typed::<f64>(device, config, writer, errors),
-        SampleFormat::I8 => build_typed::<i8>(device, config, writer, errors),
-        SampleFormat::I16 => build_typed::<i16>(device, config, writer, errors),
-        SampleFormat::I24 => build_typed::<I24>(device, config, writer, errors),
-        SampleFormat::I32 => build_typed::<i32>(device, config, writer, errors),
-        SampleFormat::I64 => build_typed::<i64>(device, config, writer, errors),
-        SampleFormat::U8 => build_typed::<u8>(device, config, writer, errors),
-        SampleFormat::U16 => build_typed::<u16>(device, config, writer, errors),
-        SampleFormat::U24 => build_typed::<U24>(device, config, writer, errors),
-        SampleFormat::U32 => build_typed::<u32>(device, config, writer, errors),
-        SampleFormat::U64 => build_typed::<u64>(device, config, writer, errors),
+        SampleFormat::F32 => maker.build::<f32>(device, config),
+        SampleFormat::F64 => maker.build::<f64>(device, config),
+        SampleFormat::I8 => maker.build::<i8>(device, config),
+        SampleFormat::I16 => maker.build::<i16>(device, config),
+        SampleFormat::I24 => maker.build::<I24>(device, config),
+        SampleFormat::I32 => maker.build::<i32>(device, config),
+        SampleFormat::I64 => maker.build::<i64>(device, config),
+        SampleFormat::U8 => maker.build::<u8>(device, config),
+        SampleFormat::U16 => maker.build::<u16>(device, config),
+        SampleFormat::U24 => maker.build::<U24>(device, config),
+        SampleFormat::U32 => maker.build::<u32>(device, config),
+        SampleFormat::U64 => maker.build::<u64>(device, config),
         _ => Err(cpal::Error::with_message(
             cpal::ErrorKind::UnsupportedConfig,
             format!("the {format} sample format is not PCM"),
@@ -513,177 +505,54 @@ fn build_stream(
     }
 }
 
-/// Builds the stream for sample type `T`. The data callback is the only
-/// code on the audio thread: convert, mix, push, count.
-fn build_typed<T>(
-    device: &cpal::Device,
-    config: &StreamConfig,
-    mut writer: RingWriter,
-    mut errors: rtrb::Producer<cpal::Error>,
-) -> Result<cpal::Stream, cpal::Error>
-where
-    T: SizedSample + Send + 'static,
-    f32: FromSample<T>,
-{
-    let channels = usize::from(config.channels);
-    device.build_input_stream_raw(
-        *config,
-        T::FORMAT,
-        move |data: &cpal::Data, _info: &cpal::InputCallbackInfo| {
-            if let Some(samples) = data.as_slice::<T>() {
-                writer.push_interleaved(samples, channels, <f32 as FromSample<T>>::from_sample_);
-            }
-        },
-        move |error: cpal::Error| {
-            // Full ring: an older error is already waiting; drop this one.
-            let _ = errors.push(error);
-        },
-        Some(BACKEND_TIMEOUT),
-    )
+/// What a stream error means for the maker.
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub(crate) enum StreamProblem {
+    /// The device is gone; one sentence saying so.
+    Lost(String),
+    /// A passing problem worth a notice.
+    Notice(String),
 }
 
-impl DeviceSource {
-    /// Takes in the ring's drop count. Drops while the device delivers
-    /// faster than real time are not losses; the first time that happens
-    /// the user is told, once, what kind of device this is.
-    fn account_drops(&mut self) -> Option<SourceRead> {
-        let dropped = self.reader.dropped_samples();
-        let new_drops = dropped.saturating_sub(self.pace.drops_seen);
-        if new_drops == 0 {
-            return None;
-        }
-        self.pace.drops_seen = dropped;
-        let (delivered_s, elapsed_s) = self
-            .pace
-            .delivered_and_elapsed_s(self.reader.available(), self.sample_rate_hz);
-        if delivered_s <= FAST_DELIVERY_RATIO * elapsed_s + FAST_DELIVERY_SLACK_S {
-            return None;
-        }
-        self.pace.drops_while_fast += new_drops;
-        if std::mem::replace(&mut self.pace.told_fast, true) {
-            return None;
-        }
-        Some(SourceRead::Notice(format!(
-            "the input {} delivers sound faster than real time ({delivered_s:.0} s of sound in {elapsed_s:.1} s), so it is not a live microphone; what did not fit the buffer was skipped",
-            self.description
-        )))
-    }
-
-    /// The first stream error that means the device is gone, as a sentence;
-    /// lesser problems become a notice at most once a second.
-    fn check_errors(&mut self) -> Option<SourceRead> {
-        while let Ok(error) = self.errors.pop() {
-            match error.kind() {
-                cpal::ErrorKind::DeviceNotAvailable
-                | cpal::ErrorKind::StreamInvalidated
-                | cpal::ErrorKind::HostUnavailable
-                | cpal::ErrorKind::PermissionDenied => {
-                    return Some(SourceRead::Lost(format!(
-                        "the input device {} stopped working ({})",
-                        self.description,
-                        error.to_string().trim_end_matches('.')
-                    )));
-                }
-                cpal::ErrorKind::RealtimeDenied => {}
-                _ => {
-                    let due = self
-                        .last_notice
-                        .is_none_or(|t| t.elapsed() >= Duration::from_secs(1));
-                    if due {
-                        self.last_notice = Some(Instant::now());
-                        return Some(SourceRead::Notice(format!(
-                            "the input device reported a problem: {}",
-                            error.to_string().trim_end_matches('.')
-                        )));
-                    }
-                }
-            }
-        }
-        None
+/// A stream error of the device `description` going `direction` as a
+/// sentence; None for what the maker need not hear (a refused real-time
+/// priority).
+pub(crate) fn stream_problem(
+    direction: Direction,
+    description: &str,
+    error: &cpal::Error,
+) -> Option<StreamProblem> {
+    let detail = error.to_string();
+    let detail = detail.trim_end_matches('.');
+    match error.kind() {
+        cpal::ErrorKind::RealtimeDenied => None,
+        cpal::ErrorKind::DeviceNotAvailable
+        | cpal::ErrorKind::StreamInvalidated
+        | cpal::ErrorKind::HostUnavailable
+        | cpal::ErrorKind::PermissionDenied => Some(StreamProblem::Lost(format!(
+            "the {direction} device {description} stopped working ({detail})"
+        ))),
+        _ => Some(StreamProblem::Notice(format!(
+            "the {direction} device reported a problem: {detail}"
+        ))),
     }
 }
 
-impl SampleSource for DeviceSource {
-    fn description(&self) -> &str {
-        &self.description
-    }
-
-    fn sample_rate_hz(&self) -> u32 {
-        self.sample_rate_hz
-    }
-
-    fn read(&mut self, out: &mut [f32], max_wait: Duration) -> SourceRead {
-        let deadline = Instant::now() + max_wait;
-        if let Some(notice) = self.account_drops() {
-            return notice;
-        }
-        loop {
-            let n = self.reader.pop_into(out);
-            if n > 0 {
-                self.pace.samples_read += n as u64;
-                return SourceRead::Samples(n);
-            }
-            if let Some(problem) = self.check_errors() {
-                return problem;
-            }
-            if Instant::now() >= deadline {
-                return SourceRead::Waiting;
-            }
-            std::thread::sleep(POLL_SLEEP);
-        }
-    }
-
-    /// Only drops while the device kept to real time: those are sound the
-    /// worker was too slow to take.
-    fn dropped_samples(&self) -> u64 {
-        self.pace.lost_samples()
-    }
-
-    fn is_live(&self) -> bool {
-        true
-    }
-}
-
-impl Drop for DeviceSource {
-    /// Closes the stream on a helper thread and waits at most
-    /// [`STREAM_CLOSE_LIMIT`]. A backend thread that never returns (a stuck
-    /// driver; or the ALSA `file` plug-in at the end of its file in recent
-    /// alsa-lib, whose reads of 0 frames make cpal's reader loop for ever)
-    /// is left behind instead of hanging the worker; it ends with the
-    /// program.
-    fn drop(&mut self) {
-        let Some(stream) = self.stream.take() else {
-            return;
-        };
-        let (closed, wait) = std::sync::mpsc::channel();
-        let closer = std::thread::Builder::new()
-            .name("tapwright-stream-close".to_owned())
-            .spawn(move || {
-                silence_audio_library_messages();
-                drop(stream);
-                let _ = closed.send(());
-            });
-        if closer.is_ok() {
-            let _ = wait.recv_timeout(STREAM_CLOSE_LIMIT);
-        }
-    }
-}
-
-/// Opens (and reopens) an input device by name.
-#[derive(Debug)]
-pub(crate) struct DeviceOpener {
-    pub(crate) wanted: Option<String>,
-}
-
-impl OpenSource for DeviceOpener {
-    fn open(&mut self, ring_capacity_s: f64) -> Result<Box<dyn SampleSource>, CaptureError> {
-        Ok(Box::new(open_device(
-            self.wanted.as_deref(),
-            ring_capacity_s,
-        )?))
-    }
-
-    fn can_reopen(&self) -> bool {
-        true
+/// Closes `stream` on a helper thread and waits at most
+/// [`STREAM_CLOSE_LIMIT`]. A backend thread that never returns (a stuck
+/// driver; or the ALSA `file` plug-in at the end of its file in recent
+/// alsa-lib, whose reads of 0 frames make cpal's reader loop for ever) is
+/// left behind instead of hanging the caller; it ends with the program.
+pub(crate) fn close_stream(stream: cpal::Stream) {
+    let (closed, wait) = std::sync::mpsc::channel();
+    let closer = std::thread::Builder::new()
+        .name("tapwright-stream-close".to_owned())
+        .spawn(move || {
+            silence_audio_library_messages();
+            drop(stream);
+            let _ = closed.send(());
+        });
+    if closer.is_ok() {
+        let _ = wait.recv_timeout(STREAM_CLOSE_LIMIT);
     }
 }

@@ -683,7 +683,7 @@ impl TapwrightApp {
         }
     }
 
-    fn capture_opened(&mut self, result: Result<CaptureHandle, crate::audio::CaptureError>) {
+    fn capture_opened(&mut self, result: Result<CaptureHandle, crate::audio::AudioError>) {
         match result {
             Ok(handle) => {
                 self.input.description = handle.description().to_owned();

@@ -21,7 +21,7 @@ use crate::audio::tone::{
     highest_hz, ToneControls, ToneSettings, ToneState, HIGHEST_LEVEL_CAP_DB, LOWEST_HZ,
     LOWEST_LEVEL_DB, SWEEP_PERIOD_RANGE_S, WIDEST_FINE_TUNE_HZ, WIDEST_SWEEP_HZ,
 };
-use crate::audio::{open_output, CaptureError, OutputChoice, ToneOutput};
+use crate::audio::{open_output, AudioError, OutputChoice, ToneOutput};
 use crate::ledger::Build;
 use crate::text::{note_text, read_number, sentence};
 
@@ -50,7 +50,7 @@ pub struct DriveAreaState {
     output: Option<ToneOutput>,
     /// The settings last given to the playing output.
     sent: Option<ToneSettings>,
-    opening: Option<Receiver<Result<ToneOutput, CaptureError>>>,
+    opening: Option<Receiver<Result<ToneOutput, AudioError>>>,
     /// True while the tone should sound (a Start not yet stopped).
     wanted: bool,
     note: Option<(String, bool)>,
@@ -206,7 +206,7 @@ impl DriveAreaState {
         let opened = match receive.try_recv() {
             Ok(opened) => opened,
             Err(TryRecvError::Empty) => return,
-            Err(TryRecvError::Disconnected) => Err(CaptureError::Thread {
+            Err(TryRecvError::Disconnected) => Err(AudioError::Thread {
                 detail: "the output thread ended without an answer".to_owned(),
             }),
         };

@@ -9,7 +9,7 @@ use std::sync::mpsc::{self, Receiver, Sender};
 use eframe::egui;
 
 use crate::analysis::{AnalysisSettings, FoundTap, TapAnalysis, TapAnalyzer, TriggerSettings};
-use crate::audio::{CaptureError, CaptureHandle, CaptureSettings, DeviceInfo, SourceChoice};
+use crate::audio::{AudioError, CaptureHandle, CaptureSettings, DeviceInfo, SourceChoice};
 use crate::ledger::store::{DiskFingerprint, StoreError};
 use crate::ledger::Build;
 
@@ -32,12 +32,12 @@ pub enum FilePurpose {
 /// The result of a job.
 pub enum JobDone {
     /// The input devices, or why they cannot be listed.
-    Devices(Result<Vec<DeviceInfo>, CaptureError>),
+    Devices(Result<Vec<DeviceInfo>, AudioError>),
     /// A capture source opened (or failed to). `generation` tells stale
     /// results (the maker chose another source meanwhile) from current ones.
     CaptureStarted {
         generation: u64,
-        result: Result<CaptureHandle, CaptureError>,
+        result: Result<CaptureHandle, AudioError>,
     },
     /// The maker chose a file (None: the dialog was cancelled).
     FileChosen {

@@ -7,7 +7,7 @@
 
 use std::time::Duration;
 
-use super::CaptureError;
+use crate::audio::error::AudioError;
 
 /// What one read from a source gave.
 #[derive(Clone, Debug, PartialEq)]
@@ -48,7 +48,7 @@ pub trait SampleSource: Send {
 /// Something that can open (and, after a loss, reopen) a source.
 pub trait OpenSource: Send + std::fmt::Debug {
     /// Opens the source with a ring of `ring_capacity_s` seconds.
-    fn open(&mut self, ring_capacity_s: f64) -> Result<Box<dyn SampleSource>, CaptureError>;
+    fn open(&mut self, ring_capacity_s: f64) -> Result<Box<dyn SampleSource>, AudioError>;
 
     /// False for sources that cannot come back once lost or ended
     /// (recordings); the worker then stops instead of retrying.

@@ -5,8 +5,8 @@
 use std::time::{Instant, SystemTime};
 
 use super::events::{CaptureEvent, InputLevel};
-use super::CaptureSettings;
 use crate::analysis::{TapAnalyzer, TapTrigger, TriggerEvent};
+use crate::audio::settings::CaptureSettings;
 
 /// Full-scale fraction the level meter calls clipped (the trigger's rule).
 const CLIP_LEVEL: f32 = 0.99;

@@ -7,10 +7,12 @@
 
 use std::f64::consts::PI;
 
+use super::feeder::FedSource;
 use super::feeder::SampleGenerator;
 use super::source::{OpenSource, SampleSource};
-use super::{CaptureError, FedSource, Pacing};
 use crate::analysis::synth::{NoiseGenerator, SynthMode};
+use crate::audio::error::AudioError;
+use crate::audio::settings::Pacing;
 
 /// Contact time of the made-up mallet.
 const CONTACT_MS: f64 = 0.8;
@@ -108,8 +110,10 @@ pub struct SyntheticGenerator {
 impl SyntheticGenerator {
     /// A generator for `taps`; fails on a rate out of range or a
     /// zero-length source.
-    pub fn new(taps: SyntheticTaps) -> Result<Self, CaptureError> {
-        let rate = f64::from(super::check_sample_rate(taps.sample_rate_hz)?);
+    pub fn new(taps: SyntheticTaps) -> Result<Self, AudioError> {
+        let rate = f64::from(crate::audio::settings::check_sample_rate(
+            taps.sample_rate_hz,
+        )?);
         let to_samples = |s: f64| {
             if s.is_finite() && s > 0.0 {
                 (s * rate).round() as u64
@@ -119,7 +123,7 @@ impl SyntheticGenerator {
         };
         let end = taps.length_s.map(to_samples);
         if end == Some(0) {
-            return Err(CaptureError::EmptySource {
+            return Err(AudioError::EmptySource {
                 what: "synthetic source".to_owned(),
             });
         }
@@ -239,7 +243,7 @@ pub(crate) struct SyntheticOpener {
 }
 
 impl OpenSource for SyntheticOpener {
-    fn open(&mut self, ring_capacity_s: f64) -> Result<Box<dyn SampleSource>, CaptureError> {
+    fn open(&mut self, ring_capacity_s: f64) -> Result<Box<dyn SampleSource>, AudioError> {
         let generator = SyntheticGenerator::new(self.taps.clone())?;
         Ok(Box::new(FedSource::start(
             Box::new(generator),

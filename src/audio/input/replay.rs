@@ -1,8 +1,10 @@
 //! A recording played back as if it were coming in from a microphone.
 
+use super::feeder::FedSource;
 use super::feeder::SampleGenerator;
 use super::source::{OpenSource, SampleSource};
-use super::{CaptureError, FedSource, Pacing};
+use crate::audio::error::AudioError;
+use crate::audio::settings::Pacing;
 use crate::wav_io::MonoRecording;
 
 /// Plays a [`MonoRecording`] from the start, once or over and over.
@@ -15,13 +17,13 @@ pub struct ReplayGenerator {
 
 impl ReplayGenerator {
     /// A generator for `recording`; fails if it holds no samples.
-    pub fn new(recording: MonoRecording, looped: bool) -> Result<Self, CaptureError> {
+    pub fn new(recording: MonoRecording, looped: bool) -> Result<Self, AudioError> {
         if recording.samples.is_empty() {
-            return Err(CaptureError::EmptySource {
+            return Err(AudioError::EmptySource {
                 what: "recording".to_owned(),
             });
         }
-        super::check_sample_rate(recording.sample_rate_hz)?;
+        crate::audio::settings::check_sample_rate(recording.sample_rate_hz)?;
         Ok(Self {
             recording,
             position: 0,
@@ -71,8 +73,8 @@ pub(crate) struct ReplayOpener {
 }
 
 impl OpenSource for ReplayOpener {
-    fn open(&mut self, ring_capacity_s: f64) -> Result<Box<dyn SampleSource>, CaptureError> {
-        let generator = self.generator.take().ok_or(CaptureError::EmptySource {
+    fn open(&mut self, ring_capacity_s: f64) -> Result<Box<dyn SampleSource>, AudioError> {
+        let generator = self.generator.take().ok_or(AudioError::EmptySource {
             what: "recording".to_owned(),
         })?;
         Ok(Box::new(FedSource::start(

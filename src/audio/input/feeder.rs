@@ -10,7 +10,8 @@ use std::time::{Duration, Instant};
 
 use super::ring::{sample_ring, RingReader, RingWriter};
 use super::source::{SampleSource, SourceRead};
-use super::{check_sample_rate, ring_capacity_samples, CaptureError, Pacing};
+use crate::audio::error::AudioError;
+use crate::audio::settings::{check_sample_rate, ring_capacity_samples, Pacing};
 
 /// Block length the feeder works in (like a device period).
 const FEED_BLOCK_MS: f64 = 5.0;
@@ -52,7 +53,7 @@ impl FedSource {
         generator: Box<dyn SampleGenerator>,
         pacing: Pacing,
         ring_capacity_s: f64,
-    ) -> Result<Self, CaptureError> {
+    ) -> Result<Self, AudioError> {
         let sample_rate_hz = check_sample_rate(generator.sample_rate_hz())?;
         let description = generator.description();
         let (writer, reader) = sample_ring(ring_capacity_samples(ring_capacity_s, sample_rate_hz));
@@ -61,7 +62,7 @@ impl FedSource {
         let thread = std::thread::Builder::new()
             .name("tapwright-feeder".to_owned())
             .spawn(move || feed(generator, pacing, writer, &thread_flags))
-            .map_err(|e| CaptureError::Thread {
+            .map_err(|e| AudioError::Thread {
                 detail: e.to_string(),
             })?;
         Ok(Self {

@@ -16,13 +16,14 @@ use std::sync::Arc;
 use std::thread::JoinHandle;
 use std::time::{Duration, Instant};
 
-use super::device::DeviceOpener;
+use super::device_source::DeviceOpener;
 use super::events::{CaptureEvent, InputLevel};
 use super::pipeline::TapPipeline;
 use super::replay::{ReplayGenerator, ReplayOpener};
 use super::source::{OpenSource, SampleSource, SourceRead};
 use super::synthetic::{SyntheticGenerator, SyntheticOpener};
-use super::{CaptureError, CaptureSettings, SourceChoice, SILENCE_LIMIT};
+use crate::audio::error::AudioError;
+use crate::audio::settings::{CaptureSettings, SourceChoice, SILENCE_LIMIT};
 
 /// Called after each event is sent, e.g. to ask the window to repaint.
 pub type Notify = Arc<dyn Fn() + Send + Sync>;
@@ -72,7 +73,7 @@ impl CaptureHandle {
         source: SourceChoice,
         settings: CaptureSettings,
         notify: Option<Notify>,
-    ) -> Result<CaptureHandle, CaptureError> {
+    ) -> Result<CaptureHandle, AudioError> {
         let opener = opener_for(source)?;
         let (event_sender, events) = mpsc::sync_channel(EVENT_CHANNEL_LEN);
         let (commands, command_receiver) = mpsc::channel();
@@ -86,7 +87,7 @@ impl CaptureHandle {
         let thread = std::thread::Builder::new()
             .name("tapwright-capture".to_owned())
             .spawn(move || run_worker(opener, settings, command_receiver, outlet, ready_sender))
-            .map_err(|e| CaptureError::Thread {
+            .map_err(|e| AudioError::Thread {
                 detail: e.to_string(),
             })?;
         let opened = ready.recv();
@@ -105,7 +106,7 @@ impl CaptureHandle {
             }
             Err(_) => {
                 let _ = thread.join();
-                Err(CaptureError::WorkerGone)
+                Err(AudioError::WorkerGone)
             }
         }
     }
@@ -122,10 +123,10 @@ impl CaptureHandle {
 
     /// Sends new settings; the worker applies them between blocks without
     /// restarting the stream. Fails only if the worker has ended.
-    pub fn set_settings(&self, settings: CaptureSettings) -> Result<(), CaptureError> {
+    pub fn set_settings(&self, settings: CaptureSettings) -> Result<(), AudioError> {
         self.commands
             .send(Command::Settings(settings))
-            .map_err(|_| CaptureError::WorkerGone)
+            .map_err(|_| AudioError::WorkerGone)
     }
 
     /// The source as it was opened at start (name and format).
@@ -161,7 +162,7 @@ impl Drop for CaptureHandle {
     }
 }
 
-fn opener_for(source: SourceChoice) -> Result<Box<dyn OpenSource>, CaptureError> {
+fn opener_for(source: SourceChoice) -> Result<Box<dyn OpenSource>, AudioError> {
     Ok(match source {
         SourceChoice::Device(wanted) => Box::new(DeviceOpener { wanted }),
         SourceChoice::Replay {
@@ -244,7 +245,7 @@ fn run_worker(
     settings: CaptureSettings,
     commands: Receiver<Command>,
     outlet: EventOutlet,
-    ready: Sender<Result<(String, u32), CaptureError>>,
+    ready: Sender<Result<(String, u32), AudioError>>,
 ) {
     let mut source = match opener.open(settings.ring_capacity_s) {
         Ok(source) => source,
