@@ -436,7 +436,7 @@ fn settings_change_while_running() {
 #[test]
 fn stop_and_drop_end_the_worker() {
     for use_drop in [false, true] {
-        let taps = SyntheticTaps::demo_plate();
+        let taps = tapwright::demo::demo_plate_taps();
         let mut handle = CaptureHandle::start(
             SourceChoice::Synthetic {
                 taps,

@@ -28,10 +28,9 @@ use std::collections::{BTreeSet, HashMap};
 use eframe::egui;
 
 use super::commands::{AppCommand, AreaContext};
+use crate::demo::SAMPLE_BUILDS;
 use crate::ledger::{Build, Family, LedgerError, Part};
 use crate::text::{capitalised, date_text, sentence};
-
-pub use files::SAMPLE_BUILDS;
 
 /// What the Ledger area remembers between frames (selection, chart view,
 /// text being typed …). Owned by the app.
@@ -490,7 +489,7 @@ fn do_replace(state: &mut LedgerAreaState, ctx: &mut AreaContext, action: Replac
             ctx.push(AppCommand::OpenBuild(path));
         }
         Replace::OpenDialog => state.files.choose_build_to_open(),
-        Replace::Sample(index) => match files::load_sample(index) {
+        Replace::Sample(index) => match load_sample(index) {
             Ok(build) => {
                 state.selected_part = None;
                 let title = build.name.clone();
@@ -645,6 +644,14 @@ fn central(ui: &mut egui::Ui, state: &mut LedgerAreaState, build: &Build, ctx: &
 }
 
 // ----- helpers shared by the submodules ------------------------------------
+
+/// Sample build `index` (in menu order), or the sentence to show.
+fn load_sample(index: usize) -> Result<Build, String> {
+    let sample = SAMPLE_BUILDS
+        .get(index)
+        .ok_or_else(|| format!("There is no sample build number {}.", index + 1))?;
+    sample.load().map_err(|e| e.to_string())
+}
 
 /// Tries `edit` on a copy of the open build; if the ledger accepts it, asks
 /// the app to make the same change. Returns the ledger's refusal as one

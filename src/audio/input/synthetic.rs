@@ -50,23 +50,6 @@ pub struct SyntheticTaps {
 }
 
 impl SyntheticTaps {
-    /// The invented violin top of the bundled demo, tapped every 2 s for
-    /// ever, over noise about 70 dB below full scale.
-    pub fn demo_plate() -> Self {
-        Self {
-            sample_rate_hz: crate::demo::DEMO_SAMPLE_RATE_HZ,
-            modes: crate::demo::demo_plate_modes(),
-            strikes: vec![SyntheticStrike {
-                at_s: 0.8,
-                strength: 1.0,
-            }],
-            repeat_every_s: Some(2.0),
-            length_s: None,
-            noise_rms: 3e-4,
-            seed: 0x7A9_0002,
-        }
-    }
-
     /// Background noise only (no strikes) for `length_s` seconds.
     pub fn quiet(sample_rate_hz: u32, length_s: f64, noise_rms: f64) -> Self {
         Self {

@@ -3,57 +3,17 @@
 //! (written atomically: a temporary file in the same folder, synced, then
 //! renamed over the target). Each job runs on its own thread and sends one
 //! [`FileDone`] back; the area picks the results up at the start of a frame.
-//!
-//! The sample builds are compiled into the program (`include_str!`) rather
-//! than read from `sample_sessions/` at run time: they then open from any
-//! working folder and from an installed binary, and because the opened copy
-//! has no file, neither Save nor the autosave after a recorded pass can write
-//! over the shipped samples (the maker keeps a copy with Save as…).
 
-use std::path::{Path, PathBuf};
+use std::path::PathBuf;
 use std::sync::mpsc::{self, Receiver, Sender};
 
 use eframe::egui;
 
-use crate::ledger::{csv, store, Build};
+use crate::ledger::{csv, Build};
 use crate::report::{build_report_html, ReportSettings};
 
 use super::super::commands::{AppCommand, AreaContext};
 use super::Note;
-
-/// A demo build shipped with tapwright.
-#[derive(Clone, Copy, Debug)]
-pub struct SampleBuild {
-    /// The name in the menu.
-    pub title: &'static str,
-    /// Where it lives in the repository (named in load errors).
-    pub file: &'static str,
-    /// The RON text.
-    pub text: &'static str,
-}
-
-/// The sample builds, in menu order (invented makers and instruments, see
-/// `sample_sessions/`).
-pub const SAMPLE_BUILDS: [SampleBuild; 2] = [
-    SampleBuild {
-        title: "Violin \"Wren\" (tops, backs, body)",
-        file: "sample_sessions/violin_wren.ron",
-        text: include_str!("../../../sample_sessions/violin_wren.ron"),
-    },
-    SampleBuild {
-        title: "Guitar \"Larkspur\" (top series, body)",
-        file: "sample_sessions/guitar_larkspur.ron",
-        text: include_str!("../../../sample_sessions/guitar_larkspur.ron"),
-    },
-];
-
-/// Reads sample build `index`.
-pub fn load_sample(index: usize) -> Result<Build, String> {
-    let sample = SAMPLE_BUILDS
-        .get(index)
-        .ok_or_else(|| format!("There is no sample build number {}.", index + 1))?;
-    store::from_ron_text(sample.text, Path::new(sample.file)).map_err(|e| e.to_string())
-}
 
 /// What a file job reports.
 #[derive(Debug)]
@@ -270,15 +230,6 @@ fn write_text(path: PathBuf, text: &str) -> Result<PathBuf, String> {
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    #[test]
-    fn every_sample_build_loads() {
-        for index in 0..SAMPLE_BUILDS.len() {
-            let build = load_sample(index).expect("test value");
-            assert!(!build.parts().is_empty());
-        }
-        assert!(load_sample(SAMPLE_BUILDS.len()).is_err());
-    }
 
     #[test]
     fn file_names_lose_quotes_and_slashes() {

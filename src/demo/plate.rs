@@ -1,4 +1,4 @@
-//! The bundled demo recording: six taps on an invented violin top plate
+//! The demo plate: six taps on an invented violin top plate
 //! (nobody's real instrument), made by [`synthesize_demo_plate`] and stored
 //! in `assets/demo_plate_taps.wav`. The test `tests/demo_assets.rs` checks
 //! that the stored file is exactly what the generator makes, and rewrites
@@ -11,12 +11,11 @@
 use std::path::Path;
 
 use crate::analysis::synth::{add_modes, contact_pulse, NoiseGenerator, SynthMode};
-use crate::ledger::store::{from_ron_text, StoreError};
-use crate::ledger::Build;
+use crate::audio::{SyntheticStrike, SyntheticTaps};
 use crate::wav_io::{read_mono_bytes, MonoRecording, WavError};
 
 /// The demo recording as it ships inside the program.
-pub const DEMO_WAV_BYTES: &[u8] = include_bytes!("../assets/demo_plate_taps.wav");
+pub const DEMO_WAV_BYTES: &[u8] = include_bytes!("../../assets/demo_plate_taps.wav");
 /// Its file name in `assets/`.
 pub const DEMO_WAV_NAME: &str = "demo_plate_taps.wav";
 pub const DEMO_SAMPLE_RATE_HZ: u32 = 48_000;
@@ -81,18 +80,24 @@ pub fn synthesize_demo_plate() -> MonoRecording {
     }
 }
 
+/// The invented violin top of the bundled demo as a live synthetic source,
+/// tapped every 2 s for ever, over noise about 70 dB below full scale.
+pub fn demo_plate_taps() -> SyntheticTaps {
+    SyntheticTaps {
+        sample_rate_hz: DEMO_SAMPLE_RATE_HZ,
+        modes: demo_plate_modes(),
+        strikes: vec![SyntheticStrike {
+            at_s: 0.8,
+            strength: 1.0,
+        }],
+        repeat_every_s: Some(2.0),
+        length_s: None,
+        noise_rms: 3e-4,
+        seed: 0x7A9_0002,
+    }
+}
+
 /// The bundled demo recording, decoded.
 pub fn demo_recording() -> Result<MonoRecording, WavError> {
     read_mono_bytes(DEMO_WAV_BYTES, Path::new(DEMO_WAV_NAME))
-}
-
-/// The invented sample violin build that ships inside the program (a copy
-/// of `sample_sessions/violin_wren.ron`), opened with the demo recording.
-pub const SAMPLE_BUILD_RON: &str = include_str!("../sample_sessions/violin_wren.ron");
-/// Its file name in `sample_sessions/`.
-pub const SAMPLE_BUILD_NAME: &str = "violin_wren.ron";
-
-/// The bundled sample build, parsed.
-pub fn sample_build() -> Result<Build, StoreError> {
-    from_ron_text(SAMPLE_BUILD_RON, Path::new(SAMPLE_BUILD_NAME))
 }
