@@ -7,7 +7,9 @@ use std::sync::mpsc::RecvTimeoutError;
 use std::time::{Duration, Instant};
 
 use tapwright::analysis::synth::SynthMode;
-use tapwright::analysis::{analyze_recording, AnalysisSettings, RejectReason, TriggerSettings};
+use tapwright::analysis::{
+    analyze_recording, AnalysisSettings, RejectReason, Tap, TriggerSettings,
+};
 use tapwright::audio::{
     AudioError, CaptureEvent, CaptureHandle, CaptureSettings, Direction, OpenSource, Pacing,
     SampleGenerator, SampleSource, SourceChoice, SourceRead, SyntheticGenerator, SyntheticStrike,
@@ -74,8 +76,16 @@ fn summary(events: &[CaptureEvent]) -> String {
         .map(|e| match e {
             CaptureEvent::SourceStarted { .. } => "started".to_owned(),
             CaptureEvent::TapStarted { index, .. } => format!("tap{index}…"),
-            CaptureEvent::TapAccepted { index, .. } => format!("tap{index} ok"),
-            CaptureEvent::TapRejected { index, reason, .. } => format!("tap{index} {reason}"),
+            CaptureEvent::Tap(Tap {
+                index,
+                rejected: None,
+                ..
+            }) => format!("tap{index} ok"),
+            CaptureEvent::Tap(Tap {
+                index,
+                rejected: Some(reason),
+                ..
+            }) => format!("tap{index} {reason}"),
             CaptureEvent::Overrun {
                 dropped_samples_total,
             } => format!("overrun {dropped_samples_total}"),
@@ -94,8 +104,9 @@ fn tap_outcomes(events: &[CaptureEvent]) -> Vec<(usize, Option<RejectReason>)> {
     events
         .iter()
         .filter_map(|e| match e {
-            CaptureEvent::TapAccepted { index, .. } => Some((*index, None)),
-            CaptureEvent::TapRejected { index, reason, .. } => Some((*index, Some(*reason))),
+            CaptureEvent::Tap(Tap {
+                index, rejected, ..
+            }) => Some((*index, *rejected)),
             _ => None,
         })
         .collect()
@@ -122,14 +133,14 @@ fn assert_tap_order(events: &[CaptureEvent]) {
                 );
                 started = Some(*index);
             }
-            CaptureEvent::TapAccepted { index, .. } | CaptureEvent::TapRejected { index, .. } => {
+            CaptureEvent::Tap(Tap { index, .. }) => {
                 assert_eq!(*index, expected, "tap out of order: {}", summary(events));
                 let quiet = matches!(
                     event,
-                    CaptureEvent::TapRejected {
-                        reason: RejectReason::TooQuiet,
+                    CaptureEvent::Tap(Tap {
+                        rejected: Some(RejectReason::TooQuiet),
                         ..
-                    }
+                    })
                 );
                 assert!(
                     quiet || started == Some(*index),
@@ -201,14 +212,20 @@ fn replay_finds_every_tap_the_batch_analysis_finds() {
     // Same onsets and the same measurement as the batch analysis.
     for (event, batch_tap) in events.iter().filter(|e| e.is_tap()).zip(&batch.taps) {
         match event {
-            CaptureEvent::TapAccepted {
-                onset_s, analysis, ..
-            } => {
+            CaptureEvent::Tap(Tap {
+                onset_s,
+                analysis: Some(analysis),
+                ..
+            }) => {
                 assert!((onset_s - batch_tap.onset_s).abs() < 1e-9);
                 let batch_analysis = batch_tap.analysis.as_ref().expect("batch analysis");
                 assert_eq!(analysis.modes, batch_analysis.modes);
             }
-            CaptureEvent::TapRejected { onset_s, .. } => {
+            CaptureEvent::Tap(Tap {
+                onset_s,
+                analysis: None,
+                ..
+            }) => {
                 assert!((onset_s - batch_tap.onset_s).abs() < 1e-9)
             }
             _ => unreachable!(),
@@ -243,9 +260,11 @@ fn synthetic_taps_are_found_measured_and_rejected_for_the_right_reasons() {
         summary(&events)
     );
     for event in &events {
-        if let CaptureEvent::TapAccepted {
-            analysis, onset_s, ..
-        } = event
+        if let CaptureEvent::Tap(Tap {
+            analysis: Some(analysis),
+            onset_s,
+            ..
+        }) = event
         {
             assert!(
                 [0.5, 5.0].iter().any(|t| (onset_s - t).abs() < 0.003),
@@ -385,7 +404,11 @@ fn settings_change_while_running() {
 
     let first = collect_until(&handle, |events| events.iter().any(|e| e.is_tap()));
     let first_tap = first.iter().find_map(|e| match e {
-        CaptureEvent::TapAccepted { tap, analysis, .. } => Some((tap.clone(), analysis.clone())),
+        CaptureEvent::Tap(Tap {
+            record: Some(tap),
+            analysis: Some(analysis),
+            ..
+        }) => Some((tap.clone(), analysis.clone())),
         _ => None,
     });
     let (tap, analysis) = first_tap.expect("first tap accepted");
@@ -412,7 +435,11 @@ fn settings_change_while_running() {
         events.iter().filter(|e| e.is_tap()).count() >= 3
     });
     let last = later.iter().rev().find_map(|e| match e {
-        CaptureEvent::TapAccepted { tap, analysis, .. } => Some((tap.clone(), analysis.clone())),
+        CaptureEvent::Tap(Tap {
+            record: Some(tap),
+            analysis: Some(analysis),
+            ..
+        }) => Some((tap.clone(), analysis.clone())),
         _ => None,
     });
     let (tap, analysis) = last.expect("a later tap accepted");
@@ -646,7 +673,11 @@ fn lost_busy_and_silent_devices_are_retried_until_stopped() {
         .iter()
         .filter_map(|e| match e {
             CaptureEvent::SourceStarted { .. } => Some("started".to_owned()),
-            CaptureEvent::TapAccepted { index, .. } => Some(format!("tap{index}")),
+            CaptureEvent::Tap(Tap {
+                index,
+                rejected: None,
+                ..
+            }) => Some(format!("tap{index}")),
             CaptureEvent::DeviceLost { message } if message.contains("no sound has arrived") => {
                 Some("silent".to_owned())
             }

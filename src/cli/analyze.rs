@@ -11,7 +11,7 @@ use anyhow::bail;
 
 use super::measure::MeasureArgs;
 use super::output::write_stdout;
-use super::report::ReportInput;
+use super::report::{rejection_reasons, ReportInput};
 use crate::analysis::{RecordingAnalyzer, RecordingReport};
 use crate::wav_io::WavStream;
 
@@ -39,18 +39,7 @@ pub fn run(args: &AnalyzeArgs) -> anyhow::Result<()> {
     }
     let report = analyzer.finish();
     check_usable(&report, &name, args.measure.margin_db)?;
-    let input = ReportInput {
-        source: name,
-        sample_rate_hz: fs,
-        a4_hz: args.measure.a4,
-        taps_found: report.taps.len(),
-        rejected: report
-            .rejected()
-            .into_iter()
-            .map(|r| (r.index, r.reason))
-            .collect(),
-        modes: &report.pass.modes,
-    };
+    let input = ReportInput::of_taps(name, fs, args.measure.a4, &report.taps, &report.pass.modes);
     write_stdout(&input.render(args.measure.json)?)
 }
 
@@ -60,15 +49,10 @@ fn check_usable(report: &RecordingReport, name: &str, margin_db: f64) -> anyhow:
         bail!("{name} has no tap in it: nothing rose {margin_db} dB above the background");
     }
     if report.taps_used() == 0 {
-        let reasons: Vec<&str> = report
-            .rejected()
-            .iter()
-            .map(|r| r.reason.short_text())
-            .collect();
         bail!(
             "{name} has no usable tap: all {} were rejected ({})",
             report.taps.len(),
-            reasons.join(", ")
+            rejection_reasons(&report.taps)
         );
     }
     Ok(())

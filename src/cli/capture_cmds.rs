@@ -8,9 +8,9 @@ use anyhow::{bail, Context};
 
 use super::measure::{band_for, MeasureArgs};
 use super::output::{note, write_stdout};
-use super::report::ReportInput;
+use super::report::{rejection_reasons, ReportInput};
 use super::values::parse_count;
-use crate::analysis::{aggregate_taps, RejectReason, TapAnalysis};
+use crate::analysis::{pass_of_taps, Tap};
 use crate::audio::{
     list_input_devices, CaptureEvent, CaptureHandle, CaptureSettings, DeviceInfo, SourceChoice,
 };
@@ -98,13 +98,18 @@ fn device_line(device: &DeviceInfo) -> String {
     )
 }
 
-/// What `listen` has collected so far.
+/// What `listen` has collected so far: every tap heard (records dropped
+/// once saved), and the samples lost.
 #[derive(Default)]
 struct Collected {
-    taps_found: usize,
-    accepted: Vec<TapAnalysis>,
-    rejected: Vec<(usize, RejectReason)>,
+    taps: Vec<Tap>,
     dropped_samples: u64,
+}
+
+impl Collected {
+    fn accepted(&self) -> usize {
+        self.taps.iter().filter(|t| t.is_accepted()).count()
+    }
 }
 
 /// `tapwright listen`: capture until enough taps are accepted or time is up,
@@ -167,7 +172,7 @@ fn listen_settings(args: &ListenArgs) -> anyhow::Result<CaptureSettings> {
 fn collect_taps(handle: &mut CaptureHandle, args: &ListenArgs) -> anyhow::Result<Collected> {
     let deadline = Instant::now() + Duration::from_secs_f64(args.seconds);
     let mut collected = Collected::default();
-    while collected.accepted.len() < args.taps as usize {
+    while collected.accepted() < args.taps as usize {
         let now = Instant::now();
         if now >= deadline {
             break;
@@ -178,45 +183,24 @@ fn collect_taps(handle: &mut CaptureHandle, args: &ListenArgs) -> anyhow::Result
             Err(std::sync::mpsc::RecvTimeoutError::Disconnected) => break,
         };
         match event {
-            CaptureEvent::TapAccepted {
-                index,
-                tap,
-                analysis,
-                sample_rate_hz,
-                ..
-            } => {
-                collected.taps_found += 1;
-                save_tap(
-                    args.save_wav.as_deref(),
-                    index,
-                    sample_rate_hz,
-                    &tap.samples,
-                )?;
-                note(&format!(
-                    "tap {index}: accepted, {} modes",
-                    analysis.modes.len()
-                ));
-                collected.accepted.push(analysis);
-            }
-            CaptureEvent::TapRejected {
-                index,
-                tap,
-                reason,
-                sample_rate_hz,
-                ..
-            } => {
-                collected.taps_found += 1;
-                save_tap(
-                    args.save_wav.as_deref(),
-                    index,
-                    sample_rate_hz,
-                    &tap.samples,
-                )?;
-                note(&format!(
-                    "tap {index}: rejected, {reason} ({})",
-                    reason.advice()
-                ));
-                collected.rejected.push((index, reason));
+            CaptureEvent::Tap(mut tap) => {
+                save_tap(args.save_wav.as_deref(), &tap)?;
+                match (&tap.analysis, tap.rejected) {
+                    (_, Some(reason)) => note(&format!(
+                        "tap {}: rejected, {reason} ({})",
+                        tap.index,
+                        reason.advice()
+                    )),
+                    (Some(analysis), None) => note(&format!(
+                        "tap {}: accepted, {} modes",
+                        tap.index,
+                        analysis.modes.len()
+                    )),
+                    (None, None) => {}
+                }
+                // The measurement is what the report needs.
+                tap.record = None;
+                collected.taps.push(tap);
             }
             CaptureEvent::Overrun {
                 dropped_samples_total,
@@ -239,17 +223,12 @@ fn collect_taps(handle: &mut CaptureHandle, args: &ListenArgs) -> anyhow::Result
 }
 
 /// Writes one raw tap as `DIR/tap_NNN.wav` (32-bit float, atomically).
-fn save_tap(
-    dir: Option<&Path>,
-    index: usize,
-    sample_rate_hz: u32,
-    samples: &[f32],
-) -> anyhow::Result<()> {
-    let Some(dir) = dir else {
+fn save_tap(dir: Option<&Path>, tap: &Tap) -> anyhow::Result<()> {
+    let (Some(dir), Some(record)) = (dir, &tap.record) else {
         return Ok(());
     };
-    let path = dir.join(format!("tap_{index:03}.wav"));
-    write_mono(&path, sample_rate_hz, samples, false)?;
+    let path = dir.join(format!("tap_{:03}.wav", tap.index));
+    write_mono(&path, tap.sample_rate_hz, &record.samples, false)?;
     Ok(())
 }
 
@@ -259,36 +238,27 @@ fn print_report(
     sample_rate_hz: u32,
     collected: &Collected,
 ) -> anyhow::Result<()> {
-    if collected.taps_found == 0 {
+    if collected.taps.is_empty() {
         bail!(
             "no tap was heard from {source} in {} s: nothing rose {} dB above the background",
             args.seconds,
             args.measure.margin_db
         );
     }
-    if collected.accepted.is_empty() {
-        let reasons: Vec<&str> = collected
-            .rejected
-            .iter()
-            .map(|(_, r)| r.short_text())
-            .collect();
+    if collected.accepted() == 0 {
         bail!(
             "no usable tap: all {} were rejected ({})",
-            collected.taps_found,
-            reasons.join(", ")
+            collected.taps.len(),
+            rejection_reasons(&collected.taps)
         );
     }
-    let pass = aggregate_taps(
-        collected.accepted.iter(),
-        usize::from(args.measure.max_modes),
+    let pass = pass_of_taps(&collected.taps, usize::from(args.measure.max_modes));
+    let input = ReportInput::of_taps(
+        source.to_owned(),
+        f64::from(sample_rate_hz),
+        args.measure.a4,
+        &collected.taps,
+        &pass.modes,
     );
-    let input = ReportInput {
-        source: source.to_owned(),
-        sample_rate_hz: f64::from(sample_rate_hz),
-        a4_hz: args.measure.a4,
-        taps_found: collected.taps_found,
-        rejected: collected.rejected.clone(),
-        modes: &pass.modes,
-    };
     write_stdout(&input.render(args.measure.json)?)
 }

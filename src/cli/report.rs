@@ -6,7 +6,7 @@ use std::fmt::Write as _;
 use serde::Serialize;
 
 use crate::analysis::pitch::nearest_note;
-use crate::analysis::{PassMode, RejectReason};
+use crate::analysis::{rejected_taps, PassMode, RejectReason, Tap};
 
 /// The `--json` output.
 #[derive(Debug, Serialize)]
@@ -49,7 +49,28 @@ pub struct ReportInput<'a> {
     pub modes: &'a [PassMode],
 }
 
-impl ReportInput<'_> {
+impl<'a> ReportInput<'a> {
+    /// The report of `taps` and the modes of their pass.
+    pub fn of_taps(
+        source: String,
+        sample_rate_hz: f64,
+        a4_hz: f64,
+        taps: &[Tap],
+        modes: &'a [PassMode],
+    ) -> Self {
+        Self {
+            source,
+            sample_rate_hz,
+            a4_hz,
+            taps_found: taps.len(),
+            rejected: rejected_taps(taps)
+                .into_iter()
+                .map(|r| (r.index, r.reason))
+                .collect(),
+            modes,
+        }
+    }
+
     fn taps_used(&self) -> usize {
         self.taps_found - self.rejected.len()
     }
@@ -134,4 +155,14 @@ impl ReportInput<'_> {
         }
         out
     }
+}
+
+/// The reasons the rejected taps among `taps` were rejected, in order:
+/// "clipped, double strike".
+pub fn rejection_reasons(taps: &[Tap]) -> String {
+    let reasons: Vec<&str> = taps
+        .iter()
+        .filter_map(|t| t.rejected.map(|r| r.short_text()))
+        .collect();
+    reasons.join(", ")
 }

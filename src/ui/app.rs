@@ -20,7 +20,7 @@ use super::drive_area::{self, DriveAreaState};
 use super::jobs::{self, FilePurpose, JobDone, Jobs, SaveCheck, SaveProblem, SaveStamp};
 use super::ledger_area::{self, LedgerAreaState};
 use super::listen_area::{self, ListenView};
-use super::session::{ListenSession, TapEntry};
+use super::session::ListenSession;
 use super::stock_area::{self, StockAreaState};
 
 /// Where the window takes its sound from when it opens.
@@ -411,7 +411,7 @@ impl TapwrightApp {
                 }
                 JobDone::RecordingAnalysed { path, result } => match result {
                     Ok(taps) => {
-                        let kept = taps.iter().filter(|t| t.is_kept()).count();
+                        let kept = taps.iter().filter(|t| t.is_accepted()).count();
                         let count = taps.len();
                         self.session.replace_taps(taps);
                         self.listen_view.reset_plot = true;
@@ -739,51 +739,12 @@ impl TapwrightApp {
                 self.input.level = Some(level);
             }
             CaptureEvent::TapStarted { .. } => {}
-            CaptureEvent::TapAccepted {
-                index,
-                onset_s,
-                time,
-                sample_rate_hz,
-                tap,
-                analysis,
-                ..
-            } => {
-                let first = self.session.pass().is_none();
-                self.session.add_tap(TapEntry {
-                    index,
-                    onset_s,
-                    time,
-                    peak_dbfs: tap.peak_dbfs,
-                    sample_rate_hz,
-                    record: tap,
-                    analysis: Some(analysis),
-                    rejected: None,
-                    left_out: false,
-                });
+            CaptureEvent::Tap(tap) => {
+                let first = tap.is_accepted() && self.session.pass().is_none();
+                self.session.add_tap(tap);
                 if first {
                     self.listen_view.reset_plot = true;
                 }
-            }
-            CaptureEvent::TapRejected {
-                index,
-                onset_s,
-                time,
-                sample_rate_hz,
-                tap,
-                reason,
-                ..
-            } => {
-                self.session.add_tap(TapEntry {
-                    index,
-                    onset_s,
-                    time,
-                    peak_dbfs: tap.peak_dbfs,
-                    sample_rate_hz,
-                    record: tap,
-                    analysis: None,
-                    rejected: Some(reason),
-                    left_out: false,
-                });
             }
             CaptureEvent::Overrun {
                 dropped_samples_total,

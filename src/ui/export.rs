@@ -80,7 +80,7 @@ pub fn pass_json(session: &ListenSession, a4_hz: f64) -> Option<String> {
             onset_s: t.onset_s,
             peak_dbfs: t.peak_dbfs,
             in_pass: session.is_averaged(t.index),
-            left_out_because: t.reason_out().map(|r| r.short_text()),
+            left_out_because: session.reason_out(t).map(|r| r.short_text()),
         })
         .collect();
     let spectrum = pass.spectrum.as_ref().map(|s| {

@@ -8,12 +8,12 @@ use std::sync::mpsc::{self, Receiver, Sender};
 
 use eframe::egui;
 
-use crate::analysis::{AnalysisSettings, FoundTap, TapAnalysis, TapAnalyzer, TriggerSettings};
+use crate::analysis::{AnalysisSettings, FoundTap, Tap, TapAnalysis, TapAnalyzer, TriggerSettings};
 use crate::audio::{AudioError, CaptureHandle, CaptureSettings, DeviceInfo, SourceChoice};
 use crate::ledger::store::{DiskFingerprint, StoreError};
 use crate::ledger::Build;
 
-use super::session::{taps_of_stream, TapEntry};
+use super::session::taps_of_stream;
 
 /// What a file dialog was opened for.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -47,7 +47,7 @@ pub enum JobDone {
     /// A recording was read and analysed.
     RecordingAnalysed {
         path: PathBuf,
-        result: Result<Vec<TapEntry>, String>,
+        result: Result<Vec<Tap>, String>,
     },
     /// Taps already heard, measured again with new analysis settings:
     /// (tap number, new measurement).
@@ -314,7 +314,7 @@ fn read_and_analyse(
     path: &Path,
     trigger: &TriggerSettings,
     analysis: &AnalysisSettings,
-) -> anyhow::Result<Vec<TapEntry>> {
+) -> anyhow::Result<Vec<Tap>> {
     let mut stream = crate::wav_io::WavStream::open(path)?;
     let taps = taps_of_stream(&mut stream, trigger, analysis)?;
     if taps.is_empty() {

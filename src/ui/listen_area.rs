@@ -562,7 +562,7 @@ fn tap_list(ui: &mut egui::Ui, facts: &ListenFacts, ctx: &mut AreaContext) {
                         ui.monospace(format!("Tap {}", tap.index));
                         ui.monospace(format!("{:.2} s", tap.onset_s));
                         ui.monospace(format!("{:.1} dB", tap.peak_dbfs));
-                        match tap.reason_out() {
+                        match facts.session.reason_out(tap) {
                             None if facts.session.is_averaged(tap.index) => {
                                 ui.label("in the pass");
                             }
@@ -575,7 +575,7 @@ fn tap_list(ui: &mut egui::Ui, facts: &ListenFacts, ctx: &mut AreaContext) {
                             }
                         }
                         if tap.analysis.is_some() && tap.rejected.is_none() {
-                            let (text, name, left_out) = if tap.left_out {
+                            let (text, name, left_out) = if facts.session.is_left_out(tap.index) {
                                 ("Take back", format!("Take tap {} back", tap.index), false)
                             } else {
                                 ("Leave out", format!("Leave tap {} out", tap.index), true)

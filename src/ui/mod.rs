@@ -31,7 +31,7 @@ pub use commands::{
     stored_spectrum_of, AppCommand, Area, AreaContext, BuildEdit, ListenCommand, SourcePick,
 };
 pub use export::pass_json;
-pub use session::{ListenSession, TapEntry};
+pub use session::ListenSession;
 
 /// Options for opening the window.
 #[derive(Debug, Clone, Default, clap::Args)]

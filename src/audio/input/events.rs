@@ -1,8 +1,6 @@
 //! What the capture worker tells the window (or `tapwright listen`).
 
-use std::time::{Instant, SystemTime};
-
-use crate::analysis::{FoundTap, RejectReason, TapAnalysis};
+use crate::analysis::Tap;
 
 /// The input level over the last interval.
 #[derive(Clone, Debug, PartialEq)]
@@ -42,41 +40,9 @@ pub enum CaptureEvent {
         /// Time of the strike, seconds since the current source opened.
         onset_s: f64,
     },
-    /// A tap that passed the checks, with its measurement.
-    TapAccepted {
-        /// 1-based number of the tap since capture started (accepted and
-        /// rejected taps share the numbering).
-        index: usize,
-        /// Time of the strike, seconds since the current source opened.
-        onset_s: f64,
-        /// When the tap's event was made (for the pass record).
-        time: SystemTime,
-        /// When the worker finished with the tap (for latency figures).
-        finished_at: Instant,
-        /// Sample rate of the record.
-        sample_rate_hz: u32,
-        /// The raw record.
-        tap: FoundTap,
-        /// Its modes and spectrum.
-        analysis: TapAnalysis,
-    },
-    /// A tap left out, with the reason.
-    TapRejected {
-        /// 1-based number of the tap since capture started.
-        index: usize,
-        /// Time of the strike, seconds since the current source opened.
-        onset_s: f64,
-        /// When the tap's event was made.
-        time: SystemTime,
-        /// When the worker finished with the tap.
-        finished_at: Instant,
-        /// Sample rate of the record.
-        sample_rate_hz: u32,
-        /// The raw record.
-        tap: FoundTap,
-        /// Why it is left out.
-        reason: RejectReason,
-    },
+    /// A finished tap, accepted (with its measurement) or rejected (with
+    /// the reason).
+    Tap(Tap),
     /// Sound was lost because the worker fell behind and the ring filled up.
     Overrun {
         /// Samples dropped since capture started (a running total).
@@ -110,15 +76,14 @@ pub enum CaptureEvent {
 impl CaptureEvent {
     /// True for the events that carry a finished tap.
     pub fn is_tap(&self) -> bool {
-        matches!(self, Self::TapAccepted { .. } | Self::TapRejected { .. })
+        matches!(self, Self::Tap(_))
     }
 
     /// The tap number of a tap event.
     pub fn tap_index(&self) -> Option<usize> {
         match self {
-            Self::TapStarted { index, .. }
-            | Self::TapAccepted { index, .. }
-            | Self::TapRejected { index, .. } => Some(*index),
+            Self::TapStarted { index, .. } => Some(*index),
+            Self::Tap(tap) => Some(tap.index),
             _ => None,
         }
     }

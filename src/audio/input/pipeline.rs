@@ -1,25 +1,21 @@
 //! What the capture worker does with each block of samples: the level
-//! meter, the tap trigger and the per-tap analysis. Kept apart from the
-//! thread so the benchmark and the tests can run it directly.
-
-use std::time::{Instant, SystemTime};
+//! meter, and the one tap gathering loop of the library
+//! ([`TapGatherer`]: trigger, then the per-tap analysis). Kept apart from
+//! the thread so the benchmark and the tests can run it directly.
 
 use super::events::{CaptureEvent, InputLevel};
-use crate::analysis::{TapAnalyzer, TapTrigger, TriggerEvent};
+use crate::analysis::{Gathered, TapGatherer};
 use crate::audio::settings::CaptureSettings;
 
 /// Full-scale fraction the level meter calls clipped (the trigger's rule).
 const CLIP_LEVEL: f32 = 0.99;
 
-/// Level meter, trigger and analyser for one source at one sample rate.
+/// Level meter and tap gathering for one source at one sample rate.
 #[derive(Debug)]
 pub struct TapPipeline {
-    sample_rate_hz: u32,
     settings: CaptureSettings,
-    trigger: TapTrigger,
-    analyzer: TapAnalyzer,
-    trigger_events: Vec<TriggerEvent>,
-    taps_seen: usize,
+    gatherer: TapGatherer,
+    gathered: Vec<Gathered>,
     level_sum_sq: f64,
     level_peak: f32,
     level_count: usize,
@@ -30,14 +26,11 @@ impl TapPipeline {
     /// A pipeline at `sample_rate_hz`; tap numbers continue from
     /// `taps_seen` (0 for a fresh start, the old count after a reconnection).
     pub fn new(settings: &CaptureSettings, sample_rate_hz: u32, taps_seen: usize) -> Self {
-        let fs = f64::from(sample_rate_hz);
         Self {
-            sample_rate_hz,
-            trigger: TapTrigger::new(settings.trigger.clone(), fs),
-            analyzer: TapAnalyzer::new(settings.analysis.clone(), fs),
+            gatherer: TapGatherer::new(&settings.trigger, &settings.analysis, sample_rate_hz)
+                .numbering_from(taps_seen),
             settings: settings.clone(),
-            trigger_events: Vec::with_capacity(8),
-            taps_seen,
+            gathered: Vec::with_capacity(8),
             level_sum_sq: 0.0,
             level_peak: 0.0,
             level_count: 0,
@@ -49,10 +42,10 @@ impl TapPipeline {
     /// way finishes with the new length.
     pub fn set_settings(&mut self, settings: &CaptureSettings) {
         if settings.trigger != self.settings.trigger {
-            self.trigger.set_settings(settings.trigger.clone());
+            self.gatherer.set_trigger_settings(&settings.trigger);
         }
         if settings.analysis != self.settings.analysis {
-            self.analyzer.set_settings(settings.analysis.clone());
+            self.gatherer.set_analysis_settings(&settings.analysis);
         }
         self.settings = settings.clone();
     }
@@ -64,27 +57,26 @@ impl TapPipeline {
 
     /// Samples per second.
     pub fn sample_rate_hz(&self) -> u32 {
-        self.sample_rate_hz
+        self.gatherer.sample_rate_hz()
     }
 
     /// Taps finished so far (accepted and rejected).
     pub fn taps_seen(&self) -> usize {
-        self.taps_seen
+        self.gatherer.taps_seen()
     }
 
-    /// Feeds samples; tap events (started, accepted with analysis,
-    /// rejected) go to `out` in order.
+    /// Feeds samples; tap events (started, finished) go to `out` in order.
     pub fn process(&mut self, samples: &[f32], out: &mut Vec<CaptureEvent>) {
         self.measure_level(samples);
-        self.trigger.push(samples, &mut self.trigger_events);
-        self.turn_trigger_events_into(out);
+        self.gatherer.push(samples, &mut self.gathered);
+        self.pass_on(out);
     }
 
     /// Ends the stream: a record under way is finished as it is (too short
     /// if it is shorter than the minimum).
     pub fn finish(&mut self, out: &mut Vec<CaptureEvent>) {
-        self.trigger.finish(&mut self.trigger_events);
-        self.turn_trigger_events_into(out);
+        self.gatherer.finish(&mut self.gathered);
+        self.pass_on(out);
     }
 
     /// The level since the last call, or None if no sample came in.
@@ -97,8 +89,8 @@ impl TapPipeline {
             rms_dbfs: 10.0 * (mean_square + 1e-16).log10(),
             peak_dbfs: 20.0 * (f64::from(self.level_peak) + 1e-8).log10(),
             clipped: self.level_clipped,
-            floor_dbfs: self.trigger.floor_dbfs(),
-            recording: self.trigger.is_recording(),
+            floor_dbfs: self.gatherer.floor_dbfs(),
+            recording: self.gatherer.is_recording(),
         };
         self.level_sum_sq = 0.0;
         self.level_peak = 0.0;
@@ -120,44 +112,11 @@ impl TapPipeline {
         self.level_count += samples.len();
     }
 
-    fn turn_trigger_events_into(&mut self, out: &mut Vec<CaptureEvent>) {
-        let fs = f64::from(self.sample_rate_hz);
-        for event in self.trigger_events.drain(..) {
-            match event {
-                TriggerEvent::Started { onset_sample } => out.push(CaptureEvent::TapStarted {
-                    index: self.taps_seen + 1,
-                    onset_s: onset_sample as f64 / fs,
-                }),
-                TriggerEvent::Tap(tap) => {
-                    self.taps_seen += 1;
-                    let index = self.taps_seen;
-                    let onset_s = tap.onset_sample() as f64 / fs;
-                    match tap.rejected {
-                        Some(reason) => out.push(CaptureEvent::TapRejected {
-                            index,
-                            onset_s,
-                            time: SystemTime::now(),
-                            finished_at: Instant::now(),
-                            sample_rate_hz: self.sample_rate_hz,
-                            tap,
-                            reason,
-                        }),
-                        None => {
-                            let analysis = self.analyzer.analyze(&tap);
-                            out.push(CaptureEvent::TapAccepted {
-                                index,
-                                onset_s,
-                                time: SystemTime::now(),
-                                finished_at: Instant::now(),
-                                sample_rate_hz: self.sample_rate_hz,
-                                tap,
-                                analysis,
-                            });
-                        }
-                    }
-                }
-            }
-        }
+    fn pass_on(&mut self, out: &mut Vec<CaptureEvent>) {
+        out.extend(self.gathered.drain(..).map(|gathered| match gathered {
+            Gathered::Started { index, onset_s } => CaptureEvent::TapStarted { index, onset_s },
+            Gathered::Tap(tap) => CaptureEvent::Tap(tap),
+        }));
     }
 }
 
