@@ -11,7 +11,7 @@ use anyhow::bail;
 
 use super::measure::MeasureArgs;
 use super::output::write_stdout;
-use super::report::{rejection_reasons, ReportInput};
+use super::tap_table::{rejection_reasons, ReportInput};
 use crate::analysis::{RecordingAnalyzer, RecordingReport};
 use crate::wav_io::WavStream;
 

@@ -3,15 +3,16 @@
 
 mod air;
 mod analyze;
-mod capture_cmds;
+mod devices;
 mod drive;
-mod ledger_cmd;
+mod ledger;
+mod listen;
 mod measure;
 pub mod output;
 mod parse_error;
 mod report;
-mod report_cmd;
 mod stock;
+mod tap_table;
 mod values;
 
 use std::process::ExitCode;
@@ -46,11 +47,11 @@ pub enum Command {
     /// Find the taps in a WAV recording and measure the modes of each.
     Analyze(analyze::AnalyzeArgs),
     /// List the audio input devices.
-    Devices(capture_cmds::DevicesArgs),
+    Devices(devices::DevicesArgs),
     /// Capture taps from an input device and report their modes.
-    Listen(capture_cmds::ListenArgs),
+    Listen(listen::ListenArgs),
     /// Show a build file: parts, passes, labelled modes, targets and forecasts.
-    Ledger(ledger_cmd::LedgerArgs),
+    Ledger(ledger::LedgerArgs),
     /// Estimate a body's air resonance (A0) from its volume and openings.
     Air(air::AirArgs),
     /// Play a tone at a mode's frequency through a loudspeaker (Chladni patterns).
@@ -58,7 +59,7 @@ pub enum Command {
     /// Grade a sample bar of tonewood from its taps.
     Stock(stock::StockArgs),
     /// Write a build's report as one HTML file (passes, charts, forecasts, air check).
-    Report(report_cmd::ReportArgs),
+    Report(report::ReportArgs),
 }
 
 /// Parses the process arguments, runs the chosen subcommand (or opens the
@@ -74,13 +75,13 @@ pub fn run_from_env() -> ExitCode {
     let outcome = match &cli.command {
         None => crate::ui::run_workbench(&cli.window),
         Some(Command::Analyze(args)) => analyze::run(args),
-        Some(Command::Devices(args)) => capture_cmds::run_devices(args),
-        Some(Command::Listen(args)) => capture_cmds::run_listen(args),
-        Some(Command::Ledger(args)) => ledger_cmd::run(args),
+        Some(Command::Devices(args)) => devices::run(args),
+        Some(Command::Listen(args)) => listen::run(args),
+        Some(Command::Ledger(args)) => ledger::run(args),
         Some(Command::Air(args)) => air::run(args),
         Some(Command::Drive(args)) => drive::run(args),
         Some(Command::Stock(args)) => stock::run(args),
-        Some(Command::Report(args)) => report_cmd::run(args),
+        Some(Command::Report(args)) => report::run(args),
     };
     match outcome {
         Ok(()) => ExitCode::SUCCESS,

@@ -2,11 +2,9 @@
 //! modes (with their change against the previous and the first pass) and
 //! the forecasts of parts with targets; `--csv` writes the pass table instead.
 
-use std::io::{self, Write};
 use std::path::PathBuf;
 
-use anyhow::Context;
-
+use super::output::write_stdout;
 use crate::ledger::{csv, store, Build, Forecast, FrequencyChange, Part, Pass, PassChange};
 use crate::text::forecast;
 
@@ -28,15 +26,7 @@ pub fn run(args: &LedgerArgs) -> anyhow::Result<()> {
     } else {
         report(&build)
     };
-    let mut stdout = io::stdout().lock();
-    match stdout
-        .write_all(text.as_bytes())
-        .and_then(|()| stdout.flush())
-    {
-        // A reader that stops early (`| head`) is not an error.
-        Err(e) if e.kind() == io::ErrorKind::BrokenPipe => Ok(()),
-        other => other.context("writing to standard output"),
-    }
+    write_stdout(&text)
 }
 
 /// The text report of a build.

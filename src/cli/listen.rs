@@ -1,5 +1,5 @@
-//! `tapwright devices` (list the audio inputs) and `tapwright listen`
-//! (capture taps from an input and print the same report as `analyze`).
+//! `tapwright listen`: capture taps from an input device and print the
+//! same report as `analyze`.
 
 use std::path::{Path, PathBuf};
 use std::time::{Duration, Instant};
@@ -8,20 +8,15 @@ use anyhow::{bail, Context};
 
 use super::measure::{band_for, MeasureArgs};
 use super::output::{note, write_stdout};
-use super::report::{rejection_reasons, ReportInput};
+use super::tap_table::{rejection_reasons, ReportInput};
 use super::values::parse_count;
 use crate::analysis::{pass_of_taps, Tap};
-use crate::audio::{
-    list_input_devices, CaptureEvent, CaptureHandle, CaptureSettings, DeviceInfo, SourceChoice,
-};
+use crate::audio::{CaptureEvent, CaptureHandle, CaptureSettings, SourceChoice};
 use crate::text::read_number;
 use crate::wav_io::write_mono;
 
 /// Longest wait for one event before the deadline is checked again.
 const EVENT_WAIT: Duration = Duration::from_millis(100);
-
-#[derive(Debug, clap::Args)]
-pub struct DevicesArgs {}
 
 #[derive(Debug, clap::Args)]
 pub struct ListenArgs {
@@ -56,48 +51,6 @@ fn parse_seconds(text: &str) -> Result<f64, String> {
     }
 }
 
-/// `tapwright devices`: one line per input device, the default marked.
-pub fn run_devices(_args: &DevicesArgs) -> anyhow::Result<()> {
-    let devices = list_input_devices()?;
-    if devices.is_empty() {
-        return write_stdout(
-            "No audio input device found: connect a microphone or audio interface.\n",
-        );
-    }
-    let mut text = String::new();
-    for device in &devices {
-        text.push_str(&device_line(device));
-        text.push('\n');
-    }
-    write_stdout(&text)
-}
-
-fn device_line(device: &DeviceInfo) -> String {
-    let mark = if device.is_default { "*" } else { " " };
-    let channels = match (device.channels.first(), device.channels.last()) {
-        (Some(low), Some(high)) if low == high => format!("{low} ch"),
-        (Some(low), Some(high)) => format!("{low}–{high} ch"),
-        _ => "? ch".to_owned(),
-    };
-    let rates: Vec<String> = device
-        .sample_rates_hz
-        .iter()
-        .map(|&(low, high)| match (low, high) {
-            (low, high) if low == high => format!("{low}"),
-            // Plugin devices resample to anything; the top is meaningless.
-            (low, high) if high >= 10_000_000 => format!("{low} and up"),
-            (low, high) => format!("{low}–{high}"),
-        })
-        .collect();
-    let default_note = if device.is_default { "  (default)" } else { "" };
-    format!(
-        "{mark} {}{default_note}\n    id {}; {channels}; {} Hz",
-        device.name,
-        device.id,
-        rates.join(", ")
-    )
-}
-
 /// What `listen` has collected so far: every tap heard (records dropped
 /// once saved), and the samples lost.
 #[derive(Default)]
@@ -114,7 +67,7 @@ impl Collected {
 
 /// `tapwright listen`: capture until enough taps are accepted or time is up,
 /// then print the report.
-pub fn run_listen(args: &ListenArgs) -> anyhow::Result<()> {
+pub fn run(args: &ListenArgs) -> anyhow::Result<()> {
     let mut settings = listen_settings(args)?;
     let mut handle = CaptureHandle::start(
         SourceChoice::Device(args.device.clone()),
