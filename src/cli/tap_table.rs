@@ -6,7 +6,8 @@ use std::fmt::Write as _;
 use serde::Serialize;
 
 use crate::analysis::pitch::nearest_note;
-use crate::analysis::{rejected_taps, PassMode, RejectReason, Tap};
+use crate::analysis::{rejected_taps, PassMode, RejectedTap, Tap};
+use crate::text::pass_json::{modes_json, ModeJson};
 
 /// The `--json` output.
 #[derive(Debug, Serialize)]
@@ -16,27 +17,8 @@ pub struct JsonReport {
     pub a4_hz: f64,
     pub taps_found: usize,
     pub taps_used: usize,
-    pub taps_rejected: Vec<JsonRejected>,
-    pub modes: Vec<JsonMode>,
-}
-
-#[derive(Debug, Serialize)]
-pub struct JsonRejected {
-    pub index: usize,
-    pub reason: RejectReason,
-}
-
-#[derive(Debug, Serialize)]
-pub struct JsonMode {
-    pub frequency_hz: f64,
-    pub q: f64,
-    pub level_db: f64,
-    pub prominence_db: f64,
-    pub spread_hz: f64,
-    pub q_spread: f64,
-    pub taps_seen: usize,
-    pub note: String,
-    pub cents: f64,
+    pub taps_rejected: Vec<RejectedTap>,
+    pub modes: Vec<ModeJson>,
 }
 
 /// What a report is made of, whatever the source.
@@ -45,7 +27,7 @@ pub struct ReportInput<'a> {
     pub sample_rate_hz: f64,
     pub a4_hz: f64,
     pub taps_found: usize,
-    pub rejected: Vec<(usize, RejectReason)>,
+    pub rejected: Vec<RejectedTap>,
     pub modes: &'a [PassMode],
 }
 
@@ -63,10 +45,7 @@ impl<'a> ReportInput<'a> {
             sample_rate_hz,
             a4_hz,
             taps_found: taps.len(),
-            rejected: rejected_taps(taps)
-                .into_iter()
-                .map(|r| (r.index, r.reason))
-                .collect(),
+            rejected: rejected_taps(taps),
             modes,
         }
     }
@@ -82,29 +61,8 @@ impl<'a> ReportInput<'a> {
             a4_hz: self.a4_hz,
             taps_found: self.taps_found,
             taps_used: self.taps_used(),
-            taps_rejected: self
-                .rejected
-                .iter()
-                .map(|&(index, reason)| JsonRejected { index, reason })
-                .collect(),
-            modes: self
-                .modes
-                .iter()
-                .map(|m| {
-                    let pitch = nearest_note(m.frequency_hz, self.a4_hz);
-                    JsonMode {
-                        frequency_hz: m.frequency_hz,
-                        q: m.q,
-                        level_db: m.level_db,
-                        prominence_db: m.prominence_db,
-                        spread_hz: m.spread_hz,
-                        q_spread: m.q_spread,
-                        taps_seen: m.taps_seen,
-                        note: pitch.as_ref().map(|p| p.note.clone()).unwrap_or_default(),
-                        cents: pitch.map(|p| p.cents).unwrap_or(0.0),
-                    }
-                })
-                .collect(),
+            taps_rejected: self.rejected.clone(),
+            modes: modes_json(self.modes, self.a4_hz),
         }
     }
 
@@ -131,7 +89,7 @@ impl<'a> ReportInput<'a> {
             self.taps_used(),
             self.rejected.len()
         );
-        for (index, reason) in &self.rejected {
+        for RejectedTap { index, reason } in &self.rejected {
             let _ = writeln!(out, "  tap {index}: {reason} ({})", reason.advice());
         }
         let _ = writeln!(out);

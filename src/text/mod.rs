@@ -1,7 +1,7 @@
 //! Words and numbers for people, written once and used by the command line,
 //! the window and the build report alike: an error as one sentence, a typed
 //! number read by one rule, numbers with a true minus sign, notes and
-//! cents, and a forecast in words.
+//! cents, a forecast in words, and a pass's modes as JSON.
 //!
 //! Nothing here draws, prints or touches a file. It uses the pure layers
 //! (`analysis::pitch`) and, for the forecast wording only, the ledger's
@@ -9,6 +9,7 @@
 
 pub mod forecast;
 pub mod numbers;
+pub mod pass_json;
 pub mod pitch;
 pub mod sentences;
 pub mod typed;

@@ -2,7 +2,7 @@
 
 use serde::Serialize;
 
-use crate::analysis::pitch::nearest_note;
+use crate::text::pass_json::ModeJson;
 
 use super::session::ListenSession;
 
@@ -21,16 +21,11 @@ struct PassExport {
     spectrum: Option<SpectrumExport>,
 }
 
+/// A mode as `analyze --json` writes it, with the label the maker gave it.
 #[derive(Serialize)]
 struct ModeExport {
-    frequency_hz: f64,
-    q: f64,
-    level_db: f64,
-    spread_hz: f64,
-    q_spread: f64,
-    taps_seen: usize,
-    note: Option<String>,
-    cents: Option<f64>,
+    #[serde(flatten)]
+    mode: ModeJson,
     label: Option<String>,
 }
 
@@ -57,19 +52,9 @@ pub fn pass_json(session: &ListenSession, a4_hz: f64) -> Option<String> {
         .modes
         .iter()
         .zip(session.mode_labels())
-        .map(|(m, label)| {
-            let pitch = nearest_note(m.frequency_hz, a4_hz);
-            ModeExport {
-                frequency_hz: m.frequency_hz,
-                q: m.q,
-                level_db: m.level_db,
-                spread_hz: m.spread_hz,
-                q_spread: m.q_spread,
-                taps_seen: m.taps_seen,
-                note: pitch.as_ref().map(|p| p.note.clone()),
-                cents: pitch.map(|p| p.cents),
-                label: label.clone(),
-            }
+        .map(|(m, label)| ModeExport {
+            mode: ModeJson::new(m, a4_hz),
+            label: label.clone(),
         })
         .collect();
     let taps = session
@@ -106,4 +91,36 @@ pub fn pass_json(session: &ListenSession, a4_hz: f64) -> Option<String> {
 fn round_to(value: f64, decimals: i32) -> f64 {
     let scale = 10f64.powi(decimals);
     (value * scale).round() / scale
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn an_exported_mode_is_the_command_line_mode_and_its_label() {
+        let mode = ModeJson {
+            frequency_hz: 338.2,
+            q: 60.0,
+            level_db: -18.0,
+            prominence_db: 14.0,
+            spread_hz: 0.2,
+            q_spread: 3.0,
+            taps_seen: 5,
+            note: "E4".to_owned(),
+            cents: 42.0,
+        };
+        let alone = serde_json::to_value(&mode).expect("test value");
+        let exported = serde_json::to_value(ModeExport {
+            mode,
+            label: Some("mode 5".to_owned()),
+        })
+        .expect("test value");
+        let exported = exported.as_object().expect("an object");
+        for (key, value) in alone.as_object().expect("an object") {
+            assert_eq!(exported.get(key), Some(value), "{key}");
+        }
+        assert_eq!(exported["label"], "mode 5");
+        assert_eq!(exported.len(), alone.as_object().map_or(0, |m| m.len()) + 1);
+    }
 }
