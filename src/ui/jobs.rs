@@ -13,7 +13,7 @@ use crate::audio::{AudioError, CaptureHandle, CaptureSettings, DeviceInfo, Sourc
 use crate::ledger::store::{DiskFingerprint, StoreError};
 use crate::ledger::Build;
 
-use super::session::taps_of_stream;
+use crate::ui::session::taps_of_stream;
 
 /// What a file dialog was opened for.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]

@@ -9,29 +9,23 @@
 //! worker wakes the window through a repaint hook, so an idle window does not
 //! repaint.
 
-pub mod air_area;
-mod app;
-mod commands;
-pub mod drive_area;
-mod export;
-mod help;
+pub mod areas;
+pub mod commands;
 mod jobs;
-pub mod ledger_area;
-mod listen_area;
-mod session;
-mod spectrum_plot;
-pub mod stock_area;
-mod widgets;
+pub mod session;
+mod shell;
+pub mod widgets;
 
 use std::path::PathBuf;
 use std::time::Instant;
 
-pub use app::{AppOptions, InputView, SourceState, StartSource, Status, TapwrightApp, LABEL_SETS};
 pub use commands::{
     stored_spectrum_of, AppCommand, Area, AreaContext, BuildEdit, ListenCommand, SourcePick,
 };
-pub use export::pass_json;
 pub use session::ListenSession;
+pub use shell::{
+    AppOptions, InputView, SourceState, StartSource, Status, TapwrightApp, LABEL_SETS,
+};
 
 /// Options for opening the window.
 #[derive(Debug, Clone, Default, clap::Args)]

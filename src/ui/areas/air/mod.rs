@@ -24,7 +24,7 @@ use eframe::egui;
 use crate::acoustics::{estimate_cavity, CavityEstimate, CavityGeometry};
 use crate::ledger::{Build, Timestamp};
 
-use super::AreaContext;
+use crate::ui::commands::AreaContext;
 use form::GeometryDraft;
 
 /// What the Air area remembers between frames (volume, openings, air
@@ -193,7 +193,7 @@ fn build_section(
             .on_disabled_hover_text("The geometry has a problem: fix it first");
         if store.clicked() {
             if let Some(geometry) = current.cloned() {
-                ctx.push(super::AppCommand::EditBuild {
+                ctx.push(crate::ui::commands::AppCommand::EditBuild {
                     description: "storing the cavity geometry".to_owned(),
                     edit: Box::new(move |build| {
                         build.air = Some(geometry);

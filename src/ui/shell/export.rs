@@ -4,7 +4,7 @@ use serde::Serialize;
 
 use crate::text::pass_json::ModeJson;
 
-use super::session::ListenSession;
+use crate::ui::session::ListenSession;
 
 /// Points of the exported averaged spectrum.
 const EXPORT_SPECTRUM_POINTS: usize = 600;

@@ -8,9 +8,9 @@ use eframe::egui;
 
 use crate::ledger::{Part, PassInput, PassOutcome, ThicknessReading};
 
-use super::super::commands::{AppCommand, Area, AreaContext};
 use super::Note;
 use crate::text::{num, parse_optional_number, sentence};
+use crate::ui::commands::{AppCommand, Area, AreaContext};
 
 /// One thickness reading being typed.
 #[derive(Clone, Debug, Default, PartialEq)]

@@ -7,9 +7,9 @@ use eframe::egui;
 use crate::ledger::compare::{mode5_interval_semitones, plate_modes, top_and_back};
 use crate::ledger::{Build, LedgerError, Part, PartKind};
 
-use super::super::commands::{AppCommand, AreaContext};
 use super::{try_edit, LedgerAreaState, Note};
 use crate::text::{num, parse_optional_number, signed};
+use crate::ui::commands::{AppCommand, AreaContext};
 
 /// The kinds offered when adding a part.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Default)]

@@ -12,7 +12,7 @@ use crate::ledger::Part;
 
 use super::LedgerAreaState;
 use crate::text::num;
-use crate::ui::spectrum_plot::{frequency_label, log_frequency_marks};
+use crate::ui::widgets::spectrum_plot::{frequency_label, log_frequency_marks};
 
 /// Which chart is shown.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Default)]

@@ -27,10 +27,10 @@ use std::collections::{BTreeSet, HashMap};
 
 use eframe::egui;
 
-use super::commands::{AppCommand, AreaContext};
 use crate::demo::SAMPLE_BUILDS;
 use crate::ledger::{Build, Family, LedgerError, Part};
 use crate::text::{capitalised, date_text, sentence};
+use crate::ui::commands::{AppCommand, AreaContext};
 
 /// What the Ledger area remembers between frames (selection, chart view,
 /// text being typed …). Owned by the app.

@@ -18,8 +18,8 @@ use egui_plot::{Legend, MarkerShape, Plot, Points};
 use crate::acoustics::stock::{bar_figures, BarFigures, BarMode, BarSample, WOOD_POISSON_RATIO};
 use crate::ledger::StockSample;
 
-use super::{AppCommand, AreaContext};
 use crate::text::{capitalised, num, parse_number, sentence};
+use crate::ui::commands::{AppCommand, AreaContext};
 
 /// Width of a number field, points.
 const FIELD_WIDTH: f32 = 64.0;

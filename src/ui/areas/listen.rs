@@ -9,11 +9,11 @@ use eframe::egui;
 use crate::audio::CaptureSettings;
 use crate::text::note_text;
 
-use super::app::{InputView, SourceState};
-use super::commands::{AppCommand, AreaContext, ListenCommand, SourcePick};
-use super::session::ListenSession;
-use super::spectrum_plot::{self, CursorReadout};
-use super::widgets;
+use crate::ui::commands::{AppCommand, AreaContext, ListenCommand, SourcePick};
+use crate::ui::session::ListenSession;
+use crate::ui::shell::{InputView, SourceState};
+use crate::ui::widgets::level_meter::level_meter;
+use crate::ui::widgets::spectrum_plot::{self, CursorReadout};
 
 /// What the Listen area remembers between frames (view state only).
 #[derive(Debug)]
@@ -106,7 +106,7 @@ fn settings_panel(
     ui.strong("Input");
     source_picker(ui, facts, ctx);
     source_state_line(ui, facts, ctx);
-    widgets::level_meter(ui, facts.input.level.as_ref(), facts.clip_warning);
+    level_meter(ui, facts.input.level.as_ref(), facts.clip_warning);
     ui.add_space(6.0);
 
     ui.separator();

@@ -12,8 +12,8 @@ use eframe::egui;
 use crate::ledger::{csv, Build};
 use crate::report::{build_report_html, ReportSettings};
 
-use super::super::commands::{AppCommand, AreaContext};
 use super::Note;
+use crate::ui::commands::{AppCommand, AreaContext};
 
 /// What a file job reports.
 #[derive(Debug)]

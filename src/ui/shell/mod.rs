@@ -14,14 +14,17 @@ use crate::audio::{
 use crate::ledger::Build;
 use crate::text::sentence;
 
-use super::air_area::{self, AirAreaState};
-use super::commands::{AppCommand, Area, AreaContext, ListenCommand, SourcePick};
-use super::drive_area::{self, DriveAreaState};
-use super::jobs::{self, FilePurpose, JobDone, Jobs, SaveCheck, SaveProblem, SaveStamp};
-use super::ledger_area::{self, LedgerAreaState};
-use super::listen_area::{self, ListenView};
-use super::session::ListenSession;
-use super::stock_area::{self, StockAreaState};
+use crate::ui::areas::air::{self as air_area, AirAreaState};
+use crate::ui::areas::drive::{self as drive_area, DriveAreaState};
+use crate::ui::areas::ledger::{self as ledger_area, LedgerAreaState};
+use crate::ui::areas::listen::{self as listen_area, ListenView};
+use crate::ui::areas::stock::{self as stock_area, StockAreaState};
+use crate::ui::commands::{AppCommand, Area, AreaContext, ListenCommand, SourcePick};
+use crate::ui::jobs::{self, FilePurpose, JobDone, Jobs, SaveCheck, SaveProblem, SaveStamp};
+use crate::ui::session::ListenSession;
+
+mod export;
+mod help;
 
 /// Where the window takes its sound from when it opens.
 #[derive(Clone, Debug, PartialEq, Eq)]
@@ -868,7 +871,7 @@ impl TapwrightApp {
             egui::Window::new("Help and caution")
                 .open(&mut open)
                 .default_size([520.0, 420.0])
-                .show(ui.ctx(), super::help::show);
+                .show(ui.ctx(), help::show);
             self.show_help = open;
         }
     }
@@ -1152,16 +1155,13 @@ impl TapwrightApp {
                     jobs::choose_file(FilePurpose::ExportPass, "pass.json".to_owned())
                 });
             }
-            ListenCommand::ExportPass(path) => {
-                match super::export::pass_json(&self.session, self.a4_hz) {
-                    Some(text) => self
-                        .jobs
-                        .spawn("export", move || jobs::save_text(path, text, "the pass")),
-                    None => self.set_error(
-                        "There is no pass to export yet: tap the plate first.".to_owned(),
-                    ),
-                }
-            }
+            ListenCommand::ExportPass(path) => match export::pass_json(&self.session, self.a4_hz) {
+                Some(text) => self
+                    .jobs
+                    .spawn("export", move || jobs::save_text(path, text, "the pass")),
+                None => self
+                    .set_error("There is no pass to export yet: tap the plate first.".to_owned()),
+            },
             ListenCommand::SetA4(a4_hz) => {
                 if a4_hz.is_finite() && (380.0..=480.0).contains(&a4_hz) {
                     self.a4_hz = a4_hz;

@@ -25,7 +25,7 @@ use crate::audio::{open_output, AudioError, OutputChoice, ToneOutput};
 use crate::ledger::Build;
 use crate::text::{note_text, read_number, sentence};
 
-use super::commands::AreaContext;
+use crate::ui::commands::AreaContext;
 
 /// The caution shown beside the controls (and, shorter, on the command line).
 pub const DRIVE_CAUTION: &str = "Loud tones damage hearing and loudspeakers. Start at a low \
