@@ -6,12 +6,11 @@
 //! set the level (never above the cap), Start and Stop. Escape stops the
 //! tone from anywhere in the window; closing the window fades it out.
 //!
-//! The output is opened on a helper thread when Start is pressed and
-//! closed (after the fade-out and a short tail) when the tone has stopped,
-//! so nothing on the UI thread waits for the device. Settings reach the
+//! The output is opened on the window's job runner when Start is pressed
+//! and closed (after the fade-out and a short tail) on a helper thread when
+//! the tone has stopped, so nothing on the UI thread waits for the device. Settings reach the
 //! playing tone through [`ToneControls`] (atomics).
 
-use std::sync::mpsc::{self, Receiver, TryRecvError};
 use std::sync::Arc;
 use std::time::Duration;
 
@@ -25,7 +24,8 @@ use crate::audio::{open_output, AudioError, OutputChoice, ToneOutput};
 use crate::ledger::Build;
 use crate::text::{note_text, read_number, sentence};
 
-use crate::ui::commands::AreaContext;
+use crate::ui::context::AreaContext;
+use crate::ui::jobs::{Inbox, Jobs};
 
 /// The caution shown beside the controls (and, shorter, on the command line).
 pub const DRIVE_CAUTION: &str = "Loud tones damage hearing and loudspeakers. Start at a low \
@@ -50,7 +50,8 @@ pub struct DriveAreaState {
     output: Option<ToneOutput>,
     /// The settings last given to the playing output.
     sent: Option<ToneSettings>,
-    opening: Option<Receiver<Result<ToneOutput, AudioError>>>,
+    /// The output being opened on the job runner (Start pressed).
+    opening: Option<Inbox<Result<ToneOutput, AudioError>>>,
     /// True while the tone should sound (a Start not yet stopped).
     wanted: bool,
     note: Option<(String, bool)>,
@@ -129,7 +130,7 @@ impl DriveAreaState {
         self.output = None;
     }
 
-    fn start(&mut self, ctx: &egui::Context) {
+    fn start(&mut self, jobs: &Jobs) {
         if let Some(problem) = &self.frequency_problem {
             self.note = Some((problem.clone(), true));
             return;
@@ -150,39 +151,24 @@ impl DriveAreaState {
         if self.opening.is_some() {
             return;
         }
-        let (send, receive) = mpsc::channel();
         let choice = self.choice.clone();
         let settings = self.settings;
-        let repaint = ctx.clone();
-        let spawned = std::thread::Builder::new()
-            .name("tapwright-open-output".to_owned())
-            .spawn(move || {
-                let _ = send.send(open_output(&choice, &settings));
-                repaint.request_repaint();
-            });
-        match spawned {
-            Ok(_) => self.opening = Some(receive),
-            Err(error) => {
-                self.wanted = false;
-                self.note = Some((
-                    sentence(&format!("cannot start the output thread: {error}")),
-                    true,
-                ));
-            }
-        }
+        let mut opening = jobs.inbox();
+        opening.spawn("open-output", move || open_output(&choice, &settings));
+        self.opening = Some(opening);
     }
 
     /// Takes a finished opening, passes new settings on, reports device
     /// trouble, and closes an output whose tone has ended.
-    fn follow(&mut self, ctx: &egui::Context) {
-        self.take_opened();
+    fn follow(&mut self, ctx: &egui::Context, jobs: &Jobs) {
+        self.take_opened(jobs);
         let Some(output) = self.output.as_mut() else {
             return;
         };
         if let Some(problem) = output.problem() {
             self.note = Some((sentence(&problem), true));
             self.wanted = false;
-            close_in_background(self.output.take());
+            close_in_background(jobs, self.output.take());
             return;
         }
         if self.sent != Some(self.settings)
@@ -193,22 +179,18 @@ impl DriveAreaState {
         }
         let finished = !self.wanted && output.controls().is_finished();
         if finished {
-            close_in_background(self.output.take());
+            close_in_background(jobs, self.output.take());
         } else {
             ctx.request_repaint_after(READOUT_REPAINT);
         }
     }
 
-    fn take_opened(&mut self) {
-        let Some(receive) = &self.opening else {
+    fn take_opened(&mut self, jobs: &Jobs) {
+        let Some(opening) = &mut self.opening else {
             return;
         };
-        let opened = match receive.try_recv() {
-            Ok(opened) => opened,
-            Err(TryRecvError::Empty) => return,
-            Err(TryRecvError::Disconnected) => Err(AudioError::Thread {
-                detail: "the output thread ended without an answer".to_owned(),
-            }),
+        let Some(opened) = opening.drain().pop() else {
+            return;
         };
         self.opening = None;
         match opened {
@@ -216,7 +198,7 @@ impl DriveAreaState {
                 if let Err(error) = self.settings.check(Some(output.sample_rate_hz())) {
                     self.wanted = false;
                     self.note = Some((sentence(&error.to_string()), true));
-                    close_in_background(Some(output));
+                    close_in_background(jobs, Some(output));
                 } else if self.wanted {
                     output.controls().set_settings(&self.settings);
                     self.sent = Some(self.settings);
@@ -224,7 +206,7 @@ impl DriveAreaState {
                     self.output = Some(output);
                 } else {
                     // Stopped (Escape) while the device was opening.
-                    close_in_background(Some(output));
+                    close_in_background(jobs, Some(output));
                 }
             }
             Err(error) => {
@@ -242,26 +224,20 @@ impl Drop for DriveAreaState {
 }
 
 /// Closing waits for the fade-out and the tail: do it off the UI thread.
-fn close_in_background(output: Option<ToneOutput>) {
-    let Some(output) = output else {
-        return;
-    };
-    let closing = std::thread::Builder::new()
-        .name("tapwright-close-output".to_owned())
-        .spawn(move || drop(output));
-    // Without a thread the output is dropped here (when the closure is),
-    // which waits on this thread instead.
-    drop(closing);
+fn close_in_background(jobs: &Jobs, output: Option<ToneOutput>) {
+    if let Some(output) = output {
+        jobs.detach("close-output", move || drop(output));
+    }
 }
 
 /// What runs every frame whatever the area shown (called by the app):
 /// Escape stops the tone; a finished opening is taken, device trouble
 /// reported, and an output whose tone has ended closed.
-pub fn each_frame(ui: &egui::Ui, state: &mut DriveAreaState) {
+pub fn each_frame(ui: &egui::Ui, state: &mut DriveAreaState, jobs: &Jobs) {
     if ui.input(|i| i.key_pressed(egui::Key::Escape)) {
         state.stop();
     }
-    state.follow(ui.ctx());
+    state.follow(ui.ctx(), jobs);
 }
 
 /// A mode offered for driving: frequency and what to call it.
@@ -296,7 +272,7 @@ pub fn show(
                 ui.separator();
                 ui.vertical(|ui| {
                     ui.set_width((0.34 * total).floor());
-                    controls(ui, state);
+                    controls(ui, state, ctx.jobs);
                 });
                 ui.separator();
                 ui.vertical(|ui| {
@@ -405,7 +381,7 @@ fn offer_buttons(
     }
 }
 
-fn controls(ui: &mut egui::Ui, state: &mut DriveAreaState) {
+fn controls(ui: &mut egui::Ui, state: &mut DriveAreaState, jobs: &Jobs) {
     ui.strong("Tone");
     egui::Grid::new("drive controls")
         .num_columns(2)
@@ -478,7 +454,7 @@ fn controls(ui: &mut egui::Ui, state: &mut DriveAreaState) {
             .add_enabled(!state.wanted, egui::Button::new("Start"))
             .on_hover_text("Fade the tone in");
         if start.clicked() {
-            state.start(ui.ctx());
+            state.start(jobs);
         }
         let stop = ui
             .add_enabled(

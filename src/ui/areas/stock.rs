@@ -19,7 +19,8 @@ use crate::acoustics::stock::{bar_figures, BarFigures, BarMode, BarSample, WOOD_
 use crate::ledger::StockSample;
 
 use crate::text::{capitalised, num, parse_number, sentence};
-use crate::ui::commands::{AppCommand, AreaContext};
+use crate::ui::commands::AppCommand;
+use crate::ui::context::AreaContext;
 
 /// Width of a number field, points.
 const FIELD_WIDTH: f32 = 64.0;

@@ -9,7 +9,7 @@ use crate::ledger::{Build, PartKind};
 
 use super::Checked;
 use crate::text::{note_text, num, parse_number, sentence, signed};
-use crate::ui::commands::AreaContext;
+use crate::ui::context::AreaContext;
 
 /// Width of a number field, points.
 const FIELD_WIDTH: f32 = 72.0;

@@ -24,7 +24,7 @@ use eframe::egui;
 use crate::acoustics::{estimate_cavity, CavityEstimate, CavityGeometry};
 use crate::ledger::{Build, Timestamp};
 
-use crate::ui::commands::AreaContext;
+use crate::ui::context::AreaContext;
 use form::GeometryDraft;
 
 /// What the Air area remembers between frames (volume, openings, air

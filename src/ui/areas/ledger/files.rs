@@ -1,19 +1,19 @@
 //! File work of the Ledger area that must not hold up the window: file
-//! dialogs (they block their thread until the maker answers) and CSV export
-//! (written atomically: a temporary file in the same folder, synced, then
-//! renamed over the target). Each job runs on its own thread and sends one
-//! [`FileDone`] back; the area picks the results up at the start of a frame.
+//! dialogs (they block their thread until the maker answers), the CSV
+//! export and the build report (both written atomically, see
+//! `atomic_file`). Each runs on the window's job runner and sends one
+//! [`FileDone`] back; the area picks the answers up at the start of a frame.
 
 use std::path::PathBuf;
-use std::sync::mpsc::{self, Receiver, Sender};
-
-use eframe::egui;
 
 use crate::ledger::{csv, Build};
 use crate::report::{build_report_html, ReportSettings};
 
 use super::Note;
-use crate::ui::commands::{AppCommand, AreaContext};
+use crate::ui::commands::AppCommand;
+use crate::ui::context::AreaContext;
+use crate::ui::dialogs::{EXPORT_CSV, OPEN_BUILD, SAVE_BUILD_AS, SAVE_REPORT};
+use crate::ui::jobs::{Inbox, Jobs};
 
 /// What a file job reports.
 #[derive(Debug)]
@@ -30,103 +30,54 @@ enum FileDone {
     },
 }
 
-/// The file jobs of the Ledger area.
-#[derive(Debug)]
+/// The file jobs of the Ledger area, run by the window's job runner.
+#[derive(Debug, Default)]
 pub struct FileJobs {
-    sender: Sender<FileDone>,
-    receiver: Receiver<FileDone>,
-    running: usize,
-    repaint: Option<egui::Context>,
-}
-
-impl Default for FileJobs {
-    fn default() -> Self {
-        let (sender, receiver) = mpsc::channel();
-        Self {
-            sender,
-            receiver,
-            running: 0,
-            repaint: None,
-        }
-    }
+    /// Where the answers arrive (made at the first job).
+    answers: Option<Inbox<FileDone>>,
 }
 
 impl FileJobs {
     /// True while a dialog is open or a file is being written.
     pub fn is_busy(&self) -> bool {
-        self.running > 0
+        self.answers.as_ref().is_some_and(|a| a.waiting() > 0)
     }
 
-    /// The window to wake when a job finishes.
-    pub fn set_context(&mut self, ctx: &egui::Context) {
-        if self.repaint.is_none() {
-            self.repaint = Some(ctx.clone());
-        }
-    }
-
-    fn spawn(&mut self, work: impl FnOnce() -> FileDone + Send + 'static) {
-        let sender = self.sender.clone();
-        let ctx = self.repaint.clone();
-        let spawned = std::thread::Builder::new()
-            .name("ledger-file".to_owned())
-            .spawn(move || {
-                let done = work();
-                // The area may be gone (window closed): nothing to tell then.
-                let _ = sender.send(done);
-                if let Some(ctx) = ctx {
-                    ctx.request_repaint();
-                }
-            });
-        if spawned.is_ok() {
-            self.running += 1;
-        }
+    fn spawn(&mut self, jobs: &Jobs, work: impl FnOnce() -> FileDone + Send + 'static) {
+        self.answers
+            .get_or_insert_with(|| jobs.inbox())
+            .spawn("ledger-file", work);
     }
 
     /// Shows the dialog to choose a build file to open.
-    pub fn choose_build_to_open(&mut self) {
-        self.spawn(|| {
-            let path = rfd::FileDialog::new()
-                .set_title("Open a build")
-                .add_filter("tapwright build", &["ron"])
-                .pick_file();
-            FileDone::OpenChosen(path)
-        });
+    pub fn choose_build_to_open(&mut self, jobs: &Jobs) {
+        self.spawn(jobs, || FileDone::OpenChosen(OPEN_BUILD.pick()));
     }
 
     /// Shows the dialog to choose where to save the build.
-    pub fn choose_save_path(&mut self, build_name: &str) {
+    pub fn choose_save_path(&mut self, jobs: &Jobs, build_name: &str) {
         let suggested = format!("{}.ron", file_stem_for(build_name));
-        self.spawn(move || {
-            let path = rfd::FileDialog::new()
-                .set_title("Save the build as")
-                .add_filter("tapwright build", &["ron"])
-                .set_file_name(suggested)
-                .save_file();
-            FileDone::SaveChosen(path)
+        self.spawn(jobs, move || {
+            FileDone::SaveChosen(SAVE_BUILD_AS.save(&suggested))
         });
     }
 
     /// Shows the dialog to choose where the CSV goes, then writes it.
-    pub fn choose_csv_path(&mut self, build: &Build) {
+    pub fn choose_csv_path(&mut self, jobs: &Jobs, build: &Build) {
         let text = csv::pass_table(build);
         let suggested = format!("{} passes.csv", file_stem_for(&build.name));
-        self.spawn(move || {
-            let path = rfd::FileDialog::new()
-                .set_title("Export the pass table as CSV")
-                .add_filter("CSV table", &["csv"])
-                .set_file_name(suggested)
-                .save_file();
-            FileDone::Exported {
-                what: PASS_TABLE,
-                result: path.map(|path| write_text(path, &text)),
-            }
+        self.spawn(jobs, move || FileDone::Exported {
+            what: PASS_TABLE,
+            result: EXPORT_CSV
+                .save(&suggested)
+                .map(|path| write_text(path, &text)),
         });
     }
 
     /// Writes the pass table of `build` as CSV to `path`.
-    pub fn export_csv(&mut self, build: &Build, path: PathBuf) {
+    pub fn export_csv(&mut self, jobs: &Jobs, build: &Build, path: PathBuf) {
         let text = csv::pass_table(build);
-        self.spawn(move || FileDone::Exported {
+        self.spawn(jobs, move || FileDone::Exported {
             what: PASS_TABLE,
             result: Some(write_text(path, &text)),
         });
@@ -134,26 +85,21 @@ impl FileJobs {
 
     /// Shows the dialog to choose where the build report goes, then writes
     /// it (made on the job's thread from a copy of the build).
-    pub fn choose_report_path(&mut self, build: &Build, a4_hz: f64) {
+    pub fn choose_report_path(&mut self, jobs: &Jobs, build: &Build, a4_hz: f64) {
         let build = build.clone();
         let suggested = format!("{} report.html", file_stem_for(&build.name));
-        self.spawn(move || {
-            let path = rfd::FileDialog::new()
-                .set_title("Save the build report")
-                .add_filter("Web page (HTML)", &["html"])
-                .set_file_name(suggested)
-                .save_file();
-            FileDone::Exported {
-                what: REPORT,
-                result: path.map(|path| write_report(path, &build, a4_hz)),
-            }
+        self.spawn(jobs, move || FileDone::Exported {
+            what: REPORT,
+            result: SAVE_REPORT
+                .save(&suggested)
+                .map(|path| write_report(path, &build, a4_hz)),
         });
     }
 
     /// Writes the build report of `build` to `path`.
-    pub fn export_report(&mut self, build: &Build, path: PathBuf, a4_hz: f64) {
+    pub fn export_report(&mut self, jobs: &Jobs, build: &Build, path: PathBuf, a4_hz: f64) {
         let build = build.clone();
-        self.spawn(move || FileDone::Exported {
+        self.spawn(jobs, move || FileDone::Exported {
             what: REPORT,
             result: Some(write_report(path, &build, a4_hz)),
         });
@@ -161,8 +107,8 @@ impl FileJobs {
 
     /// Turns finished jobs into commands and notes.
     pub fn take_results(&mut self, note: &mut Option<Note>, ctx: &mut AreaContext) {
-        while let Ok(done) = self.receiver.try_recv() {
-            self.running = self.running.saturating_sub(1);
+        let arrived = self.answers.as_mut().map(Inbox::drain).unwrap_or_default();
+        for done in arrived {
             match done {
                 FileDone::OpenChosen(Some(path)) => ctx.push(AppCommand::OpenBuild(path)),
                 FileDone::SaveChosen(Some(path)) => ctx.push(AppCommand::SaveBuildAs(path)),

@@ -10,7 +10,7 @@ use crate::ledger::{LedgerError, Part};
 use super::{try_edit, LedgerAreaState, Note};
 use crate::text::forecast::forecast_lines;
 use crate::text::{num, parse_optional_number};
-use crate::ui::commands::AreaContext;
+use crate::ui::context::AreaContext;
 
 /// The targets table and the forecasts.
 pub fn targets_and_forecasts(

@@ -30,7 +30,8 @@ use eframe::egui;
 use crate::demo::SAMPLE_BUILDS;
 use crate::ledger::{Build, Family, LedgerError, Part};
 use crate::text::{capitalised, date_text, sentence};
-use crate::ui::commands::{AppCommand, AreaContext};
+use crate::ui::commands::AppCommand;
+use crate::ui::context::AreaContext;
 
 /// What the Ledger area remembers between frames (selection, chart view,
 /// text being typed …). Owned by the app.
@@ -139,7 +140,6 @@ enum Replace {
 
 /// Draws the Ledger area.
 pub fn show(ui: &mut egui::Ui, state: &mut LedgerAreaState, ctx: &mut AreaContext) {
-    state.files.set_context(ui.ctx());
     state.files.take_results(&mut state.bar_note, ctx);
     record::follow_up(&mut state.record, ctx);
     keep_selection_valid(state, ctx.build);
@@ -289,7 +289,7 @@ fn build_bar(ui: &mut egui::Ui, state: &mut LedgerAreaState, ctx: &mut AreaConte
             }
             if ui.button("Save as…").clicked() {
                 let name = ctx.build.map(|b| b.name.clone()).unwrap_or_default();
-                state.files.choose_save_path(&name);
+                state.files.choose_save_path(ctx.jobs, &name);
             }
             if ui
                 .button("Export CSV…")
@@ -297,7 +297,7 @@ fn build_bar(ui: &mut egui::Ui, state: &mut LedgerAreaState, ctx: &mut AreaConte
                 .clicked()
             {
                 if let Some(build) = ctx.build {
-                    state.files.choose_csv_path(build);
+                    state.files.choose_csv_path(ctx.jobs, build);
                 }
             }
             if ui
@@ -309,7 +309,7 @@ fn build_bar(ui: &mut egui::Ui, state: &mut LedgerAreaState, ctx: &mut AreaConte
                 .clicked()
             {
                 if let Some(build) = ctx.build {
-                    state.files.choose_report_path(build, ctx.a4_hz);
+                    state.files.choose_report_path(ctx.jobs, build, ctx.a4_hz);
                 }
             }
             if ui.button("Close build").clicked() {
@@ -349,14 +349,16 @@ fn build_bar(ui: &mut egui::Ui, state: &mut LedgerAreaState, ctx: &mut AreaConte
             }
             if ui.button("Export CSV here").clicked() {
                 match (typed_path(&state.file_path, "csv"), ctx.build) {
-                    (Ok(path), Some(build)) => state.files.export_csv(build, path),
+                    (Ok(path), Some(build)) => state.files.export_csv(ctx.jobs, build, path),
                     (Err(problem), _) => state.bar_note = Some(Note::error(problem)),
                     _ => {}
                 }
             }
             if ui.button("Save report here").clicked() {
                 match (typed_path(&state.file_path, "html"), ctx.build) {
-                    (Ok(path), Some(build)) => state.files.export_report(build, path, ctx.a4_hz),
+                    (Ok(path), Some(build)) => {
+                        state.files.export_report(ctx.jobs, build, path, ctx.a4_hz)
+                    }
                     (Err(problem), _) => state.bar_note = Some(Note::error(problem)),
                     _ => {}
                 }
@@ -488,7 +490,7 @@ fn do_replace(state: &mut LedgerAreaState, ctx: &mut AreaContext, action: Replac
             state.selected_part = None;
             ctx.push(AppCommand::OpenBuild(path));
         }
-        Replace::OpenDialog => state.files.choose_build_to_open(),
+        Replace::OpenDialog => state.files.choose_build_to_open(ctx.jobs),
         Replace::Sample(index) => match load_sample(index) {
             Ok(build) => {
                 state.selected_part = None;

@@ -9,7 +9,8 @@ use crate::ledger::{Build, LedgerError, Part, PartKind};
 
 use super::{try_edit, LedgerAreaState, Note};
 use crate::text::{num, parse_optional_number, signed};
-use crate::ui::commands::{AppCommand, AreaContext};
+use crate::ui::commands::AppCommand;
+use crate::ui::context::AreaContext;
 
 /// The kinds offered when adding a part.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Default)]

@@ -10,7 +10,8 @@ use crate::ledger::{Part, PassInput, PassOutcome, ThicknessReading};
 
 use super::Note;
 use crate::text::{num, parse_optional_number, sentence};
-use crate::ui::commands::{AppCommand, Area, AreaContext};
+use crate::ui::commands::{AppCommand, Area};
+use crate::ui::context::AreaContext;
 
 /// One thickness reading being typed.
 #[derive(Clone, Debug, Default, PartialEq)]

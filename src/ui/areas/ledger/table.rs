@@ -9,7 +9,7 @@ use crate::ledger::{FrequencyChange, LedgerError, Part, Pass};
 
 use super::{try_edit, LedgerAreaState, Note};
 use crate::text::{date_text, num, parse_optional_number, signed};
-use crate::ui::commands::AreaContext;
+use crate::ui::context::AreaContext;
 
 /// Tallest the table grows before it scrolls, points.
 const TABLE_MAX_HEIGHT: f32 = 320.0;
