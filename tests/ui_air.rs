@@ -30,19 +30,6 @@ fn air_harness() -> Harness<'static, TapwrightApp> {
     harness
 }
 
-/// Replaces the text of the field labelled `label`.
-fn set_field(harness: &mut Harness<'_, TapwrightApp>, label: &str, text: &str) {
-    harness.get_by_label(label).set_text_value_accesskit(text);
-    harness.run_ok();
-}
-
-fn field_value(harness: &Harness<'_, TapwrightApp>, label: &str) -> String {
-    harness
-        .get_by_label(label)
-        .value()
-        .unwrap_or_else(|| panic!("the field {label} has no value"))
-}
-
 /// The way the window writes signed numbers: a true minus sign.
 fn signed(value: f64, decimals: usize) -> String {
     format!("{value:+.decimals$}").replace('-', "\u{2212}")

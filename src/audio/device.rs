@@ -478,6 +478,17 @@ pub(crate) trait StreamMaker {
         f32: FromSample<T>;
 }
 
+/// The error callback of a stream: each error goes to `errors` for the
+/// reader on the other side; with the ring full, an older error is already
+/// waiting and this one is dropped.
+pub(crate) fn keep_errors(
+    mut errors: rtrb::Producer<cpal::Error>,
+) -> impl FnMut(cpal::Error) + Send + 'static {
+    move |error| {
+        let _ = errors.push(error);
+    }
+}
+
 fn build_for_format(
     device: &cpal::Device,
     config: &StreamConfig,

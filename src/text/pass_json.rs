@@ -7,16 +7,12 @@ use serde::Serialize;
 use crate::analysis::pitch::nearest_note;
 use crate::analysis::PassMode;
 
-/// One mode of a pass, with its nearest note.
+/// One mode of a pass, with its nearest note: the pass's own fields
+/// ([`PassMode`], written as they are) and then `note` and `cents`.
 #[derive(Clone, Debug, PartialEq, Serialize)]
 pub struct ModeJson {
-    pub frequency_hz: f64,
-    pub q: f64,
-    pub level_db: f64,
-    pub prominence_db: f64,
-    pub spread_hz: f64,
-    pub q_spread: f64,
-    pub taps_seen: usize,
+    #[serde(flatten)]
+    pub mode: PassMode,
     /// The nearest equal-tempered note ("E4"), empty when there is none.
     pub note: String,
     /// Cents from that note, in [−50, 50); 0 when there is no note.
@@ -28,13 +24,7 @@ impl ModeJson {
     pub fn new(mode: &PassMode, a4_hz: f64) -> Self {
         let pitch = nearest_note(mode.frequency_hz, a4_hz);
         Self {
-            frequency_hz: mode.frequency_hz,
-            q: mode.q,
-            level_db: mode.level_db,
-            prominence_db: mode.prominence_db,
-            spread_hz: mode.spread_hz,
-            q_spread: mode.q_spread,
-            taps_seen: mode.taps_seen,
+            mode: mode.clone(),
             note: pitch.as_ref().map(|p| p.note.clone()).unwrap_or_default(),
             cents: pitch.map(|p| p.cents).unwrap_or(0.0),
         }
@@ -47,21 +37,20 @@ pub fn modes_json(modes: &[PassMode], a4_hz: f64) -> Vec<ModeJson> {
 }
 
 #[cfg(test)]
-mod tests {
+pub(crate) mod tests {
     use super::*;
 
-    fn sample_mode() -> ModeJson {
-        ModeJson {
-            frequency_hz: 330.0,
-            q: 50.0,
-            level_db: -20.0,
-            prominence_db: 12.0,
-            spread_hz: 0.1,
-            q_spread: 2.0,
-            taps_seen: 3,
-            note: "E4".to_owned(),
-            cents: 1.96,
-        }
+    pub(crate) fn sample_mode() -> ModeJson {
+        // 330 Hz against A4 = 440 Hz is E4 + 1.96 cents (12-TET, ISO 16).
+        let json = serde_json::json!({
+            "frequency_hz": 330.0, "q": 50.0, "level_db": -20.0, "prominence_db": 12.0,
+            "spread_hz": 0.1, "q_spread": 2.0, "taps_seen": 3,
+        });
+        let mode: PassMode = serde_json::from_value(json).expect("a pass mode");
+        let made = ModeJson::new(&mode, 440.0);
+        assert_eq!(made.note, "E4");
+        assert!((made.cents - 1.955).abs() < 0.001, "{}", made.cents);
+        made
     }
 
     /// The fields README.md lists for each mode, in its order.

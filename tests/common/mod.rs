@@ -1,10 +1,15 @@
-//! What the window tests share: the real app in a kittest harness on the
-//! bundled demo recording, and bounded waits for background work.
+//! What the tests share. Here: the real app in a kittest harness on the
+//! bundled demo recording, bounded waits for background work, and typing
+//! into a form field; in `alsa`: the end-to-end ALSA set-up.
 #![allow(dead_code)] // each test file uses its own subset
+
+#[cfg(target_os = "linux")]
+pub mod alsa;
 
 use std::time::{Duration, Instant};
 
 use eframe::egui;
+use egui_kittest::kittest::Queryable;
 use egui_kittest::Harness;
 use tapwright::audio::Pacing;
 use tapwright::ui::{AppOptions, SourceState, StartSource, TapwrightApp};
@@ -58,4 +63,18 @@ pub fn demo_finished(harness: &mut Harness<'_, TapwrightApp>) {
     step_until(harness, "the demo taps", |app| {
         app.input().state == SourceState::Ended && !app.is_busy()
     });
+}
+
+/// Replaces the text of the field labelled `label`.
+pub fn set_field(harness: &mut Harness<'_, TapwrightApp>, label: &str, text: &str) {
+    harness.get_by_label(label).set_text_value_accesskit(text);
+    harness.run_ok();
+}
+
+/// The text in the field labelled `label`.
+pub fn field_value(harness: &Harness<'_, TapwrightApp>, label: &str) -> String {
+    harness
+        .get_by_label(label)
+        .value()
+        .unwrap_or_else(|| panic!("the field {label} has no value"))
 }

@@ -16,8 +16,8 @@ use cpal::{FromSample, SizedSample, StreamConfig};
 use super::ring::{sample_ring, RingReader, RingWriter};
 use super::source::{OpenSource, SampleSource, SourceRead};
 use crate::audio::device::{
-    choose_device, close_stream, stream_problem, StreamMaker, StreamProblem, BACKEND_TIMEOUT,
-    ERROR_RING_LEN,
+    choose_device, close_stream, keep_errors, stream_problem, StreamMaker, StreamProblem,
+    BACKEND_TIMEOUT, ERROR_RING_LEN,
 };
 use crate::audio::error::{AudioError, Direction};
 use crate::audio::settings::ring_capacity_samples;
@@ -145,7 +145,7 @@ impl StreamMaker for InputStream {
         let Self {
             channels,
             mut writer,
-            mut errors,
+            errors,
         } = self;
         device.build_input_stream_raw(
             *config,
@@ -159,10 +159,7 @@ impl StreamMaker for InputStream {
                     );
                 }
             },
-            move |error: cpal::Error| {
-                // Full ring: an older error is already waiting; drop this one.
-                let _ = errors.push(error);
-            },
+            keep_errors(errors),
             Some(BACKEND_TIMEOUT),
         )
     }

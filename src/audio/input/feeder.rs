@@ -9,7 +9,7 @@ use std::thread::JoinHandle;
 use std::time::{Duration, Instant};
 
 use super::ring::{sample_ring, RingReader, RingWriter};
-use super::source::{SampleSource, SourceRead};
+use super::source::{OpenSource, SampleSource, SourceRead};
 use crate::audio::error::AudioError;
 use crate::audio::settings::{check_sample_rate, ring_capacity_samples, Pacing};
 
@@ -122,6 +122,43 @@ impl Drop for FedSource {
         if let Some(thread) = self.thread.take() {
             let _ = thread.join();
         }
+    }
+}
+
+/// Opens a fed source once: a recording or a schedule of made-up taps does
+/// not come back after it ends or is lost (the worker does not retry it).
+pub(crate) struct FedOpener {
+    /// The generator, until the source is opened.
+    pub generator: Option<Box<dyn SampleGenerator>>,
+    /// How fast it is delivered.
+    pub pacing: Pacing,
+    /// What it plays ("recording"), for the error of a second opening.
+    pub what: &'static str,
+}
+
+impl std::fmt::Debug for FedOpener {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("FedOpener")
+            .field("what", &self.what)
+            .field("pacing", &self.pacing)
+            .finish_non_exhaustive()
+    }
+}
+
+impl OpenSource for FedOpener {
+    fn open(&mut self, ring_capacity_s: f64) -> Result<Box<dyn SampleSource>, AudioError> {
+        let generator = self.generator.take().ok_or(AudioError::EmptySource {
+            what: self.what.to_owned(),
+        })?;
+        Ok(Box::new(FedSource::start(
+            generator,
+            self.pacing,
+            ring_capacity_s,
+        )?))
+    }
+
+    fn can_reopen(&self) -> bool {
+        false
     }
 }
 

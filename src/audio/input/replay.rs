@@ -1,10 +1,7 @@
 //! A recording played back as if it were coming in from a microphone.
 
-use super::feeder::FedSource;
 use super::feeder::SampleGenerator;
-use super::source::{OpenSource, SampleSource};
 use crate::audio::error::AudioError;
-use crate::audio::settings::Pacing;
 use crate::wav_io::MonoRecording;
 
 /// Plays a [`MonoRecording`] from the start, once or over and over.
@@ -62,30 +59,6 @@ impl SampleGenerator for ReplayGenerator {
             self.position += take;
         }
         written
-    }
-}
-
-/// Opens a replay once; a recording cannot come back after it ends.
-#[derive(Debug)]
-pub(crate) struct ReplayOpener {
-    pub(crate) generator: Option<ReplayGenerator>,
-    pub(crate) pacing: Pacing,
-}
-
-impl OpenSource for ReplayOpener {
-    fn open(&mut self, ring_capacity_s: f64) -> Result<Box<dyn SampleSource>, AudioError> {
-        let generator = self.generator.take().ok_or(AudioError::EmptySource {
-            what: "recording".to_owned(),
-        })?;
-        Ok(Box::new(FedSource::start(
-            Box::new(generator),
-            self.pacing,
-            ring_capacity_s,
-        )?))
-    }
-
-    fn can_reopen(&self) -> bool {
-        false
     }
 }
 

@@ -7,12 +7,9 @@
 
 use std::f64::consts::PI;
 
-use super::feeder::FedSource;
 use super::feeder::SampleGenerator;
-use super::source::{OpenSource, SampleSource};
 use crate::analysis::synth::{NoiseGenerator, SynthMode};
 use crate::audio::error::AudioError;
-use crate::audio::settings::Pacing;
 
 /// Contact time of the made-up mallet.
 const CONTACT_MS: f64 = 0.8;
@@ -215,28 +212,6 @@ impl SampleGenerator for SyntheticGenerator {
         self.ringing
             .retain(|r| r.re * r.re + r.im * r.im > SILENT_AMPLITUDE * SILENT_AMPLITUDE);
         room
-    }
-}
-
-/// Opens a synthetic source; it can be started again after a loss.
-#[derive(Debug)]
-pub(crate) struct SyntheticOpener {
-    pub(crate) taps: SyntheticTaps,
-    pub(crate) pacing: Pacing,
-}
-
-impl OpenSource for SyntheticOpener {
-    fn open(&mut self, ring_capacity_s: f64) -> Result<Box<dyn SampleSource>, AudioError> {
-        let generator = SyntheticGenerator::new(self.taps.clone())?;
-        Ok(Box::new(FedSource::start(
-            Box::new(generator),
-            self.pacing,
-            ring_capacity_s,
-        )?))
-    }
-
-    fn can_reopen(&self) -> bool {
-        false
     }
 }
 

@@ -18,10 +18,11 @@ use std::time::{Duration, Instant};
 
 use super::device_source::DeviceOpener;
 use super::events::{CaptureEvent, InputLevel};
+use super::feeder::FedOpener;
 use super::pipeline::TapPipeline;
-use super::replay::{ReplayGenerator, ReplayOpener};
+use super::replay::ReplayGenerator;
 use super::source::{OpenSource, SampleSource, SourceRead};
-use super::synthetic::{SyntheticGenerator, SyntheticOpener};
+use super::synthetic::SyntheticGenerator;
 use crate::audio::error::AudioError;
 use crate::audio::settings::{CaptureSettings, SourceChoice, SILENCE_LIMIT};
 
@@ -169,15 +170,17 @@ fn opener_for(source: SourceChoice) -> Result<Box<dyn OpenSource>, AudioError> {
             recording,
             pacing,
             looped,
-        } => Box::new(ReplayOpener {
-            generator: Some(ReplayGenerator::new(recording, looped)?),
+        } => Box::new(FedOpener {
+            generator: Some(Box::new(ReplayGenerator::new(recording, looped)?)),
             pacing,
+            what: "recording",
         }),
-        SourceChoice::Synthetic { taps, pacing } => {
-            // Checked here so that a bad schedule fails at start.
-            SyntheticGenerator::new(taps.clone())?;
-            Box::new(SyntheticOpener { taps, pacing })
-        }
+        // Made here so that a bad schedule fails at start.
+        SourceChoice::Synthetic { taps, pacing } => Box::new(FedOpener {
+            generator: Some(Box::new(SyntheticGenerator::new(taps)?)),
+            pacing,
+            what: "synthetic tap schedule",
+        }),
         SourceChoice::Custom(opener) => opener,
     })
 }

@@ -19,8 +19,8 @@ use cpal::{FromSample, SizedSample, StreamConfig};
 
 use super::tone::{ToneControls, ToneRenderer, ToneSettings, FADE_S};
 use crate::audio::device::{
-    choose_device, close_stream, stream_problem, StreamMaker, StreamProblem, BACKEND_TIMEOUT,
-    ERROR_RING_LEN,
+    choose_device, close_stream, keep_errors, stream_problem, StreamMaker, StreamProblem,
+    BACKEND_TIMEOUT, ERROR_RING_LEN,
 };
 use crate::audio::error::{AudioError, Direction};
 use crate::audio::settings::check_sample_rate;
@@ -176,7 +176,7 @@ impl StreamMaker for OutputStream {
         let Self {
             channels,
             mut renderer,
-            mut errors,
+            errors,
         } = self;
         device.build_output_stream_raw(
             *config,
@@ -186,10 +186,7 @@ impl StreamMaker for OutputStream {
                     renderer.fill(samples, channels, <T as FromSample<f32>>::from_sample_);
                 }
             },
-            move |error: cpal::Error| {
-                // Full ring: an older error is already waiting; drop this one.
-                let _ = errors.push(error);
-            },
+            keep_errors(errors),
             Some(BACKEND_TIMEOUT),
         )
     }

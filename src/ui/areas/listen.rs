@@ -10,8 +10,7 @@ use crate::audio::CaptureSettings;
 use crate::text::note_text;
 
 use crate::ui::commands::{AppCommand, ListenCommand, SourcePick};
-use crate::ui::context::AreaContext;
-use crate::ui::context::{InputView, SourceState};
+use crate::ui::context::{AreaContext, InputView, SourceState};
 use crate::ui::session::ListenSession;
 use crate::ui::widgets::level_meter::level_meter;
 use crate::ui::widgets::spectrum_plot::{self, CursorReadout};

@@ -99,17 +99,7 @@ mod tests {
 
     #[test]
     fn an_exported_mode_is_the_command_line_mode_and_its_label() {
-        let mode = ModeJson {
-            frequency_hz: 338.2,
-            q: 60.0,
-            level_db: -18.0,
-            prominence_db: 14.0,
-            spread_hz: 0.2,
-            q_spread: 3.0,
-            taps_seen: 5,
-            note: "E4".to_owned(),
-            cents: 42.0,
-        };
+        let mode = crate::text::pass_json::tests::sample_mode();
         let alone = serde_json::to_value(&mode).expect("test value");
         let exported = serde_json::to_value(ModeExport {
             mode,
