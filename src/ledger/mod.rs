@@ -23,7 +23,7 @@ pub mod time;
 
 pub use carry_over::{CarriedLabel, CarryOver};
 pub use forecast::{FallbackReason, Forecast, ForecastMethod, ForecastWarning, ThicknessForecast};
-pub use labels::preset_labels;
+pub use model::preset_labels;
 pub use model::{
     Build, Family, FrequencyChange, LabelPoint, MeasuredMode, ModeLabel, Part, PartKind, Pass,
     PassChange, PassInput, PassModeRecord, PassOutcome, ThicknessReading, SCHEMA_VERSION,
