@@ -2,7 +2,7 @@
 //! the modes (frequency, Q, level) of each tap, combining taps into a pass,
 //! the display spectrum and pitch naming. No files, no devices, no window.
 //!
-//! The method is the one in `DEVELOPERS.md` ("How a tap is measured"): a
+//! The method is the one in `README.md` ("How a tap is measured"): a
 //! complex-ratio estimate on the unwindowed DFT of a record matched to each
 //! mode's decay, subtraction of stronger modes, then a joint least-squares
 //! refinement of overlapping modes in the time domain.
