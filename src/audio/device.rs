@@ -16,7 +16,7 @@ use super::settings::check_sample_rate;
 /// Stream errors waiting to be read (more are dropped).
 pub(crate) const ERROR_RING_LEN: usize = 16;
 /// How long cpal may wait for the backend (ALSA uses it as its poll timeout).
-pub(crate) const BACKEND_TIMEOUT: Duration = Duration::from_millis(500);
+const BACKEND_TIMEOUT: Duration = Duration::from_millis(500);
 /// Longest wait for a stream to close before it is left behind.
 const STREAM_CLOSE_LIMIT: Duration = Duration::from_millis(500);
 
@@ -266,16 +266,23 @@ impl ChosenDevice {
         )
     }
 
-    /// Builds the stream with `maker` for the device's sample format and
-    /// starts it; a failure is one sentence naming the device.
-    pub fn start(&self, maker: impl StreamMaker) -> Result<cpal::Stream, AudioError> {
+    /// Builds the stream for the device's sample format, with `callback`
+    /// on the audio thread and stream errors going to `errors`, and starts
+    /// it; a failure is one sentence naming the device.
+    pub fn start<C: StreamCallback>(
+        &self,
+        callback: C,
+        errors: rtrb::Producer<cpal::Error>,
+    ) -> Result<cpal::Stream, AudioError> {
         let failed = |e: cpal::Error| open_error(&self.name, self.is_default, self.direction, &e);
-        let stream = build_for_format(
-            &self.device,
-            &self.config(),
-            self.supported.sample_format(),
-            maker,
-        )
+        let stream = StreamParts {
+            device: &self.device,
+            config: self.config(),
+            direction: self.direction,
+            callback,
+            errors,
+        }
+        .build_for(self.supported.sample_format())
         .map_err(failed)?;
         stream.play().map_err(failed)?;
         Ok(stream)
@@ -463,56 +470,108 @@ fn open_error(
     }
 }
 
-/// Builds a cpal stream for one sample type; [`ChosenDevice::start`] picks
-/// the type from the device's sample format. The input converts each type
-/// to f32, the output converts f32 to it, so every type offers both.
-pub(crate) trait StreamMaker {
-    /// Builds the stream with samples of type `T`.
-    fn build<T>(
-        self,
-        device: &cpal::Device,
-        config: &StreamConfig,
-    ) -> Result<cpal::Stream, cpal::Error>
-    where
-        T: SizedSample + FromSample<f32> + Send + 'static,
-        f32: FromSample<T>;
+/// A sample type a device may use: converted to f32 as it comes in, from
+/// f32 as it goes out.
+pub(crate) trait DeviceSample: SizedSample + Send + 'static {
+    /// The sample as f32, full scale ±1.
+    fn to_f32(self) -> f32;
+    /// An f32 sample, full scale ±1, as this type.
+    fn from_f32(value: f32) -> Self;
 }
 
-/// The error callback of a stream: each error goes to `errors` for the
-/// reader on the other side; with the ring full, an older error is already
-/// waiting and this one is dropped.
-pub(crate) fn keep_errors(
-    mut errors: rtrb::Producer<cpal::Error>,
-) -> impl FnMut(cpal::Error) + Send + 'static {
-    move |error| {
-        let _ = errors.push(error);
+impl<T> DeviceSample for T
+where
+    T: SizedSample + FromSample<f32> + Send + 'static,
+    f32: FromSample<T>,
+{
+    fn to_f32(self) -> f32 {
+        <f32 as FromSample<T>>::from_sample_(self)
+    }
+
+    fn from_f32(value: f32) -> Self {
+        <T as FromSample<f32>>::from_sample_(value)
     }
 }
 
-fn build_for_format(
-    device: &cpal::Device,
-    config: &StreamConfig,
-    format: SampleFormat,
-    maker: impl StreamMaker,
-) -> Result<cpal::Stream, cpal::Error> {
-    use cpal::{I24, U24};
-    match format {
-        SampleFormat::F32 => maker.build::<f32>(device, config),
-        SampleFormat::F64 => maker.build::<f64>(device, config),
-        SampleFormat::I8 => maker.build::<i8>(device, config),
-        SampleFormat::I16 => maker.build::<i16>(device, config),
-        SampleFormat::I24 => maker.build::<I24>(device, config),
-        SampleFormat::I32 => maker.build::<i32>(device, config),
-        SampleFormat::I64 => maker.build::<i64>(device, config),
-        SampleFormat::U8 => maker.build::<u8>(device, config),
-        SampleFormat::U16 => maker.build::<u16>(device, config),
-        SampleFormat::U24 => maker.build::<U24>(device, config),
-        SampleFormat::U32 => maker.build::<u32>(device, config),
-        SampleFormat::U64 => maker.build::<u64>(device, config),
-        _ => Err(cpal::Error::with_message(
-            cpal::ErrorKind::UnsupportedConfig,
-            format!("the {format} sample format is not PCM"),
-        )),
+/// The only code on the audio thread: what a stream does with each block,
+/// in whatever sample type the device uses. An input stream takes the
+/// samples that came in; an output stream fills the block to play.
+pub(crate) trait StreamCallback: Send + 'static {
+    /// Takes a block that came in (input streams).
+    fn take<T: DeviceSample>(&mut self, _data: &[T]) {}
+    /// Fills a block to play (output streams).
+    fn fill<T: DeviceSample>(&mut self, _data: &mut [T]) {}
+}
+
+/// Everything a stream is built from.
+struct StreamParts<'a, C> {
+    device: &'a cpal::Device,
+    config: StreamConfig,
+    direction: Direction,
+    callback: C,
+    errors: rtrb::Producer<cpal::Error>,
+}
+
+impl<C: StreamCallback> StreamParts<'_, C> {
+    /// Builds the stream for the sample type of `format`.
+    fn build_for(self, format: SampleFormat) -> Result<cpal::Stream, cpal::Error> {
+        use cpal::{I24, U24};
+        match format {
+            SampleFormat::F32 => self.build::<f32>(),
+            SampleFormat::F64 => self.build::<f64>(),
+            SampleFormat::I8 => self.build::<i8>(),
+            SampleFormat::I16 => self.build::<i16>(),
+            SampleFormat::I24 => self.build::<I24>(),
+            SampleFormat::I32 => self.build::<i32>(),
+            SampleFormat::I64 => self.build::<i64>(),
+            SampleFormat::U8 => self.build::<u8>(),
+            SampleFormat::U16 => self.build::<u16>(),
+            SampleFormat::U24 => self.build::<U24>(),
+            SampleFormat::U32 => self.build::<u32>(),
+            SampleFormat::U64 => self.build::<u64>(),
+            _ => Err(cpal::Error::with_message(
+                cpal::ErrorKind::UnsupportedConfig,
+                format!("the {format} sample format is not PCM"),
+            )),
+        }
+    }
+
+    fn build<T: DeviceSample>(self) -> Result<cpal::Stream, cpal::Error> {
+        let Self {
+            device,
+            config,
+            direction,
+            mut callback,
+            mut errors,
+        } = self;
+        // With the ring full an older error is already waiting: drop this one.
+        let keep_error = move |error: cpal::Error| {
+            let _ = errors.push(error);
+        };
+        match direction {
+            Direction::Input => device.build_input_stream_raw(
+                config,
+                T::FORMAT,
+                move |data: &cpal::Data, _info: &cpal::InputCallbackInfo| {
+                    if let Some(samples) = data.as_slice::<T>() {
+                        callback.take(samples);
+                    }
+                },
+                keep_error,
+                Some(BACKEND_TIMEOUT),
+            ),
+            Direction::Output => device.build_output_stream_raw(
+                config,
+                T::FORMAT,
+                move |data: &mut cpal::Data, _info: &cpal::OutputCallbackInfo| {
+                    if let Some(samples) = data.as_slice_mut::<T>() {
+                        callback.fill(samples);
+                    }
+                },
+                keep_error,
+                Some(BACKEND_TIMEOUT),
+            ),
+        }
     }
 }
 

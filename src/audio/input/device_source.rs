@@ -10,14 +10,11 @@
 
 use std::time::{Duration, Instant};
 
-use cpal::traits::DeviceTrait;
-use cpal::{FromSample, SizedSample, StreamConfig};
-
 use super::ring::{sample_ring, RingReader, RingWriter};
 use super::source::{OpenSource, SampleSource, SourceRead};
 use crate::audio::device::{
-    choose_device, close_stream, keep_errors, stream_problem, StreamMaker, StreamProblem,
-    BACKEND_TIMEOUT, ERROR_RING_LEN,
+    choose_device, close_stream, stream_problem, DeviceSample, StreamCallback, StreamProblem,
+    ERROR_RING_LEN,
 };
 use crate::audio::error::{AudioError, Direction};
 use crate::audio::settings::ring_capacity_samples;
@@ -40,10 +37,9 @@ pub struct DeviceSource {
     description: String,
     sample_rate_hz: u32,
     reader: RingReader,
-    errors: rtrb::Consumer<cpal::Error>,
+    errors: StreamErrors,
     /// Kept alive for as long as the source is; dropping it stops the stream.
     stream: Option<cpal::Stream>,
-    last_notice: Option<Instant>,
     pace: DeliveryPace,
 }
 
@@ -106,62 +102,30 @@ pub fn open_device(wanted: Option<&str>, ring_capacity_s: f64) -> Result<DeviceS
         chosen.sample_rate_hz,
     ));
     let (error_writer, errors) = rtrb::RingBuffer::new(ERROR_RING_LEN);
-    let stream = chosen.start(InputStream {
-        channels,
-        writer,
-        errors: error_writer,
-    })?;
+    let stream = chosen.start(InputStream { channels, writer }, error_writer)?;
     Ok(DeviceSource {
         description: chosen.description(),
         sample_rate_hz: chosen.sample_rate_hz,
         reader,
-        errors,
+        errors: StreamErrors {
+            errors,
+            last_notice: None,
+        },
         stream: Some(stream),
-        last_notice: None,
         pace: DeliveryPace::new(),
     })
 }
 
-/// What the input stream's callback owns: the ring it pushes into and the
-/// ring its errors go to.
+/// What the input stream's callback owns: the ring it pushes into.
 struct InputStream {
     channels: usize,
     writer: RingWriter,
-    errors: rtrb::Producer<cpal::Error>,
 }
 
-impl StreamMaker for InputStream {
-    /// The data callback is the only code on the audio thread: convert,
-    /// mix, push, count.
-    fn build<T>(
-        self,
-        device: &cpal::Device,
-        config: &StreamConfig,
-    ) -> Result<cpal::Stream, cpal::Error>
-    where
-        T: SizedSample + FromSample<f32> + Send + 'static,
-        f32: FromSample<T>,
-    {
-        let Self {
-            channels,
-            mut writer,
-            errors,
-        } = self;
-        device.build_input_stream_raw(
-            *config,
-            T::FORMAT,
-            move |data: &cpal::Data, _info: &cpal::InputCallbackInfo| {
-                if let Some(samples) = data.as_slice::<T>() {
-                    writer.push_interleaved(
-                        samples,
-                        channels,
-                        <f32 as FromSample<T>>::from_sample_,
-                    );
-                }
-            },
-            keep_errors(errors),
-            Some(BACKEND_TIMEOUT),
-        )
+impl StreamCallback for InputStream {
+    /// Convert, mix, push, count: nothing else on the audio thread.
+    fn take<T: DeviceSample>(&mut self, data: &[T]) {
+        self.writer.push_interleaved(data, self.channels, T::to_f32);
     }
 }
 
@@ -191,12 +155,21 @@ impl DeviceSource {
             self.description
         )))
     }
+}
 
-    /// The first stream error that means the device is gone, as a sentence;
-    /// lesser problems become a notice at most once a second.
-    fn check_errors(&mut self) -> Option<SourceRead> {
+/// The input stream's errors as the callback reported them.
+struct StreamErrors {
+    errors: rtrb::Consumer<cpal::Error>,
+    last_notice: Option<Instant>,
+}
+
+impl StreamErrors {
+    /// The first stream error that means the device `description` is gone,
+    /// as a sentence; lesser problems become a notice at most once a
+    /// second.
+    fn check(&mut self, description: &str) -> Option<SourceRead> {
         while let Ok(error) = self.errors.pop() {
-            match stream_problem(Direction::Input, &self.description, &error) {
+            match stream_problem(Direction::Input, description, &error) {
                 Some(StreamProblem::Lost(text)) => return Some(SourceRead::Lost(text)),
                 Some(StreamProblem::Notice(text)) => {
                     let due = self
@@ -224,24 +197,17 @@ impl SampleSource for DeviceSource {
     }
 
     fn read(&mut self, out: &mut [f32], max_wait: Duration) -> SourceRead {
-        let deadline = Instant::now() + max_wait;
         if let Some(notice) = self.account_drops() {
             return notice;
         }
-        loop {
-            let n = self.reader.pop_into(out);
-            if n > 0 {
-                self.pace.samples_read += n as u64;
-                return SourceRead::Samples(n);
-            }
-            if let Some(problem) = self.check_errors() {
-                return problem;
-            }
-            if Instant::now() >= deadline {
-                return SourceRead::Waiting;
-            }
-            std::thread::sleep(POLL_SLEEP);
+        let (errors, description) = (&mut self.errors, &self.description);
+        let read = self
+            .reader
+            .wait_for_samples(out, max_wait, POLL_SLEEP, |_, _| errors.check(description));
+        if let SourceRead::Samples(n) = read {
+            self.pace.samples_read += n as u64;
         }
+        read
     }
 
     /// Only drops while the device kept to real time: those are sound the

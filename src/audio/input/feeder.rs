@@ -85,26 +85,20 @@ impl SampleSource for FedSource {
     }
 
     fn read(&mut self, out: &mut [f32], max_wait: Duration) -> SourceRead {
-        let deadline = Instant::now() + max_wait;
-        loop {
-            let n = self.reader.pop_into(out);
-            if n > 0 {
-                return SourceRead::Samples(n);
-            }
-            if self.flags.ended.load(Ordering::Acquire) {
+        let flags = &self.flags;
+        self.reader
+            .wait_for_samples(out, max_wait, POLL_SLEEP, |reader, out| {
+                if !flags.ended.load(Ordering::Acquire) {
+                    return None;
+                }
                 // The feeder sets `ended` after its last push: one more look.
-                let n = self.reader.pop_into(out);
-                return if n > 0 {
+                let n = reader.pop_into(out);
+                Some(if n > 0 {
                     SourceRead::Samples(n)
                 } else {
                     SourceRead::Ended
-                };
-            }
-            if Instant::now() >= deadline {
-                return SourceRead::Waiting;
-            }
-            std::thread::sleep(POLL_SLEEP);
-        }
+                })
+            })
     }
 
     fn dropped_samples(&self) -> u64 {

@@ -5,8 +5,11 @@
 
 use std::sync::atomic::{AtomicU64, Ordering};
 use std::sync::Arc;
+use std::time::{Duration, Instant};
 
 use rtrb::{Consumer, Producer, RingBuffer};
+
+use super::source::SourceRead;
 
 /// The writing end. Safe to use in a real-time audio callback: no
 /// allocation, no lock, no system call.
@@ -101,6 +104,33 @@ impl RingWriter {
 }
 
 impl RingReader {
+    /// Waits at most `max_wait` for samples, looking every `poll`, and
+    /// moves what is waiting into `out`. While the ring is empty, `idle`
+    /// may end the wait with its own answer (the device reported trouble,
+    /// the feeder has ended); it is given the reader for one more look.
+    pub fn wait_for_samples(
+        &mut self,
+        out: &mut [f32],
+        max_wait: Duration,
+        poll: Duration,
+        mut idle: impl FnMut(&mut Self, &mut [f32]) -> Option<SourceRead>,
+    ) -> SourceRead {
+        let deadline = Instant::now() + max_wait;
+        loop {
+            let n = self.pop_into(out);
+            if n > 0 {
+                return SourceRead::Samples(n);
+            }
+            if let Some(answer) = idle(self, out) {
+                return answer;
+            }
+            if Instant::now() >= deadline {
+                return SourceRead::Waiting;
+            }
+            std::thread::sleep(poll);
+        }
+    }
+
     /// Moves up to `out.len()` samples out of the ring; returns how many.
     pub fn pop_into(&mut self, out: &mut [f32]) -> usize {
         self.consumer.pop_partial_slice(out).0.len()

@@ -14,13 +14,10 @@ use std::sync::Arc;
 use std::thread::JoinHandle;
 use std::time::{Duration, Instant};
 
-use cpal::traits::DeviceTrait;
-use cpal::{FromSample, SizedSample, StreamConfig};
-
 use super::tone::{ToneControls, ToneRenderer, ToneSettings, FADE_S};
 use crate::audio::device::{
-    choose_device, close_stream, keep_errors, stream_problem, StreamMaker, StreamProblem,
-    BACKEND_TIMEOUT, ERROR_RING_LEN,
+    choose_device, close_stream, stream_problem, DeviceSample, StreamCallback, StreamProblem,
+    ERROR_RING_LEN,
 };
 use crate::audio::error::{AudioError, Direction};
 use crate::audio::settings::check_sample_rate;
@@ -100,11 +97,11 @@ pub fn open_tone_output(
     let controls = Arc::new(ToneControls::new(settings));
     let renderer = ToneRenderer::new(chosen.sample_rate_hz, Arc::clone(&controls));
     let (error_writer, errors) = rtrb::RingBuffer::new(ERROR_RING_LEN);
-    let stream = chosen.start(OutputStream {
+    let output = OutputStream {
         channels: usize::from(chosen.config().channels),
         renderer,
-        errors: error_writer,
-    })?;
+    };
+    let stream = chosen.start(output, error_writer)?;
     Ok(ToneOutput {
         description: chosen.description(),
         sample_rate_hz: chosen.sample_rate_hz,
@@ -153,42 +150,17 @@ pub fn open_virtual_output(
     })
 }
 
-/// What the output stream's callback owns: the renderer and the ring its
-/// errors go to.
+/// What the output stream's callback owns: the renderer.
 struct OutputStream {
     channels: usize,
     renderer: ToneRenderer,
-    errors: rtrb::Producer<cpal::Error>,
 }
 
-impl StreamMaker for OutputStream {
-    /// The data callback is the only code on the audio thread: read
-    /// atomics, render, convert, store atomics.
-    fn build<T>(
-        self,
-        device: &cpal::Device,
-        config: &StreamConfig,
-    ) -> Result<cpal::Stream, cpal::Error>
-    where
-        T: SizedSample + FromSample<f32> + Send + 'static,
-        f32: FromSample<T>,
-    {
-        let Self {
-            channels,
-            mut renderer,
-            errors,
-        } = self;
-        device.build_output_stream_raw(
-            *config,
-            T::FORMAT,
-            move |data: &mut cpal::Data, _info: &cpal::OutputCallbackInfo| {
-                if let Some(samples) = data.as_slice_mut::<T>() {
-                    renderer.fill(samples, channels, <T as FromSample<f32>>::from_sample_);
-                }
-            },
-            keep_errors(errors),
-            Some(BACKEND_TIMEOUT),
-        )
+impl StreamCallback for OutputStream {
+    /// Read atomics, render, convert, store atomics: nothing else on the
+    /// audio thread.
+    fn fill<T: DeviceSample>(&mut self, data: &mut [T]) {
+        self.renderer.fill(data, self.channels, T::from_f32);
     }
 }
 
