@@ -1,6 +1,6 @@
 //! Audio in and out: the only code that touches audio devices.
 //!
-//! - [`device`](self::device): the devices themselves, both ways (audio
+//! - `device`: the devices themselves, both ways (audio
 //!   system, listing, finding by name, choosing the stream configuration,
 //!   building a stream for any sample format, closing it).
 //! - [`input`]: sound coming in, from a microphone, a recording or the

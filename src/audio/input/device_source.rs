@@ -223,7 +223,7 @@ impl SampleSource for DeviceSource {
 
 impl Drop for DeviceSource {
     /// Closes the stream without waiting on a stuck driver (see
-    /// [`close_stream`]).
+    /// `close_stream`).
     fn drop(&mut self) {
         if let Some(stream) = self.stream.take() {
             close_stream(stream);

@@ -1,6 +1,6 @@
 //! Sound going out: the drive tone. [`tone`] is the pure generator (phase,
 //! glides, fades, sweep, level cap) and the atomics it is controlled
-//! through; [`stream`] plays it through an output device, or through a
+//! through; `stream` plays it through an output device, or through a
 //! virtual output that renders in real time into nothing.
 
 mod stream;

@@ -228,7 +228,7 @@ impl ToneOutput {
 
 impl Drop for ToneOutput {
     /// Fades out, plays the tail, then closes the stream without waiting on
-    /// a stuck driver (see [`close_stream`]).
+    /// a stuck driver (see `close_stream`).
     fn drop(&mut self) {
         let Some(keeper) = self.keeper.take() else {
             return;

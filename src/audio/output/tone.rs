@@ -1,5 +1,5 @@
 //! The drive tone for Chladni patterns: a sine at a plate's mode, pure and
-//! deterministic (no device here; [`super::stream`] plays it).
+//! deterministic (no device here; `stream` plays it).
 //!
 //! - The phase is an f64 count of cycles kept in [0, 1), advanced by
 //!   `f / fs` each sample, so the frequency is exact to about 1e-16 of

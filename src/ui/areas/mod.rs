@@ -1,5 +1,5 @@
 //! The areas of the window, one module each. An area draws from what it is
-//! given (its own view state and an [`AreaContext`](crate::ui::commands::AreaContext))
+//! given (its own view state and an [`AreaContext`](crate::ui::context::AreaContext))
 //! and asks for changes by pushing commands; no area imports another area
 //! or the shell.
 

@@ -8,12 +8,12 @@
 //! table, the chosen pass's modes (labels to confirm or change), the charts,
 //! and the targets with their forecasts.
 //!
-//! Nothing here changes the build: every change is an
-//! [`AppCommand`](super::AppCommand) (`NewBuild`, `OpenBuild`, `SaveBuild`,
-//! `EditBuild`, `RecordPass` …) pushed into the [`AreaContext`]. Edits are
-//! first tried on a copy of the build, so a refusal (the ledger's own
-//! sentence) is shown beside the form that caused it rather than only in the
-//! status line. File dialogs and CSV writing run on their own threads
+//! Nothing here changes the build: every change is an [`AppCommand`]
+//! (`NewBuild`, `OpenBuild`, `SaveBuild`, `EditBuild`, `RecordPass` …)
+//! pushed into the [`AreaContext`]. Edits are first tried on a copy of the
+//! build, so a refusal (the ledger's own sentence) is shown beside the form
+//! that caused it rather than only in the status line. File dialogs, CSV
+//! writing and the report run on the window's job runner
 //! (see `files`).
 
 mod charts;
