@@ -49,16 +49,3 @@ pub const SAMPLE_BUILDS: [SampleBuild; 2] = [
 pub fn sample_build() -> Result<Build, StoreError> {
     SAMPLE_BUILDS[0].load()
 }
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn every_sample_build_loads() {
-        for sample in &SAMPLE_BUILDS {
-            let build = sample.load().expect("test value");
-            assert!(!build.parts().is_empty());
-        }
-    }
-}

@@ -679,6 +679,15 @@ mod tests {
     use super::*;
 
     #[test]
+    fn every_sample_build_loads() {
+        for index in 0..SAMPLE_BUILDS.len() {
+            let build = load_sample(index).expect("test value");
+            assert!(!build.parts().is_empty());
+        }
+        assert!(load_sample(SAMPLE_BUILDS.len()).is_err());
+    }
+
+    #[test]
     fn typed_paths_get_their_extension_and_refuse_another() {
         assert_eq!(
             typed_path(" /tmp/violin ", "ron").expect("test value"),
