@@ -57,9 +57,9 @@ pub fn taps_of_recording(
     entries_of_taps(found, sample_rate_hz, analysis)
 }
 
-/// The taps of a WAV file read block by block, as the window lists them.
-pub fn taps_of_stream<R: std::io::Read>(
-    stream: &mut WavStream<R>,
+/// The taps of a recording read block by block, as the window lists them.
+pub fn taps_of_stream(
+    stream: &mut WavStream,
     trigger: &TriggerSettings,
     analysis: &AnalysisSettings,
 ) -> Result<Vec<TapEntry>, WavError> {
