@@ -11,6 +11,7 @@
 //! and [`AudioError`] are the same types under format-neutral names.
 
 mod describe;
+mod mp4_edit;
 
 use std::fs::File;
 use std::path::{Path, PathBuf};
@@ -110,6 +111,10 @@ pub struct WavStream {
     sample_rate_hz: u32,
     channels: usize,
     frames_total: Option<u64>,
+    /// Decoded frames still to drop in front (the MP4 edit list's start).
+    skip_frames: u64,
+    /// Frames the MP4 edit list plays, when it gives them.
+    play_frames: Option<u64>,
     frames_read: u64,
     /// Frames decoded so far (read or pending).
     frames_decoded: u64,
@@ -174,7 +179,8 @@ impl WavStream {
     }
 
     /// Finds the format, picks the sound track and makes its decoder.
-    fn new(source: Box<dyn MediaSource>, path: &Path) -> Result<Self, WavError> {
+    fn new(mut source: Box<dyn MediaSource>, path: &Path) -> Result<Self, WavError> {
+        let edits = mp4_edit::track_edits(&mut source);
         let stream = MediaSourceStream::new(source, MediaSourceStreamOptions::default());
         let mut hint = Hint::new();
         if let Some(extension) = path.extension().and_then(|e| e.to_str()) {
@@ -195,7 +201,12 @@ impl WavStream {
             .and_then(|p| p.audio())
             .cloned()
             .ok_or_else(|| describe::no_sound_track(reader.as_ref(), path))?;
-        let (track_id, frames_total) = (track.id, track.num_frames);
+        let track_id = track.id;
+        let edit = edits.iter().find(|e| e.track_id == track_id);
+        let frames_total = match (edit, params.sample_rate) {
+            (Some(edit), Some(rate_hz)) => Some(edit.play_frames(rate_hz)),
+            _ => track.num_frames,
+        };
         if frames_total == Some(0) {
             return Err(WavError::NoSamples {
                 path: path.to_owned(),
@@ -220,6 +231,8 @@ impl WavStream {
             sample_rate_hz,
             channels: params.channels.as_ref().map_or(1, |c| c.count().max(1)),
             frames_total,
+            skip_frames: edit.map_or(0, |e| e.skip_frames(sample_rate_hz)),
+            play_frames: edit.map(|e| e.play_frames(sample_rate_hz)),
             frames_read: 0,
             frames_decoded: 0,
             pending: Vec::new(),
@@ -307,8 +320,24 @@ impl WavStream {
                 });
             }
             mix_to_mono(&self.interleaved, channels, &mut self.pending);
+            self.apply_edit();
+            if self.pending.is_empty() {
+                continue;
+            }
             self.frames_decoded += self.pending.len() as u64;
             return Ok(true);
+        }
+    }
+
+    /// Drops from `pending` the frames before the MP4 edit and after it.
+    fn apply_edit(&mut self) {
+        let skip = self.skip_frames.min(self.pending.len() as u64) as usize;
+        self.pending.drain(..skip);
+        self.skip_frames -= skip as u64;
+        if let Some(play) = self.play_frames {
+            let left = play.saturating_sub(self.frames_decoded);
+            self.pending
+                .truncate(left.min(self.pending.len() as u64) as usize);
         }
     }
 
