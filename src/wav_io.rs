@@ -19,6 +19,9 @@ use std::path::{Path, PathBuf};
 use symphonia::core::codecs::audio::{AudioDecoder, AudioDecoderOptions};
 use symphonia::core::errors::Error as DecodeFailure;
 use symphonia::core::formats::probe::Hint;
+use symphonia::core::formats::well_known::{
+    FORMAT_ID_ADTS, FORMAT_ID_MP1, FORMAT_ID_MP2, FORMAT_ID_MP3,
+};
 use symphonia::core::formats::{FormatOptions, FormatReader};
 use symphonia::core::io::{MediaSource, MediaSourceStream, MediaSourceStreamOptions};
 use symphonia::core::meta::MetadataOptions;
@@ -111,6 +114,9 @@ pub struct WavStream {
     sample_rate_hz: u32,
     channels: usize,
     frames_total: Option<u64>,
+    /// Whether `frames_total` is only an estimate, so that a shorter
+    /// recording is not a sign of a cut.
+    length_is_guessed: bool,
     /// Decoded frames still to drop in front (the MP4 edit list's start).
     skip_frames: u64,
     /// Frames the MP4 edit list plays, when it gives them.
@@ -202,7 +208,12 @@ impl WavStream {
             .cloned()
             .ok_or_else(|| describe::no_sound_track(reader.as_ref(), path))?;
         let track_id = track.id;
-        let edit = edits.iter().find(|e| e.track_id == track_id);
+        let edit = edits.iter().find(|e| e.track_id == track_id).copied();
+        // MPEG audio without a Xing header and ADTS AAC give a length
+        // guessed from the file's size and first bit rate.
+        let format = reader.format_info().format;
+        let length_is_guessed =
+            [FORMAT_ID_MP1, FORMAT_ID_MP2, FORMAT_ID_MP3, FORMAT_ID_ADTS].contains(&format);
         let frames_total = match (edit, params.sample_rate) {
             (Some(edit), Some(rate_hz)) => Some(edit.play_frames(rate_hz)),
             _ => track.num_frames,
@@ -212,10 +223,14 @@ impl WavStream {
                 path: path.to_owned(),
             });
         }
-        // Gapless on (the default): decoders that know the encoder's delay
-        // and padding (MP3 with a LAME header, FLAC, PCM) drop them.
+        // Gapless on (the default) drops the encoder's delay and padding
+        // where the file gives them (MP3 with a LAME header, Ogg). Off for
+        // MPEG audio without them: symphonia 0.6.1 then trims the packets
+        // past its length guessed from the file's size, which for a VBR
+        // file without a Xing header cut a fifth of the recording off.
+        let gapless = !length_is_guessed || track.delay.is_some() || track.padding.is_some();
         let decoder = symphonia::default::get_codecs()
-            .make_audio_decoder(&params, &AudioDecoderOptions::default())
+            .make_audio_decoder(&params, &AudioDecoderOptions::default().gapless(gapless))
             .map_err(|failure| describe::codec_error(failure, &params, path))?;
         let sample_rate_hz = params.sample_rate.ok_or_else(|| WavError::Truncated {
             path: path.to_owned(),
@@ -231,6 +246,7 @@ impl WavStream {
             sample_rate_hz,
             channels: params.channels.as_ref().map_or(1, |c| c.count().max(1)),
             frames_total,
+            length_is_guessed,
             skip_frames: edit.map_or(0, |e| e.skip_frames(sample_rate_hz)),
             play_frames: edit.map(|e| e.play_frames(sample_rate_hz)),
             frames_read: 0,
@@ -251,7 +267,8 @@ impl WavStream {
         self.channels
     }
 
-    /// Frames the header promises, when it says.
+    /// Frames the header promises, when it says (for MP3 without a Xing
+    /// header and for ADTS AAC, an estimate from the file's size).
     pub fn frames_total(&self) -> Option<u64> {
         self.frames_total
     }
@@ -346,7 +363,7 @@ impl WavStream {
     fn at_end(&mut self) -> Result<bool, WavError> {
         self.finished = true;
         let decoded = self.frames_decoded;
-        if let Some(total) = self.frames_total {
+        if let Some(total) = self.frames_total.filter(|_| !self.length_is_guessed) {
             if decoded < total {
                 return Err(self.truncated(format!(
                     "the sound ends {} frames before the length its header gives",

@@ -1,13 +1,13 @@
 //! How much lossy coding smears short decays: the taps of the accuracy
-//! tests (tests/common/encoded.rs) through AAC-LC at 128 kb/s (M4A) and MP3
+//! tests (tests/encoded_fixtures/mod.rs) through AAC-LC at 128 kb/s (M4A) and MP3
 //! at 192 kb/s, each tap measured from the same record (its known strike,
 //! 100 ms before it, 1 s after) in the decoded file and in the 16-bit WAV
 //! original. The figures printed here (`cargo test --test lossy_decay --
 //! --nocapture`) are the ones in README.md ("Files tapwright reads").
 
-mod common;
+mod encoded_fixtures;
 
-use common::encoded::{accuracy_source, fixture};
+use encoded_fixtures::{accuracy_source, fixture};
 use tapwright::analysis::{AnalysisSettings, Mode, TapAnalyzer};
 use tapwright::wav_io::{read_mono, MonoRecording};
 

@@ -130,7 +130,7 @@ fn child<'b>(body: &'b [u8], kind: &[u8; 4]) -> Option<&'b [u8]> {
 }
 
 fn edits_of_moov(moov: &[u8]) -> Vec<Edit> {
-    let Some(movie_time_scale) = child(moov, b"mvhd").and_then(|mvhd| time_scale(mvhd)) else {
+    let Some(movie_time_scale) = child(moov, b"mvhd").and_then(time_scale) else {
         return Vec::new();
     };
     children(moov)

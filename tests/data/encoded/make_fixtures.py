@@ -2,7 +2,7 @@
 """Makes the encoded fixtures in this folder (see README.md beside it).
 
 The two source recordings are synthetic taps written by the test suite
-(tests/common/encoded.rs); this script asks the tests to write them, then
+(tests/encoded_fixtures/mod.rs); this script asks the tests to write them, then
 encodes them with Debian's ffmpeg. Run from anywhere:
 
     python3 tests/data/encoded/make_fixtures.py
@@ -55,6 +55,9 @@ def encode(plate, accuracy, work):
            out / "plate.ogg")
     ffmpeg("-i", plate, *BITEXACT, "-ar", "44100", "-c:a", "aac", "-b:a", "96k", "-f", "adts",
            out / "plate.aac")
+    # VBR MP3 without a Xing header: its length can only be guessed.
+    ffmpeg("-i", plate, *BITEXACT, "-ar", "44100", "-c:a", "libmp3lame", "-q:a", "4",
+           "-write_xing", "0", out / "plate_vbr_noxing.mp3")
     # The lossy formats measured in README.md, from the accuracy taps.
     ffmpeg("-i", accuracy, *BITEXACT, "-c:a", "aac", "-b:a", "128k", out / "accuracy_aac128.m4a")
     ffmpeg("-i", accuracy, *BITEXACT, "-c:a", "libmp3lame", "-b:a", "192k",
