@@ -11,6 +11,15 @@ use encoded_fixtures::{accuracy_source, fixture, plate_source, Source};
 use tapwright::analysis::{analyze_recording, AnalysisSettings, RecordingReport, TriggerSettings};
 use tapwright::wav_io::{read_mono, read_mono_bytes, WavError, WavStream, READABLE_EXTENSIONS};
 
+/// The plate in the lossless formats (and PCM containers).
+const LOSSLESS_PLATES: [&str; 5] = [
+    "plate.aiff",
+    "plate.aifc",
+    "plate.caf",
+    "plate.flac",
+    "plate_alac.m4a",
+];
+
 /// The lossless fixtures decode to the 16-bit source sample for sample.
 /// With TAPWRIGHT_WRITE_FIXTURE_SOURCES=FOLDER set, writes the two source
 /// recordings there instead (make_fixtures.py encodes them).
@@ -24,13 +33,7 @@ fn lossless_fixtures_are_the_source_sample_for_sample() {
         return;
     }
     let original = plate_source().original();
-    for name in [
-        "plate.aiff",
-        "plate.aifc",
-        "plate.caf",
-        "plate.flac",
-        "plate_alac.m4a",
-    ] {
+    for name in LOSSLESS_PLATES {
         let decoded = read_mono(&fixture(name)).unwrap_or_else(|e| panic!("{e}"));
         assert_eq!(decoded.sample_rate_hz, original.sample_rate_hz, "{name}");
         assert!(
@@ -141,13 +144,7 @@ fn assert_same_taps_and_modes(name: &str, source: &Source, decoded: &RecordingRe
 #[test]
 fn each_format_gives_the_taps_and_modes_of_the_original() {
     let plate = plate_source();
-    for name in [
-        "plate.aiff",
-        "plate.aifc",
-        "plate.caf",
-        "plate.flac",
-        "plate_alac.m4a",
-    ] {
+    for name in LOSSLESS_PLATES {
         let report = report_of(&read_mono(&fixture(name)).unwrap());
         assert_same_taps_and_modes(name, &plate, &report, false);
     }
