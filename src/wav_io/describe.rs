@@ -34,9 +34,20 @@ pub(super) fn position(frames_read: u64) -> String {
 pub(super) fn header_error(failure: DecodeFailure, path: &Path) -> WavError {
     let path = path.to_owned();
     match failure {
-        DecodeFailure::Unsupported(_) => WavError::UnknownFormat {
+        // The probe's own "no suitable format reader found": no format at
+        // all. Any other refusal comes from a reader that knew the format.
+        DecodeFailure::Unsupported(text) if text.starts_with("core (probe)") => {
+            WavError::UnknownFormat {
+                path,
+                detail: "no known format was found in it".to_owned(),
+            }
+        }
+        DecodeFailure::Unsupported(text) => WavError::Unsupported {
             path,
-            detail: "no known format was found in it".to_owned(),
+            detail: format!(
+                "something its reader does not support ({})",
+                failure_detail(&DecodeFailure::Unsupported(text))
+            ),
         },
         DecodeFailure::IoError(error) if error.kind() == std::io::ErrorKind::UnexpectedEof => {
             WavError::Truncated {
@@ -344,6 +355,20 @@ mod tests {
         assert_eq!(failure_detail(&failure), "malformed fmt_pcm chunk");
         let failure = DecodeFailure::DecodeError("Invalid main_data_begin.");
         assert_eq!(failure_detail(&failure), "invalid main_data_begin");
+    }
+
+    #[test]
+    fn a_refusal_by_a_format_reader_is_not_an_unknown_format() {
+        let path = Path::new("take.caf");
+        let failure = DecodeFailure::Unsupported("core (probe): no suitable format reader found");
+        assert!(matches!(
+            header_error(failure, path),
+            WavError::UnknownFormat { .. }
+        ));
+        let failure = DecodeFailure::Unsupported("caf: unsupported codec");
+        let error = header_error(failure, path);
+        assert!(matches!(error, WavError::Unsupported { .. }), "{error}");
+        assert!(error.to_string().contains("(unsupported codec)"), "{error}");
     }
 
     #[test]
