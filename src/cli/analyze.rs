@@ -1,5 +1,5 @@
-//! `tapwright analyze FILE.wav`: find the taps in a recording and measure
-//! their modes.
+//! `tapwright analyze FILE`: find the taps in a recording (WAV, FLAC, MP3,
+//! M4A… see `wav_io`) and measure their modes.
 //!
 //! The file is read block by block and fed to the streaming tap finder, so
 //! memory holds one block, the tap under way and the measurements, however
@@ -20,7 +20,7 @@ const BLOCK_FRAMES: usize = 65_536;
 
 #[derive(Debug, clap::Args)]
 pub struct AnalyzeArgs {
-    /// The WAV recording (8–192 kHz; 8/16/24/32-bit integer or 32/64-bit float).
+    /// The recording: WAV, AIFF, AIFC, CAF, FLAC, MP3, AAC-LC or ALAC in M4A/MP4, ADTS AAC or Ogg Vorbis (8–192 kHz).
     pub file: PathBuf,
     #[command(flatten)]
     pub measure: MeasureArgs,

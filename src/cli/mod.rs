@@ -44,7 +44,7 @@ pub struct Cli {
 
 #[derive(Debug, Subcommand)]
 pub enum Command {
-    /// Find the taps in a WAV recording and measure the modes of each.
+    /// Find the taps in a recording (WAV, FLAC, MP3, M4A…) and measure the modes of each.
     Analyze(analyze::AnalyzeArgs),
     /// List the audio input devices.
     Devices(devices::DevicesArgs),

@@ -22,8 +22,8 @@ const LABEL_FOLLOW_RELATIVE: f64 = 0.02;
 
 /// The taps of a WAV file read block by block, as the window lists them
 /// (records kept, for saving and measuring again).
-pub fn taps_of_stream<R: std::io::Read>(
-    stream: &mut WavStream<R>,
+pub fn taps_of_stream(
+    stream: &mut WavStream,
     trigger: &TriggerSettings,
     analysis: &AnalysisSettings,
 ) -> Result<Vec<Tap>, WavError> {
