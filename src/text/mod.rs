@@ -13,8 +13,10 @@ pub mod pass_json;
 pub mod pitch;
 pub mod sentences;
 pub mod typed;
+pub mod units;
 
 pub use numbers::{date_text, num, number_text, signed};
 pub use pitch::note_text;
 pub use sentences::{capitalised, error_sentence, one_sentence, sentence};
 pub use typed::{parse_number, parse_optional_number, read_number, NumberProblem};
+pub use units::{LengthUnit, MassUnit, TemperatureUnit, Units, VolumeUnit};
