@@ -12,5 +12,6 @@ pub mod cli;
 pub mod demo;
 pub mod ledger;
 pub mod report;
+pub mod shapes;
 pub mod ui;
 pub mod wav_io;
