@@ -11,6 +11,13 @@
 //!   per mode (inside: `poles` finds the pass's modes, `amplitudes` fits
 //!   each tap's complex amplitudes with the poles fixed, `align` finds
 //!   each tap's delay and each mode's reference phase).
+//! - [`surface`]: a smooth surface through a mode's values (a smoothing
+//!   thin-plate fit in a polynomial space), sampled on a raster.
+//! - [`contour`]: the surface's zero lines (nodal lines), by marching
+//!   squares, cut at the outline.
+//! - [`carving`]: the carving guide: how a small, even thinning of each
+//!   part of the plate moves a mode (Rayleigh quotient), and where it
+//!   moves one mode and spares another.
 //! - [`plate`]: a thin-plate model (Rayleigh–Ritz) for the tests and the
 //!   demo set.
 //! - [`synthetic`]: roving taps made from known shapes (force pulse,
@@ -19,19 +26,27 @@
 mod align;
 mod amplitudes;
 mod basis;
+pub mod carving;
+pub mod contour;
 pub mod estimate;
 pub mod grid;
 mod legendre;
 pub mod outline;
 pub mod plate;
 mod poles;
+pub mod surface;
 pub mod synthetic;
 
 pub use basis::Derivatives;
+pub use carving::{CarvingMap, TwoModeGuide, CARVING_CAUTION};
+pub use contour::{zero_lines, Polyline};
 pub use estimate::{
     estimate_shapes, modal_assurance, roving_trigger_settings, taps_in_recording, MapPoint,
     ModeShape, PointTaps, RecordingTaps, ShapeError, ShapeMap, ShapeSettings,
 };
 pub use grid::{tap_grid, GridError, TapPoint};
 pub use outline::{BoutWidths, Outline, OutlineError, OutlineShape};
-pub use plate::{BendingStiffness, Edges, PlateError, PlateMaterial, PlateMode, PlateModel};
+pub use plate::{
+    BendingStiffness, Edges, ModeSurface, PlateError, PlateMaterial, PlateMode, PlateModel,
+};
+pub use surface::{FittedSurface, Raster, ShapeSurface, SurfaceError, DEFAULT_SMOOTHING};

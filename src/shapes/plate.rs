@@ -19,6 +19,7 @@ use nalgebra::{DMatrix, SymmetricEigen};
 
 use super::basis::{Degrees, Derivatives, PolynomialBasis};
 use super::outline::{Outline, OutlineShape};
+use super::surface::ShapeSurface;
 
 /// Elastic constants and density of a plate's material. For wood, "along"
 /// is along the grain (L) and "across" the radial direction (R) of a
@@ -217,9 +218,30 @@ impl PlateModel {
         Some(self.basis.combine(&mode.coefficients, x_mm, y_mm))
     }
 
+    /// Mode `mode` as a surface (for the carving guide and pictures), or
+    /// `None` for a mode that does not exist.
+    pub fn mode_surface(&self, mode: usize) -> Option<ModeSurface<'_>> {
+        (mode < self.modes.len()).then_some(ModeSurface { model: self, mode })
+    }
+
     /// Mode `mode`'s deflection at a point (mm); 0 for a mode that does not exist.
     pub fn shape_at(&self, mode: usize, x_mm: f64, y_mm: f64) -> f64 {
         self.derivatives(mode, x_mm, y_mm).map_or(0.0, |d| d.value)
+    }
+}
+
+/// One mode of a solved plate, as a surface.
+#[derive(Clone, Copy, Debug)]
+pub struct ModeSurface<'a> {
+    model: &'a PlateModel,
+    mode: usize,
+}
+
+impl ShapeSurface for ModeSurface<'_> {
+    fn derivatives_at(&self, x_mm: f64, y_mm: f64) -> Derivatives {
+        self.model
+            .derivatives(self.mode, x_mm, y_mm)
+            .unwrap_or_default()
     }
 }
 
