@@ -19,7 +19,11 @@
 //! gives U_R = U and T_R = T: δf/f = −ε, as it must for a plate whose
 //! frequencies scale with thickness. The plate is taken as even in
 //! thickness and material across the region mapped; the stiffness ratios
-//! (along, across, twist) set how curvature along and across counts.
+//! (along, across, twist) set how curvature along and across counts. The
+//! plate is taken as flat: in an arched plate part of the stiffness is
+//! stretching, which scales with h (not h³), so thinning lowers its modes
+//! less than the guide says (references.md: arched plates fall more
+//! slowly).
 
 use super::basis::Derivatives;
 use super::outline::Outline;
@@ -34,7 +38,7 @@ pub const CARVING_CAUTION: &str =
 #[derive(Clone, Debug, PartialEq)]
 pub struct CarvingMap {
     /// The raster the map is computed on (its `values` are the mode's
-    /// surface).
+    /// surface; `inside` marks the nodes the map covers).
     pub raster: Raster,
     /// Per node (cell around it) inside the outline: δf/f per unit ε when
     /// only that cell is thinned by the fraction ε; 0 outside. The sum over
@@ -51,22 +55,65 @@ pub struct CarvingMap {
     pub kinetic_share: Vec<f64>,
 }
 
+/// How far past the outermost tap points a map's carving guide reaches,
+/// as a share of the median distance between neighbouring points.
+pub const COVERAGE_REACH: f64 = 0.5;
+
 impl CarvingMap {
-    /// The guide for one mode's surface over `outline`, sampled every
-    /// `step_mm`, with the plate's bending stiffnesses (only their ratios
-    /// matter).
+    /// The guide for one mode's surface over the whole of `outline`,
+    /// sampled every `step_mm`, with the plate's bending stiffnesses (only
+    /// their ratios matter). For a surface known everywhere (a model's
+    /// mode); for a map, see [`CarvingMap::over_points`].
     pub fn new(
         outline: &Outline,
         surface: &dyn ShapeSurface,
         stiffness: &BendingStiffness,
         step_mm: f64,
     ) -> Self {
+        Self::build(outline, surface, stiffness, step_mm, |_, _| true)
+    }
+
+    /// The guide for a surface fitted through tap points, over the area
+    /// the points cover: inside their convex hull, or within
+    /// [`COVERAGE_REACH`] of the points' spacing outside it. Beyond that
+    /// (the band between the outermost points and the edge, the round
+    /// ends) a surface through the points says little about curvature, so
+    /// that band is left out of the map and of the energies: shares and
+    /// predictions are of the mapped area.
+    pub fn over_points(
+        outline: &Outline,
+        surface: &dyn ShapeSurface,
+        stiffness: &BendingStiffness,
+        step_mm: f64,
+        points: &[[f64; 2]],
+    ) -> Self {
+        let reach = COVERAGE_REACH * median_spacing_mm(points);
+        let hull = convex_hull(points);
+        Self::build(outline, surface, stiffness, step_mm, |x, y| {
+            within_hull(&hull, [x, y], reach)
+        })
+    }
+
+    fn build(
+        outline: &Outline,
+        surface: &dyn ShapeSurface,
+        stiffness: &BendingStiffness,
+        step_mm: f64,
+        covered: impl Fn(f64, f64) -> bool,
+    ) -> Self {
         let mut derivatives: Vec<Derivatives> = Vec::new();
-        let raster = Raster::sample_with(outline, step_mm, |x, y| {
+        let mut raster = Raster::sample_with(outline, step_mm, |x, y| {
             let d = surface.derivatives_at(x, y);
             derivatives.push(d);
             d.value
         });
+        for row in 0..raster.rows {
+            for column in 0..raster.columns {
+                let [x, y] = raster.node_mm(column, row);
+                let i = row * raster.columns + column;
+                raster.inside[i] = raster.inside[i] && covered(x, y);
+            }
+        }
         let bending: Vec<f64> = derivatives
             .iter()
             .zip(&raster.inside)
@@ -132,6 +179,87 @@ impl CarvingMap {
         }
         sum
     }
+}
+
+/// The convex hull of the points, counter-clockwise (Andrew's monotone
+/// chain).
+fn convex_hull(points: &[[f64; 2]]) -> Vec<[f64; 2]> {
+    let mut sorted: Vec<[f64; 2]> = points.to_vec();
+    sorted.sort_by(|a, b| a[0].total_cmp(&b[0]).then(a[1].total_cmp(&b[1])));
+    sorted.dedup();
+    if sorted.len() < 3 {
+        return sorted;
+    }
+    let cross = |o: [f64; 2], a: [f64; 2], b: [f64; 2]| {
+        (a[0] - o[0]) * (b[1] - o[1]) - (a[1] - o[1]) * (b[0] - o[0])
+    };
+    let mut hull: Vec<[f64; 2]> = Vec::with_capacity(2 * sorted.len());
+    for pass in 0..2 {
+        let start = hull.len();
+        let iter: Box<dyn Iterator<Item = &[f64; 2]>> = if pass == 0 {
+            Box::new(sorted.iter())
+        } else {
+            Box::new(sorted.iter().rev())
+        };
+        for &p in iter {
+            while hull.len() >= start + 2
+                && cross(hull[hull.len() - 2], hull[hull.len() - 1], p) <= 0.0
+            {
+                hull.pop();
+            }
+            hull.push(p);
+        }
+        hull.pop();
+    }
+    hull
+}
+
+/// True if `p` lies inside the convex polygon `hull` (counter-clockwise)
+/// or within `reach` of its edge.
+fn within_hull(hull: &[[f64; 2]], p: [f64; 2], reach: f64) -> bool {
+    if hull.is_empty() {
+        return false;
+    }
+    let n = hull.len();
+    let mut inside = n >= 3;
+    let mut nearest = f64::INFINITY;
+    for i in 0..n {
+        let (a, b) = (hull[i], hull[(i + 1) % n]);
+        let (ex, ey) = (b[0] - a[0], b[1] - a[1]);
+        if ex * (p[1] - a[1]) - ey * (p[0] - a[0]) < 0.0 {
+            inside = false;
+        }
+        let length2 = ex * ex + ey * ey;
+        let t = if length2 > 0.0 {
+            (((p[0] - a[0]) * ex + (p[1] - a[1]) * ey) / length2).clamp(0.0, 1.0)
+        } else {
+            0.0
+        };
+        let (dx, dy) = (p[0] - a[0] - t * ex, p[1] - a[1] - t * ey);
+        nearest = nearest.min((dx * dx + dy * dy).sqrt());
+    }
+    inside || nearest <= reach
+}
+
+/// The median distance from each point to its nearest neighbour, mm (1 mm
+/// for fewer than two points).
+fn median_spacing_mm(points: &[[f64; 2]]) -> f64 {
+    if points.len() < 2 {
+        return 1.0;
+    }
+    let nearest: Vec<f64> = points
+        .iter()
+        .enumerate()
+        .map(|(i, p)| {
+            points
+                .iter()
+                .enumerate()
+                .filter(|&(j, _)| j != i)
+                .map(|(_, q)| ((p[0] - q[0]).powi(2) + (p[1] - q[1]).powi(2)).sqrt())
+                .fold(f64::INFINITY, f64::min)
+        })
+        .collect();
+    crate::analysis::aggregate::median(&nearest)
 }
 
 /// Each value's share of the total (all zeros stay zeros).
@@ -213,6 +341,21 @@ impl TwoModeGuide {
 mod tests {
     use super::*;
     use crate::shapes::outline::OutlineShape;
+
+    #[test]
+    fn the_hull_of_a_grid_and_its_reach() {
+        let points: Vec<[f64; 2]> = (0..3)
+            .flat_map(|i| (0..4).map(move |j| [10.0 * i as f64, 10.0 * j as f64]))
+            .collect();
+        let hull = convex_hull(&points);
+        assert_eq!(hull.len(), 4, "{hull:?}");
+        assert!(within_hull(&hull, [15.0, 25.0], 0.0));
+        assert!(within_hull(&hull, [20.0, 15.0], 0.0));
+        assert!(!within_hull(&hull, [23.0, 15.0], 2.0));
+        assert!(within_hull(&hull, [23.0, 15.0], 5.0));
+        assert!(!within_hull(&hull, [-4.0, -4.0], 5.0));
+        assert_eq!(median_spacing_mm(&points), 10.0);
+    }
 
     struct Field<F: Fn(f64, f64) -> Derivatives>(F);
     impl<F: Fn(f64, f64) -> Derivatives> ShapeSurface for Field<F> {

@@ -183,14 +183,10 @@ impl ModeShape {
         }
     }
 
-    /// Weights for fitting a surface through the values: 1/(u² + floor²),
-    /// the floor keeping one very certain point from ruling the fit.
+    /// Weights for fitting a surface through the values (see
+    /// [`super::drawing::weights_from_uncertainties`]).
     pub fn fit_weights(&self) -> Vec<f64> {
-        const FLOOR: f64 = 0.05;
-        self.uncertainties
-            .iter()
-            .map(|u| 1.0 / (u * u + FLOOR * FLOOR))
-            .collect()
+        super::drawing::weights_from_uncertainties(&self.uncertainties)
     }
 }
 

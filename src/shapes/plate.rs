@@ -17,6 +17,7 @@
 
 use nalgebra::{DMatrix, SymmetricEigen};
 
+use super::arching::{membrane_stiffness, Arch};
 use super::basis::{Degrees, Derivatives, PolynomialBasis};
 use super::outline::{Outline, OutlineShape};
 use super::surface::ShapeSurface;
@@ -176,6 +177,19 @@ impl PlateModel {
         edges: Edges,
         degree: usize,
     ) -> Result<Self, PlateError> {
+        Self::solve_arched(outline, material, thickness_mm, None, edges, degree)
+    }
+
+    /// [`PlateModel::solve`] for a plate arched by `arch` (a shallow shell:
+    /// see `arching`); `None` is the flat plate.
+    pub fn solve_arched(
+        outline: &Outline,
+        material: &PlateMaterial,
+        thickness_mm: &dyn Fn(f64, f64) -> f64,
+        arch: Option<&Arch>,
+        edges: Edges,
+        degree: usize,
+    ) -> Result<Self, PlateError> {
         check_material(material)?;
         if !(4..=24).contains(&degree) {
             return Err(PlateError::Degree(degree));
@@ -196,7 +210,14 @@ impl PlateModel {
             },
             supported,
         );
-        let (stiffness, mass) = energy_matrices(&basis, outline, material, thickness_mm, degree)?;
+        let (mut stiffness, mass) =
+            energy_matrices(&basis, outline, material, thickness_mm, degree)?;
+        if let Some(arch) = arch.filter(|a| a.height_mm != 0.0) {
+            if !arch.height_mm.is_finite() {
+                return Err(PlateError::NotPositive("arch height"));
+            }
+            stiffness += membrane_stiffness(&basis, outline, material, thickness_mm, arch, degree);
+        }
         let rigid = if supported { 0 } else { FREE_RIGID_MODES };
         let modes = eigenmodes(&stiffness, &mass, rigid);
         if modes.is_empty() {

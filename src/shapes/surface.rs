@@ -47,8 +47,13 @@ pub enum SurfaceError {
 }
 
 /// Default roughness weight λ: enough to keep the surface calm where there
-/// are no points, small against the data where there are.
-pub const DEFAULT_SMOOTHING: f64 = 1e-7;
+/// are no points, small against the data where there are. Chosen on the
+/// demo plate's 5 × 9 grid: from 1e-7 to 1e-5 the surfaces match the
+/// plate's modes equally well (MAC ≥ 0.994), but the curvature the
+/// carving guide needs is best at 1e-6 (thinning patches of 60 mm: the
+/// guide from the fitted surface against the guide from the true shape
+/// correlates 0.99, 0.99 and 0.83 for modes 1, 2 and 5, every sign right).
+pub const DEFAULT_SMOOTHING: f64 = 1e-6;
 
 /// A fitted surface.
 #[derive(Clone, Debug, PartialEq)]
