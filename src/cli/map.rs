@@ -15,7 +15,7 @@ use serde::Serialize;
 
 use super::measure::{band_for, parse_band_hz};
 use super::output::write_stdout;
-use crate::analysis::AnalysisSettings;
+use crate::analysis::{AnalysisSettings, RejectReason};
 use crate::shapes::{
     estimate_shapes, roving_trigger_settings, taps_in_recording, PointTaps, ShapeMap,
     ShapeSettings, TapPoint, CERTAIN_SIGN_UNCERTAINTIES,
@@ -59,6 +59,7 @@ pub fn run(args: &MapArgs) -> anyhow::Result<()> {
     let folder = args.points.parent().unwrap_or(Path::new("")).to_path_buf();
     let mut sample_rate_hz: Option<u32> = None;
     let mut points = Vec::with_capacity(rows.len());
+    let mut rejected = Vec::with_capacity(rows.len());
     for row in &rows {
         let where_ = format!("{name}, line {} (point {})", row.line, row.point.name);
         let recording = read_mono(&folder.join(&row.file)).with_context(|| where_.clone())?;
@@ -79,6 +80,7 @@ pub fn run(args: &MapArgs) -> anyhow::Result<()> {
             point: row.point.clone(),
             taps: found.accepted,
         });
+        rejected.push(found.rejected);
     }
     let fs = f64::from(sample_rate_hz.unwrap_or(48_000));
     let (band_low_hz, band_high_hz) = band_for(args.band, fs, &name)?;
@@ -95,6 +97,7 @@ pub fn run(args: &MapArgs) -> anyhow::Result<()> {
         source: name,
         sample_rate_hz: fs,
         map: &map,
+        rejected: &rejected,
     };
     write_stdout(&report.render(args.json)?)
 }
@@ -211,7 +214,7 @@ fn parse_row(line: usize, text: &str) -> Result<PointRow, String> {
 }
 
 /// Why a recording gave no usable tap, in words.
-fn no_tap_reason(file: &str, rejected: &[crate::analysis::RejectReason]) -> String {
+fn no_tap_reason(file: &str, rejected: &[RejectReason]) -> String {
     if rejected.is_empty() {
         format!("{file} has no tap in it: nothing rose clearly above the background")
     } else {
@@ -238,7 +241,10 @@ struct JsonPoint {
     point: String,
     x_mm: f64,
     y_mm: f64,
+    /// Taps used.
     taps: usize,
+    /// Why each other tap found in the recording was left out.
+    taps_rejected: Vec<RejectReason>,
 }
 
 #[derive(Debug, Serialize)]
@@ -257,6 +263,8 @@ struct MapReport<'a> {
     source: String,
     sample_rate_hz: f64,
     map: &'a ShapeMap,
+    /// Per point, the taps left out.
+    rejected: &'a [Vec<RejectReason>],
 }
 
 impl MapReport<'_> {
@@ -279,11 +287,13 @@ impl MapReport<'_> {
                 .map
                 .points
                 .iter()
-                .map(|p| JsonPoint {
+                .zip(self.rejected)
+                .map(|(p, rejected)| JsonPoint {
                     point: p.point.name.clone(),
                     x_mm: p.point.x_mm,
                     y_mm: p.point.y_mm,
                     taps: p.taps_used(),
+                    taps_rejected: rejected.clone(),
                 })
                 .collect(),
             modes: self
@@ -314,6 +324,16 @@ impl MapReport<'_> {
             self.map.points.len(),
             self.map.modes.len()
         );
+        for (point, rejected) in self.map.points.iter().zip(self.rejected) {
+            for reason in rejected {
+                let _ = writeln!(
+                    out,
+                    "  a tap at {} was left out: {reason} ({})",
+                    point.point.name,
+                    reason.advice()
+                );
+            }
+        }
         let _ = writeln!(
             out,
             "Values are signed, the largest 1.0; ? marks a value within {CERTAIN_SIGN_UNCERTAINTIES:.0} uncertainties of zero (near a nodal line: its sign is not known)."
