@@ -6,6 +6,8 @@
 //!
 //! - [`outline`]: plate outlines (rectangle, violin, guitar) in mm.
 //! - [`grid`]: tap points over an outline and the order to visit them.
+//! - [`survey`]: a roving-tap session in progress (point to tap next,
+//!   2–4 good taps per point, any point tapped again, progress).
 //! - [`estimate`]: from the taps at every point to each mode's signed
 //!   shape, with per-point spreads and uncertainties and a quality figure
 //!   per mode (inside: `poles` finds the pass's modes, `amplitudes` fits
@@ -44,6 +46,7 @@ pub mod outline;
 pub mod plate;
 mod poles;
 pub mod surface;
+pub mod survey;
 pub mod synthetic;
 
 pub use arching::Arch;
@@ -62,3 +65,4 @@ pub use plate::{
     BendingStiffness, Edges, ModeSurface, PlateError, PlateMaterial, PlateMode, PlateModel,
 };
 pub use surface::{FittedSurface, Raster, ShapeSurface, SurfaceError, DEFAULT_SMOOTHING};
+pub use survey::{Survey, SurveyError, TapOutcome};
