@@ -156,9 +156,12 @@ fn json_for_the_demo_set() {
     );
 }
 
+/// A recording to write beside the points file: name, samples, rate.
+type ExtraFile = (&'static str, Vec<f32>, u32);
+
 /// A folder with copies of the demo's 1A and 1B recordings and `extra`
 /// files, and a points file with `csv` as its text.
-fn set_up(csv: &str, extra: &[(&str, Vec<f32>, u32)]) -> (tempfile::TempDir, String) {
+fn set_up(csv: &str, extra: &[ExtraFile]) -> (tempfile::TempDir, String) {
     let folder = tempfile::tempdir().unwrap();
     for name in ["1A.wav", "1B.wav"] {
         std::fs::copy(demo_folder().join(name), folder.path().join(name)).unwrap();
@@ -201,7 +204,7 @@ fn every_bad_input_is_one_sentence_naming_the_row() {
         &["is not a plain file"],
     );
 
-    let cases: Vec<(String, Vec<(&str, Vec<f32>, u32)>, Vec<&str>)> = vec![
+    let cases: Vec<(String, Vec<ExtraFile>, Vec<&str>)> = vec![
         ("".into(), vec![], vec!["points.csv", "the file is empty"]),
         (
             "point;x;y;file\n".into(),

@@ -192,7 +192,9 @@ mod tests {
     fn random_delays_and_phases_are_undone_up_to_a_common_shift() {
         let poles: Vec<PassPole> = [80.0, 150.0, 190.0, 260.0, 330.0].map(pole).to_vec();
         let mut random = NoiseGenerator::new(11);
-        let phases: Vec<f64> = (0..poles.len()).map(|_| 6.28 * random.uniform()).collect();
+        let phases: Vec<f64> = (0..poles.len())
+            .map(|_| std::f64::consts::TAU * random.uniform())
+            .collect();
         let taps = 40;
         let shapes: Vec<Vec<f64>> = (0..taps)
             .map(|_| {
@@ -219,12 +221,11 @@ mod tests {
         // Delays agree after removing the common shift.
         let differences: Vec<f64> = (0..taps).map(|t| found.delays_s[t] - delays[t]).collect();
         let shift = crate::analysis::aggregate::median(&differences);
-        for t in 0..taps {
+        for (t, (found_s, true_s)) in found.delays_s.iter().zip(&delays).enumerate() {
             assert!(
-                (found.delays_s[t] - delays[t] - shift).abs() < 1e-6,
-                "tap {t}: {} vs {}",
-                found.delays_s[t] - shift,
-                delays[t]
+                (found_s - true_s - shift).abs() < 1e-6,
+                "tap {t}: {} vs {true_s}",
+                found_s - shift
             );
         }
         // Every aligned amplitude is real and has the true sign, up to one

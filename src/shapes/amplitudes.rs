@@ -164,14 +164,13 @@ mod tests {
             end: 12_000,
         };
         let fit = fit_amplitudes(&record, window, fs, &poles).unwrap();
-        for k in 0..2 {
-            let error = (fit.amplitudes[k] - truth[k]).norm();
+        for (k, expected) in truth.iter().enumerate() {
+            let error = (fit.amplitudes[k] - expected).norm();
             let sigma = fit.variances[k].sqrt();
             assert!(
                 error < 4.0 * sigma + 1e-4,
-                "{k}: {:?} vs {:?}",
-                fit.amplitudes[k],
-                truth[k]
+                "{k}: {:?} vs {expected:?}",
+                fit.amplitudes[k]
             );
             assert!(sigma > 1e-5 && sigma < 1e-3, "{sigma}");
         }
