@@ -32,7 +32,7 @@
 
 use nalgebra::{DMatrix, SymmetricEigen};
 
-use super::basis::{Degrees, PolynomialBasis};
+use super::basis::PolynomialBasis;
 use super::outline::Outline;
 use super::plate::PlateMaterial;
 
@@ -84,16 +84,7 @@ pub(crate) fn membrane_stiffness(
     degree: usize,
 ) -> DMatrix<f64> {
     let membrane_degree = degree + MEMBRANE_EXTRA_DEGREE;
-    let in_plane = PolynomialBasis::new(
-        outline.max_half_width_mm(),
-        outline.length_mm(),
-        Degrees {
-            across: membrane_degree,
-            along: membrane_degree,
-            total: membrane_degree,
-        },
-        false,
-    );
+    let in_plane = PolynomialBasis::over_outline(outline, membrane_degree, false);
     let (nw, nm) = (basis.len(), in_plane.len());
     let unknowns = nw + 2 * nm;
     let points = outline.quadrature(degree + 2);

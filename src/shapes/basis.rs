@@ -6,6 +6,7 @@
 //! supported rectangle).
 
 use super::legendre::LegendreTable;
+use super::outline::Outline;
 
 /// Which products are in a basis: degree across at most `across`, along at
 /// most `along`, and the two together at most `total`.
@@ -62,6 +63,20 @@ impl PolynomialBasis {
             length_mm,
             edge_factor,
         }
+    }
+
+    /// Every product up to total degree `degree` over `outline`'s box.
+    pub fn over_outline(outline: &Outline, degree: usize, edge_factor: bool) -> Self {
+        Self::new(
+            outline.max_half_width_mm(),
+            outline.length_mm(),
+            Degrees {
+                across: degree,
+                along: degree,
+                total: degree,
+            },
+            edge_factor,
+        )
     }
 
     pub fn len(&self) -> usize {

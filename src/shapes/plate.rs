@@ -18,7 +18,7 @@
 use nalgebra::{DMatrix, SymmetricEigen};
 
 use super::arching::{membrane_stiffness, Arch};
-use super::basis::{Degrees, Derivatives, PolynomialBasis};
+use super::basis::{Derivatives, PolynomialBasis};
 use super::outline::{Outline, OutlineShape};
 use super::surface::ShapeSurface;
 
@@ -200,16 +200,7 @@ impl PlateModel {
                 outline.shape().kind_name(),
             ));
         }
-        let basis = PolynomialBasis::new(
-            outline.max_half_width_mm(),
-            outline.length_mm(),
-            Degrees {
-                across: degree,
-                along: degree,
-                total: degree,
-            },
-            supported,
-        );
+        let basis = PolynomialBasis::over_outline(outline, degree, supported);
         let (mut stiffness, mass) =
             energy_matrices(&basis, outline, material, thickness_mm, degree)?;
         if let Some(arch) = arch.filter(|a| a.height_mm != 0.0) {

@@ -14,7 +14,7 @@
 
 use nalgebra::{DMatrix, DVector};
 
-use super::basis::{Degrees, Derivatives, PolynomialBasis};
+use super::basis::{Derivatives, PolynomialBasis};
 use super::outline::Outline;
 
 /// Something with a value and curvatures over the plate: a fitted surface,
@@ -91,16 +91,7 @@ impl FittedSurface {
             }
         }
         let degree = degree_for(n);
-        let basis = PolynomialBasis::new(
-            outline.max_half_width_mm(),
-            outline.length_mm(),
-            Degrees {
-                across: degree,
-                along: degree,
-                total: degree,
-            },
-            false,
-        );
+        let basis = PolynomialBasis::over_outline(outline, degree, false);
         let m = basis.len();
         let weight_sum: f64 = weights.iter().sum::<f64>().max(f64::MIN_POSITIVE);
         let mut normal = DMatrix::<f64>::zeros(m, m);
