@@ -17,5 +17,6 @@ pub mod demo;
 pub mod ledger;
 pub mod report;
 pub mod text;
+pub mod shapes;
 pub mod ui;
 pub mod wav_io;

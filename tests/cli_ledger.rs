@@ -159,7 +159,7 @@ fn a_missing_file_and_a_future_version_are_refused() {
     .unwrap();
     std::fs::write(
         &path,
-        sample.replacen("schema_version: 3", "schema_version: 9", 1),
+        sample.replacen("schema_version: 4", "schema_version: 9", 1),
     )
     .unwrap();
     let out = tapwright(&["ledger", path.to_str().unwrap()]);

@@ -7,6 +7,7 @@ mod devices;
 mod drive;
 mod ledger;
 mod listen;
+mod map;
 mod measure;
 pub mod output;
 mod parse_error;
@@ -60,6 +61,8 @@ pub enum Command {
     Stock(stock::StockArgs),
     /// Write a build's report as one HTML file (passes, charts, forecasts, air check).
     Report(report::ReportArgs),
+    /// Map mode shapes from taps at a grid of points (CSV of points and recordings).
+    Map(map::MapArgs),
 }
 
 /// Parses the process arguments, runs the chosen subcommand (or opens the
@@ -82,6 +85,7 @@ pub fn run_from_env() -> ExitCode {
         Some(Command::Drive(args)) => drive::run(args),
         Some(Command::Stock(args)) => stock::run(args),
         Some(Command::Report(args)) => report::run(args),
+        Some(Command::Map(args)) => map::run(args),
     };
     match outcome {
         Ok(()) => ExitCode::SUCCESS,

@@ -16,6 +16,8 @@ pub mod labels;
 pub mod model;
 pub mod schema_v1;
 pub mod schema_v2;
+pub mod schema_v3;
+pub mod shape_map;
 pub mod spectrum;
 pub mod stock;
 pub mod store;
@@ -28,6 +30,7 @@ pub use model::{
     Build, Family, FrequencyChange, LabelPoint, MeasuredMode, ModeLabel, Part, PartKind, Pass,
     PassChange, PassInput, PassModeRecord, PassOutcome, ThicknessReading, SCHEMA_VERSION,
 };
+pub use shape_map::{StoredModeShape, StoredShapeMap, StoredTapPoint};
 pub use spectrum::{SpectrumError, StoredSpectrum};
 pub use stock::StockSample;
 pub use store::StoreError;

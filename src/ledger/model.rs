@@ -14,6 +14,7 @@ use serde::{Deserialize, Serialize};
 use super::carry_over::{self, CarriedLabel};
 use super::forecast::{self, Forecast, HistoryPoint};
 use super::labels::{Tradition, GUITAR_BODY, GUITAR_FREE_PLATE, VIOLIN_BODY, VIOLIN_FREE_PLATE};
+use super::shape_map::StoredShapeMap;
 use super::spectrum::StoredSpectrum;
 use super::stock::StockSample;
 use super::time::Timestamp;
@@ -21,9 +22,10 @@ use super::LedgerError;
 use crate::acoustics::CavityGeometry;
 use crate::analysis::pitch::cents_between;
 
-/// The schema version this code writes. Versions 1 and 2 are still read
-/// (see `schema_v1` and `schema_v2`, migrated on load by `store::load`).
-pub const SCHEMA_VERSION: u32 = 3;
+/// The schema version this code writes. Versions 1 to 3 are still read
+/// (see `schema_v1`, `schema_v2` and `schema_v3`, migrated on load by
+/// `store::load`).
+pub const SCHEMA_VERSION: u32 = 4;
 
 /// Instrument family of a build; chooses the preset label sets.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
@@ -199,6 +201,9 @@ pub struct Pass {
     pub(super) modes: Vec<PassModeRecord>,
     /// The averaged spectrum, for overlays.
     pub spectrum: Option<StoredSpectrum>,
+    /// The mode shapes from roving taps, if the pass was tapped over a
+    /// grid (since schema version 4).
+    pub shape_map: Option<StoredShapeMap>,
 }
 
 /// Everything needed to record a new pass.
@@ -220,6 +225,8 @@ pub struct PassInput {
     pub modes: Vec<MeasuredMode>,
     /// The averaged spectrum, if kept.
     pub spectrum: Option<StoredSpectrum>,
+    /// The shape map, if the pass was tapped over a grid.
+    pub shape_map: Option<StoredShapeMap>,
 }
 
 impl PassInput {
@@ -235,6 +242,7 @@ impl PassInput {
             note: String::new(),
             modes,
             spectrum: None,
+            shape_map: None,
         }
     }
 }
@@ -531,6 +539,9 @@ impl Part {
         for mode in &input.modes {
             check_mode_values(&where_, mode)?;
         }
+        if let Some(map) = &input.shape_map {
+            map.validate(&where_, &self.labels)?;
+        }
         let mut measured = input.modes;
         measured.sort_by(|a, b| a.frequency_hz.total_cmp(&b.frequency_hz));
         let frequencies: Vec<f64> = measured.iter().map(|m| m.frequency_hz).collect();
@@ -562,6 +573,7 @@ impl Part {
             note: input.note,
             modes,
             spectrum: input.spectrum,
+            shape_map: input.shape_map,
         });
         let needs_confirmation = carry
             .carried
@@ -848,6 +860,9 @@ impl Part {
                     )));
                 }
             }
+        }
+        if let Some(map) = &pass.shape_map {
+            map.validate(&where_, &self.labels)?;
         }
         Ok(())
     }

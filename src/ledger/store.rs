@@ -4,8 +4,8 @@
 //! regular file (a folder, named pipe or device is refused before it is
 //! opened, so nothing hangs), is at most [`MAX_BUILD_FILE_MB`] MB (never more
 //! is read), is not empty, is UTF-8 text (a leading byte-order mark is
-//! skipped), is RON with a `schema_version` this code knows (1 and 2 are
-//! migrated, 3 is current), parses as that layout, and passes [`Build::validate`].
+//! skipped), is RON with a `schema_version` this code knows (1 to 3 are
+//! migrated, 4 is current), parses as that layout, and passes [`Build::validate`].
 //! (The current layout is tried first; the version alone is read only when
 //! that fails.) Each failure is one [`StoreError`] naming the file and, for
 //! syntax and layout problems, the line and column.
@@ -35,6 +35,7 @@ use serde::Deserialize;
 use super::model::{Build, SCHEMA_VERSION};
 use super::schema_v1;
 use super::schema_v2;
+use super::schema_v3;
 use super::LedgerError;
 use crate::atomic_file::{folder_of, sync_folder, temp_beside};
 
@@ -326,6 +327,7 @@ pub fn from_ron_text(text: &str, path: &Path) -> Result<Build, StoreError> {
         }
         1 => schema_v1::migrate(ron::from_str::<schema_v1::BuildV1>(text).map_err(syntax)?),
         2 => schema_v2::migrate(ron::from_str::<schema_v2::BuildV2>(text).map_err(syntax)?),
+        3 => schema_v3::migrate(ron::from_str::<schema_v3::BuildV3>(text).map_err(syntax)?),
         found => return Err(unsupported(found)),
     };
     checked(build, path)
