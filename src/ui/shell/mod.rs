@@ -74,6 +74,9 @@ pub struct AppOptions {
     pub started_at: Option<Instant>,
     /// Where the Drive area plays its tone.
     pub drive_output: OutputChoice,
+    /// What the demo source replays (None: the bundled demo recording);
+    /// tests give their own taps here, to play them as if live.
+    pub demo_recording: Option<crate::wav_io::MonoRecording>,
 }
 
 impl Default for AppOptions {
@@ -85,6 +88,7 @@ impl Default for AppOptions {
             sample_build_with_demo: false,
             started_at: None,
             drive_output: OutputChoice::default(),
+            demo_recording: None,
         }
     }
 }
