@@ -5,11 +5,10 @@
 //!
 //! The plate keeps its aspect ratio: one scale for both axes, the upper
 //! end (the neck, largest `y_mm`) at the top, the bass side (negative
-//! `x_mm`) on the left. Colours come from two diverging scales of our own
-//! ([`Palette`]): blue through a warm white to orange for a shape, green
-//! through white to purple for a carving guide. In both, the two ends lie
-//! on opposite sides of the blue–yellow axis, which red–green colour
-//! blindness (the common kinds) keeps, and each end darkens as it grows.
+//! `x_mm`) on the left. Colours come from the diverging scales the build
+//! report uses too ([`Palette`], defined in `report::shapes`): blue
+//! through a warm white to orange for a shape, green through white to
+//! purple for a carving guide.
 
 use eframe::egui::{self, Color32, ColorImage, Pos2, Rect, Sense, Stroke, TextureHandle};
 
@@ -20,57 +19,12 @@ use crate::text::{num, signed, LengthUnit};
 /// 206 × 356 px).
 pub const FIELD_PIXELS_PER_MM: f64 = 1.0;
 
-/// A diverging colour scale: −1 at one end, 0 in the middle, +1 at the
-/// other.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub enum Palette {
-    /// A mode's shape: blue (−), warm white (0), orange (+).
-    Shape,
-    /// A carving guide: green (thinning lowers the mode), white, purple
-    /// (thinning raises it).
-    Carving,
-}
+pub use crate::report::shapes::Palette;
 
-impl Palette {
-    /// Stops from −1 to +1, evenly spaced (our own choice of colours).
-    fn stops(self) -> [[u8; 3]; 5] {
-        match self {
-            Palette::Shape => [
-                [28, 78, 150],
-                [120, 165, 212],
-                [246, 243, 236],
-                [238, 160, 82],
-                [168, 74, 12],
-            ],
-            Palette::Carving => [
-                [27, 110, 50],
-                [128, 186, 132],
-                [244, 244, 240],
-                [190, 160, 210],
-                [110, 45, 130],
-            ],
-        }
-    }
-
-    /// The colour of `t` (clamped to −1…+1; not a number gives a mid grey,
-    /// apart from every colour of either scale).
-    pub fn colour(self, t: f64) -> Color32 {
-        if !t.is_finite() {
-            return Color32::from_gray(150);
-        }
-        let stops = self.stops();
-        let position = (t.clamp(-1.0, 1.0) + 1.0) * 2.0;
-        let index = (position.floor() as usize).min(3);
-        let f = position - index as f64;
-        let mix = |a: u8, b: u8| (f64::from(a) + (f64::from(b) - f64::from(a)) * f).round() as u8;
-        let (a, b) = (stops[index], stops[index + 1]);
-        Color32::from_rgb(mix(a[0], b[0]), mix(a[1], b[1]), mix(a[2], b[2]))
-    }
-
-    /// The full colour of one sign (for markers).
-    pub fn end(self, positive: bool) -> Color32 {
-        self.colour(if positive { 1.0 } else { -1.0 })
-    }
+/// The colour of `t` on `palette` (see [`Palette::rgb`]).
+pub fn colour(palette: Palette, t: f64) -> Color32 {
+    let [r, g, b] = palette.rgb(t);
+    Color32::from_rgb(r, g, b)
 }
 
 /// An image of `raster` over the outline's bounding box, coloured by
@@ -94,7 +48,7 @@ pub fn field_image(outline: &Outline, raster: &Raster, palette: Palette, scale: 
         for column in 0..width_px {
             let x_mm = 2.0 * half * ((column as f64 + 0.5) / width_px as f64) - half;
             let colour = if outline.contains(x_mm, y_mm) {
-                palette.colour(sample_raster(raster, x_mm, y_mm) / scale)
+                colour(palette, sample_raster(raster, x_mm, y_mm) / scale)
             } else {
                 Color32::TRANSPARENT
             };
@@ -396,7 +350,11 @@ fn draw_marker(
             let radius = 2.5 + 5.5 * size;
             let spread_radius = 2.5 + 5.5 * (value.abs() + spread).min(1.5) as f32;
             if certain {
-                painter.circle_filled(centre, radius, palette.end(value >= 0.0));
+                painter.circle_filled(
+                    centre,
+                    radius,
+                    colour(palette, if value >= 0.0 { 1.0 } else { -1.0 }),
+                );
                 painter.circle_stroke(centre, radius, Stroke::new(1.0, dark));
             } else {
                 painter.circle_filled(centre, radius.max(3.5), Color32::from_rgb(235, 235, 235));
@@ -476,7 +434,7 @@ pub fn legend(ui: &mut egui::Ui, palette: Palette, left: &str, middle: &str, rig
             egui::pos2(x, bar.top()),
             egui::pos2(x + step + 0.5, bar.bottom()),
         );
-        ui.painter().rect_filled(cell, 0.0, palette.colour(t));
+        ui.painter().rect_filled(cell, 0.0, colour(palette, t));
     }
     ui.painter().line_segment(
         [bar.center_top(), bar.center_bottom()],
@@ -505,30 +463,6 @@ pub fn legend(ui: &mut egui::Ui, palette: Palette, left: &str, middle: &str, rig
 mod tests {
     use super::*;
     use crate::shapes::OutlineShape;
-
-    #[test]
-    fn the_scales_run_from_one_end_through_white_to_the_other() {
-        for palette in [Palette::Shape, Palette::Carving] {
-            let middle = palette.colour(0.0);
-            assert!(middle.r() > 235 && middle.g() > 235 && middle.b() > 230);
-            let (low, high) = (palette.colour(-1.0), palette.colour(1.0));
-            assert_eq!(palette.colour(-7.0), low);
-            assert_eq!(palette.colour(3.0), high);
-            // Each end is dark, and lighter towards the middle.
-            let lightness = |c: Color32| {
-                0.3 * f64::from(c.r()) + 0.59 * f64::from(c.g()) + 0.11 * f64::from(c.b())
-            };
-            assert!(lightness(low) < 140.0 && lightness(high) < 140.0);
-            assert!(lightness(palette.colour(-0.5)) - lightness(low) > 40.0);
-            assert!(lightness(palette.colour(0.5)) - lightness(high) > 40.0);
-            // The ends lie on opposite sides of the blue–yellow axis, which
-            // red–green colour blindness keeps (common practice, no source).
-            let blue_yellow =
-                |c: Color32| f64::from(c.b()) - (f64::from(c.r()) + f64::from(c.g())) / 2.0;
-            assert!(blue_yellow(low) * blue_yellow(high) < 0.0);
-        }
-        assert_eq!(Palette::Shape.colour(f64::NAN), Color32::from_gray(150));
-    }
 
     #[test]
     fn a_field_image_keeps_the_plate_s_proportions_and_is_clear_outside() {
