@@ -226,6 +226,11 @@ impl TapwrightApp {
         &self.areas.drive
     }
 
+    /// The Shapes area's state (the grid being tapped, the map shown).
+    pub fn shapes(&self) -> &crate::ui::areas::shapes::ShapesAreaState {
+        &self.areas.shapes
+    }
+
     /// The open build.
     pub fn build(&self) -> Option<&Build> {
         self.document.build()

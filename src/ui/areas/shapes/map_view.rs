@@ -136,7 +136,7 @@ pub fn mode_list(ui: &mut egui::Ui, shown: &mut MapShown, label_choices: &[Strin
                     quality_words(quality),
                     num(quality, 3)
                 ));
-                label_picker(ui, index, &mut shown.labels, label_choices);
+                label_picker(ui, index, shape.frequency_hz, &mut shown.labels, label_choices);
                 ui.end_row();
             }
         });
@@ -145,12 +145,13 @@ pub fn mode_list(ui: &mut egui::Ui, shown: &mut MapShown, label_choices: &[Strin
 fn label_picker(
     ui: &mut egui::Ui,
     index: usize,
+    frequency_hz: f64,
     labels: &mut [Option<String>],
     choices: &[String],
 ) {
     let current = labels.get(index).cloned().flatten();
     let mut picked = current.clone();
-    egui::ComboBox::from_id_salt(("shapes mode label", index))
+    let response = egui::ComboBox::from_id_salt(("shapes mode label", index))
         .width(96.0)
         .selected_text(current.as_deref().unwrap_or("–"))
         .show_ui(ui, |ui| {
@@ -159,6 +160,9 @@ fn label_picker(
                 ui.selectable_value(&mut picked, Some(choice.clone()), choice);
             }
         });
+    let _ = response
+        .response
+        .accessible_name(format!("Label of the shape at {} Hz", num(frequency_hz, 1)));
     if picked != current {
         // A label names one mode: take it off any other.
         if picked.is_some() {

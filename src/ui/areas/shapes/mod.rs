@@ -84,11 +84,19 @@ impl ShapesAreaState {
         self.tapping.as_ref().map(Tapping::progress_text)
     }
 
-    /// Frequencies of the modes of the map shown.
-    pub fn map_frequencies_hz(&self) -> Vec<f64> {
+    /// The modes of the map shown (none without a map).
+    pub fn map_shapes(&self) -> Vec<crate::shapes::ModeShape> {
         self.shown
             .as_ref()
-            .map(|s| s.map.modes.iter().map(|m| m.shape.frequency_hz).collect())
+            .map(|s| s.map.modes.iter().map(|m| m.shape.clone()).collect())
+            .unwrap_or_default()
+    }
+
+    /// The tap points of the map shown, in its order.
+    pub fn map_points(&self) -> Vec<crate::shapes::TapPoint> {
+        self.shown
+            .as_ref()
+            .map(|s| s.map.points.clone())
             .unwrap_or_default()
     }
 }
@@ -443,6 +451,9 @@ fn tapping_section(
             .text(tapping.progress_text())
             .desired_width(ui.available_width().min(300.0)),
     );
+    if let Some(text) = tapping.refused_text() {
+        ui.weak(text);
+    }
     for news in &tapping.news {
         if news.refused {
             ui.colored_label(ui.visuals().warn_fg_color, &news.text);

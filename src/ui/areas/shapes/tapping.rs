@@ -29,6 +29,8 @@ pub struct Tapping {
     pub sample_rate_hz: Option<u32>,
     /// What became of the latest taps, newest first.
     pub news: VecDeque<News>,
+    /// Every tap refused so far: the point and why.
+    pub refused: Vec<(String, String)>,
     /// Every point has its taps: the map should be worked out.
     pub complete_unmapped: bool,
 }
@@ -55,6 +57,7 @@ impl Tapping {
             listening: true,
             sample_rate_hz: None,
             news: VecDeque::new(),
+            refused: Vec::new(),
             complete_unmapped: false,
         })
     }
@@ -64,6 +67,11 @@ impl Tapping {
             .points()
             .get(index)
             .map_or("?", |p| p.name.as_str())
+    }
+
+    fn refuse(&mut self, point: &str, why: &str, text: String) {
+        self.refused.push((point.to_owned(), why.to_owned()));
+        self.tell(text, true);
     }
 
     fn tell(&mut self, text: String, refused: bool) {
@@ -78,21 +86,23 @@ impl Tapping {
         let here = self.survey.current();
         let name = self.point_name(here).to_owned();
         let Some(mut record) = tap.record else {
-            self.tell(
+            self.refuse(
+                &name,
+                "no sound kept",
                 format!("A tap at {name} came without its sound and was not counted."),
-                true,
             );
             return;
         };
         record.rejected = tap.rejected;
         match self.sample_rate_hz {
             Some(rate) if rate != tap.sample_rate_hz => {
-                self.tell(
+                self.refuse(
+                    &name,
+                    "another sample rate",
                     format!(
                         "A tap at {name} came at {} Hz, the grid's first taps at {rate} Hz; it was not counted (start the grid again after changing the input).",
                         tap.sample_rate_hz
                     ),
-                    true,
                 );
                 return;
             }
@@ -100,12 +110,13 @@ impl Tapping {
         }
         let wanted = self.survey.taps_wanted();
         match self.survey.add_tap(record) {
-            TapOutcome::Rejected(reason) => self.tell(
+            TapOutcome::Rejected(reason) => self.refuse(
+                &name,
+                reason.short_text(),
                 format!(
                     "A tap at {name} was left out: {reason} ({}). Tap {name} again.",
                     reason.advice()
                 ),
-                true,
             ),
             TapOutcome::Kept { point } => {
                 let count = self.survey.taps_at(point).len();
@@ -130,6 +141,19 @@ impl Tapping {
     pub fn progress_text(&self) -> String {
         let (done, all) = self.survey.progress();
         format!("{done} of {all} points")
+    }
+
+    /// "Not counted so far: 2A (clipped), 3C (double strike)", or None.
+    pub fn refused_text(&self) -> Option<String> {
+        if self.refused.is_empty() {
+            return None;
+        }
+        let list: Vec<String> = self
+            .refused
+            .iter()
+            .map(|(point, why)| format!("{point} ({why})"))
+            .collect();
+        Some(format!("Not counted so far: {}", list.join(", ")))
     }
 }
 
@@ -216,4 +240,59 @@ pub fn point_controls(ui: &mut egui::Ui, tapping: &mut Tapping) {
             tapping.tell(format!("Cleared {name}; tap it again."), false);
         }
     });
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::analysis::{FoundTap, RejectReason};
+    use crate::shapes::OutlineShape;
+
+    fn tap(rejected: Option<RejectReason>, sample_rate_hz: u32) -> Tap {
+        Tap {
+            index: 1,
+            onset_s: 0.0,
+            peak_dbfs: -20.0,
+            sample_rate_hz,
+            rejected,
+            analysis: None,
+            record: Some(FoundTap {
+                start_sample: 0,
+                onset_index: 0,
+                samples: vec![0.0; 8],
+                peak_dbfs: -20.0,
+                floor_dbfs: -70.0,
+                rejected,
+            }),
+        }
+    }
+
+    #[test]
+    fn refused_taps_are_told_and_not_counted_and_the_last_point_ends_the_grid() {
+        let outline = Outline::new(OutlineShape::Rectangle {
+            length_mm: 300.0,
+            width_mm: 200.0,
+        })
+        .expect("test value");
+        let points = crate::shapes::tap_grid(&outline, 2, 1).expect("test value");
+        let mut tapping = Tapping::new(outline, points, 2).expect("test value");
+        tapping.take_tap(tap(Some(RejectReason::DoubleStrike), 48_000));
+        assert_eq!(tapping.survey.taps_at(0).len(), 0);
+        assert!(tapping.news[0].refused && tapping.news[0].text.contains("double strike"));
+        tapping.take_tap(tap(None, 48_000));
+        // Another rate than the first good tap's is refused.
+        tapping.take_tap(tap(None, 44_100));
+        assert_eq!(tapping.survey.taps_at(0).len(), 1);
+        assert_eq!(
+            tapping.refused_text().as_deref(),
+            Some("Not counted so far: 1A (double strike), 1A (another sample rate)")
+        );
+        tapping.take_tap(tap(None, 48_000));
+        assert_eq!(tapping.survey.current(), 1);
+        assert_eq!(tapping.news[0].text, "1A is done; now tap 1B.");
+        tapping.take_tap(tap(None, 48_000));
+        tapping.take_tap(tap(None, 48_000));
+        assert!(tapping.complete_unmapped && !tapping.listening);
+        assert_eq!(tapping.progress_text(), "2 of 2 points");
+    }
 }
