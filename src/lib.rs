@@ -16,7 +16,7 @@ pub mod cli;
 pub mod demo;
 pub mod ledger;
 pub mod report;
-pub mod text;
 pub mod shapes;
+pub mod text;
 pub mod ui;
 pub mod wav_io;

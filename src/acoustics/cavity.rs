@@ -139,6 +139,11 @@ impl Opening {
         }
     }
 
+    /// True for a round hole (its one size is a diameter).
+    pub fn is_round(&self) -> bool {
+        matches!(self, Opening::Round { .. })
+    }
+
     /// Its sizes, mm: the diameter of a round hole; the length and the
     /// (mean) width of an oval or a slot.
     pub fn sizes_mm(&self) -> Vec<f64> {

@@ -681,10 +681,18 @@ fn report_text(report: &AirReport, units: Units) -> String {
 fn solved_text(solved: &Solved, units: Units) -> String {
     if solved.unit == "L" {
         let volume = units.volume;
-        format!("{} {}", num(volume.from_m3(solved.stored), volume.decimals() + 1), volume.symbol())
+        format!(
+            "{} {}",
+            num(volume.from_m3(solved.stored), volume.decimals() + 1),
+            volume.symbol()
+        )
     } else {
         let length = units.length;
-        format!("{} {}", num(length.from_mm(solved.stored), 3), length.symbol())
+        format!(
+            "{} {}",
+            num(length.from_mm(solved.stored), 3),
+            length.symbol()
+        )
     }
 }
 
@@ -730,7 +738,7 @@ fn estimate_lines(
         ),
         String::new(),
         format!(
-            "  {:<3} {:<6} {:<18} {:>9} {:>15} {:>13}",
+            "  {:<3} {:<6} {:<18} {:>9} {:>16} {:>15}",
             "#",
             "kind",
             "size",
@@ -745,12 +753,9 @@ fn estimate_lines(
         .zip(&estimate.sensitivities.hz_per_mm_of_opening)
         .enumerate()
     {
-        let size = length.opening_text(
-            matches!(opening.opening, Opening::Round { .. }),
-            &opening.opening.sizes_mm(),
-        );
+        let size = length.opening_text(opening.opening.is_round(), &opening.opening.sizes_mm());
         lines.push(format!(
-            "  {:<3} {:<6} {:<18} {:>9} {:>15} {:>13.3}",
+            "  {:<3} {:<6} {:<18} {:>9} {:>16} {:>15.3}",
             index + 1,
             opening.opening.kind(),
             size,
@@ -760,7 +765,7 @@ fn estimate_lines(
         ));
     }
     lines.push(format!(
-        "  {:<3} {:<6} {:<18} {:>9} {:>15}",
+        "  {:<3} {:<6} {:<18} {:>9} {:>16}",
         "",
         "total",
         "",

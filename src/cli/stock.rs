@@ -10,7 +10,7 @@ use serde_json::{json, Value};
 
 use super::output::write_stdout;
 use super::values::{parse_number, parse_optional, parse_units};
-use crate::text::{num, Units};
+use crate::text::Units;
 
 use crate::acoustics::stock::{bar_figures, BarFigures, BarSample, StockError, WOOD_POISSON_RATIO};
 
@@ -144,21 +144,12 @@ fn report_json(bar: &BarSample, figures: &BarFigures) -> Value {
 }
 
 fn report_text(bar: &BarSample, figures: &BarFigures, units: Units) -> String {
-    let length = units.length;
-    let size = |mm: f64| num(length.from_mm(mm), length.size_decimals());
     let mut lines = vec![
         format!(
-            "bar                   {} × {} × {} {}, {}",
-            size(bar.length_mm),
-            size(bar.width_mm),
-            size(bar.thickness_mm),
-            length.symbol(),
-            units.mass.text(bar.mass_g)
+            "bar                   {}",
+            units.bar_text((bar.length_mm, bar.width_mm, bar.thickness_mm), bar.mass_g)
         ),
-        format!(
-            "density               {:>9.1} kg/m³",
-            figures.density_kg_m3
-        ),
+        format!("density               {:>9.1} kg/m³", figures.density_kg_m3),
     ];
     if let Some(flexural) = &figures.flexural {
         lines.push(format!(

@@ -6,9 +6,8 @@
 
 use maud::{html, Markup, PreEscaped, DOCTYPE};
 
-use crate::acoustics::{compare_with_measured, estimate_cavity, CavityGeometry, Opening};
+use crate::acoustics::{compare_with_measured, estimate_cavity, CavityGeometry};
 use crate::ledger::compare::{mode5_interval_semitones, plate_modes, top_and_back};
-use crate::acoustics::stock::BarSample;
 use crate::ledger::{Build, Forecast, FrequencyChange, Part, PartKind, Pass};
 
 use super::charts::{mode_chart_svg, series_colour, ModeChart};
@@ -104,7 +103,7 @@ pub fn stock(build: &Build, units: Units) -> Markup {
                                 td { (sample.name) }
                                 td { (sample.species) }
                                 td { (grain) }
-                                td { (bar_text(bar, units)) }
+                                td { (units.bar_text((bar.length_mm, bar.width_mm, bar.thickness_mm), bar.mass_g)) }
                                 @match figures {
                                     Ok(f) => {
                                         td.num { (num(f.density_kg_m3, 0)) }
@@ -264,7 +263,7 @@ fn air_estimate(build: &Build, geometry: &CavityGeometry, settings: &ReportSetti
                 @for (index, opening) in estimate.openings.iter().enumerate() {
                     tr {
                         td { "Opening " (index + 1) }
-                        td { (opening.opening.kind()) ", " (opening_size_text(&opening.opening, units)) ", " (units.length.area_text(opening.area_m2)) }
+                        td { (opening.opening.kind()) ", " (units.length.opening_text(opening.opening.is_round(), &opening.opening.sizes_mm())) ", " (units.length.area_text(opening.area_m2)) }
                     }
                 }
                 tr { td { "Wall thickness at the openings" } td { (units.length.thickness_text(geometry.wall_thickness_mm)) ", " (geometry.end_correction.name()) " end correction" } }
@@ -566,27 +565,6 @@ fn thickness_text(pass: &Pass, units: Units) -> String {
         })
         .collect::<Vec<_>>()
         .join(", ")
-}
-
-/// An opening's sizes in the chosen unit ("Ø 86 mm", "2.756 × 0.315 in").
-fn opening_size_text(opening: &Opening, units: Units) -> String {
-    units
-        .length
-        .opening_text(matches!(opening, Opening::Round { .. }), &opening.sizes_mm())
-}
-
-/// A bar's sizes and mass: "300.0 × 25.0 × 10.0 mm, 33.75 g".
-fn bar_text(bar: &BarSample, units: Units) -> String {
-    let length = units.length;
-    let size = |mm: f64| num(length.from_mm(mm), length.size_decimals());
-    format!(
-        "{} × {} × {} {}, {}",
-        size(bar.length_mm),
-        size(bar.width_mm),
-        size(bar.thickness_mm),
-        length.symbol(),
-        units.mass.text(bar.mass_g)
-    )
 }
 
 fn plural(count: usize) -> &'static str {

@@ -12,8 +12,8 @@
 use serde::{Deserialize, Serialize};
 
 use super::numbers::{num, number_text};
-use super::typed::{read_number, NumberProblem};
 use super::sentences::sentence;
+use super::typed::{read_number, NumberProblem};
 
 /// Millimetres in one inch (exact, 1959 agreement).
 pub const MM_PER_INCH: f64 = 25.4;
@@ -80,6 +80,25 @@ impl Units {
     /// Millimetres, grams, °C and litres.
     pub fn metric() -> Self {
         Self::default()
+    }
+
+    /// "300.0 × 25.0 × 10.0 mm, 33.75 g" / "11.81 × 0.98 × 0.39 in,
+    /// 1.190 oz": a sample bar's sizes and mass.
+    pub fn bar_text(
+        self,
+        (length_mm, width_mm, thickness_mm): (f64, f64, f64),
+        mass_g: f64,
+    ) -> String {
+        let length = self.length;
+        let size = |mm: f64| num(length.from_mm(mm), length.size_decimals());
+        format!(
+            "{} × {} × {} {}, {}",
+            size(length_mm),
+            size(width_mm),
+            size(thickness_mm),
+            length.symbol(),
+            self.mass.text(mass_g)
+        )
     }
 
     /// Inches, ounces, °F and cubic inches.
@@ -337,6 +356,22 @@ impl Unit for VolumeUnit {
     }
 }
 
+/// The significant digits of a typed number ("0.0120" has 3).
+fn significant_digits(text: &str) -> usize {
+    let digits: String = text.chars().filter(char::is_ascii_digit).collect();
+    digits.trim_start_matches('0').len()
+}
+
+/// `value` to `digits` significant digits (fixed notation).
+fn significant_text(value: f64, digits: usize) -> String {
+    if value == 0.0 || !value.is_finite() {
+        return "0".to_owned();
+    }
+    let magnitude = value.abs().log10().floor() as i32;
+    let decimals = (digits as i32 - 1 - magnitude).clamp(0, 15) as usize;
+    format!("{value:.decimals$}")
+}
+
 /// "86.00" → "86", "8.50" → "8.5".
 fn without_trailing_zeros(text: String) -> String {
     if text.contains('.') {
@@ -373,15 +408,29 @@ pub fn parse_optional_in<U: Unit>(unit: U, what: &str, text: &str) -> Result<Opt
 }
 
 /// Rewrites a number typed in `from` as the same quantity in `to` (a field
-/// whose unit the maker just changed); text that is not a number is left
-/// as it is, for the maker to finish.
+/// whose unit the maker just changed), with the fewest decimals that bring
+/// back the same number when the unit is changed back (86 mm becomes
+/// "3.385827" in, which becomes "86" mm again); text that is not a number
+/// is left as it is, for the maker to finish.
 pub fn convert_typed<U: Unit>(text: &mut String, from: U, to: U) {
     if from == to {
         return;
     }
-    if let Ok(value) = read_number(text) {
-        *text = field_text(to, from.to_stored(value));
-    }
+    let Ok(value) = read_number(text) else {
+        return;
+    };
+    let stored = from.to_stored(value);
+    // As many significant digits as were typed, six at least.
+    let digits = significant_digits(text).max(6);
+    let as_typed = significant_text(value, digits);
+    let comes_back = |candidate: &String| {
+        read_number(candidate)
+            .is_ok_and(|v| significant_text(from.from_stored(to.to_stored(v)), digits) == as_typed)
+    };
+    *text = (0..=9)
+        .map(|decimals| without_trailing_zeros(format!("{:.decimals$}", to.from_stored(stored))))
+        .find(comes_back)
+        .unwrap_or_else(|| field_text(to, stored));
 }
 
 impl LengthUnit {
@@ -552,7 +601,10 @@ mod tests {
     #[test]
     fn typed_values_are_read_in_their_unit_and_refused_in_one_sentence() {
         assert_eq!(parse_in(LengthUnit::Inch, "The thickness", "0,1"), Ok(2.54));
-        assert_eq!(parse_in(MassUnit::Ounce, "The mass", " 2 "), Ok(2.0 * GRAMS_PER_OUNCE));
+        assert_eq!(
+            parse_in(MassUnit::Ounce, "The mass", " 2 "),
+            Ok(2.0 * GRAMS_PER_OUNCE)
+        );
         assert_eq!(
             parse_optional_in(TemperatureUnit::Fahrenheit, "The air temperature", ""),
             Ok(None)
@@ -576,11 +628,29 @@ mod tests {
         assert_eq!(text, "0.118");
         let mut text = "2,".to_owned();
         convert_typed(&mut text, MassUnit::Gram, MassUnit::Ounce);
-        // "2," reads as 2 (a decimal comma), 2 g = 0.0705479 oz.
-        assert_eq!(text, "0.0705479");
+        // "2," reads as 2 (a decimal comma), 2 g = 0.070548 oz to the
+        // digits that bring 2 g back.
+        assert_eq!(text, "0.070548");
         let mut unfinished = "abc".to_owned();
         convert_typed(&mut unfinished, MassUnit::Gram, MassUnit::Ounce);
         assert_eq!(unfinished, "abc");
+        // Back and forth: the number typed comes back as typed.
+        for typed in ["86", "70", "2.5", "356", "0.01"] {
+            let mut text = typed.to_owned();
+            convert_typed(&mut text, LengthUnit::Millimetre, LengthUnit::Inch);
+            convert_typed(&mut text, LengthUnit::Inch, LengthUnit::Millimetre);
+            assert_eq!(text, typed);
+        }
+        let mut text = "86".to_owned();
+        convert_typed(&mut text, LengthUnit::Millimetre, LengthUnit::Inch);
+        assert_eq!(text, "3.385827");
+        let mut text = "20".to_owned();
+        convert_typed(
+            &mut text,
+            TemperatureUnit::Celsius,
+            TemperatureUnit::Fahrenheit,
+        );
+        assert_eq!(text, "68");
         // 70 mm shown in inches and read back: the same to six digits.
         let shown = field_text(LengthUnit::Inch, 70.0);
         assert_eq!(shown, "2.75591");
@@ -593,15 +663,33 @@ mod tests {
         // 1 in² = 6.4516 cm² exactly (from 1 in = 2.54 cm).
         assert_eq!(LengthUnit::Millimetre.area_text(6.4516e-4), "6.45 cm²");
         assert_eq!(LengthUnit::Inch.area_text(6.4516e-4), "1.000 in²");
-        assert_eq!(LengthUnit::Millimetre.opening_text(true, &[86.0]), "Ø 86 mm");
+        assert_eq!(
+            LengthUnit::Millimetre.opening_text(true, &[86.0]),
+            "Ø 86 mm"
+        );
         assert_eq!(
             LengthUnit::Inch.opening_text(false, &[70.0, 8.0]),
             "2.756 × 0.315 in"
         );
-        assert_eq!(LengthUnit::Inch.outline_text(355.6, 203.2), "14.00 × 8.00 in");
-        assert_eq!(LengthUnit::Millimetre.outline_text(355.6, 203.2), "356 × 203 mm");
+        assert_eq!(
+            LengthUnit::Inch.outline_text(355.6, 203.2),
+            "14.00 × 8.00 in"
+        );
+        assert_eq!(
+            LengthUnit::Millimetre.outline_text(355.6, 203.2),
+            "356 × 203 mm"
+        );
         assert!((TemperatureUnit::Fahrenheit.per_degree(0.9) - 0.5).abs() < 1e-12);
         assert_eq!(Units::imperial().name(), "imperial");
+        assert_eq!(
+            Units::metric().bar_text((300.0, 25.0, 10.0), 33.75),
+            "300.0 × 25.0 × 10.0 mm, 33.75 g"
+        );
+        // 300 mm = 11.81 in, 33.75 g = 1.190 oz.
+        assert_eq!(
+            Units::imperial().bar_text((300.0, 25.4, 10.0), 33.75),
+            "11.81 × 1.00 × 0.39 in, 1.190 oz"
+        );
         let mixed = Units {
             mass: MassUnit::Gram,
             ..Units::imperial()

@@ -93,10 +93,7 @@ mod tests {
     fn the_recording_dialog_offers_every_readable_ending_in_both_cases() {
         for extension in READABLE_EXTENSIONS {
             for case in [extension.to_string(), extension.to_ascii_uppercase()] {
-                assert!(
-                    OPEN_RECORDING.extensions.contains(&case.as_str()),
-                    "{case}"
-                );
+                assert!(OPEN_RECORDING.extensions.contains(&case.as_str()), "{case}");
             }
         }
         assert_eq!(

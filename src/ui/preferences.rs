@@ -78,9 +78,12 @@ fn read(path: &Path) -> Result<Option<Preferences>, String> {
         return Err(format!("it is {} bytes long", metadata.len()));
     }
     let text = std::fs::read_to_string(path).map_err(|e| e.to_string())?;
-    ron::from_str::<Preferences>(&text)
-        .map(Some)
-        .map_err(|e| e.to_string().replace('\n', " ").trim_end_matches('.').to_owned())
+    ron::from_str::<Preferences>(&text).map(Some).map_err(|e| {
+        e.to_string()
+            .replace('\n', " ")
+            .trim_end_matches('.')
+            .to_owned()
+    })
 }
 
 /// Writes the preferences into `folder` (made if missing), whole or not at
@@ -119,13 +122,20 @@ mod tests {
     fn a_damaged_file_gives_the_defaults_and_one_sentence() {
         let folder = tempfile::tempdir().expect("test value");
         let path = folder.path().join(FILE_NAME);
-        for damaged in ["(units: (length: Furlong))", "\u{0}\u{1}garbage", "(units: "] {
+        for damaged in [
+            "(units: (length: Furlong))",
+            "\u{0}\u{1}garbage",
+            "(units: ",
+        ] {
             std::fs::write(&path, damaged).expect("test value");
             let (preferences, problem) = load(folder.path());
             assert_eq!(preferences, Preferences::default());
             let problem = problem.expect("a problem");
             assert!(problem.contains(FILE_NAME), "{problem}");
-            assert!(problem.ends_with('.') && !problem.contains('\n'), "{problem}");
+            assert!(
+                problem.ends_with('.') && !problem.contains('\n'),
+                "{problem}"
+            );
             // The damaged file is left for the maker to look at.
             assert_eq!(std::fs::read_to_string(&path).expect("test value"), damaged);
         }
@@ -137,11 +147,8 @@ mod tests {
     #[test]
     fn a_file_missing_a_kind_keeps_the_default_for_it() {
         let folder = tempfile::tempdir().expect("test value");
-        std::fs::write(
-            folder.path().join(FILE_NAME),
-            "(units: (length: Inch))",
-        )
-        .expect("test value");
+        std::fs::write(folder.path().join(FILE_NAME), "(units: (length: Inch))")
+            .expect("test value");
         let (preferences, problem) = load(folder.path());
         assert_eq!(problem, None);
         assert_eq!(preferences.units.length, crate::text::LengthUnit::Inch);

@@ -10,6 +10,7 @@ use eframe::egui;
 use super::status::StatusLine;
 use super::{help, units_window, PassState, TapwrightApp, LABEL_SETS};
 use crate::audio::{CaptureSettings, OutputChoice};
+use crate::text::Units;
 use crate::ui::areas::air::{self, AirAreaState};
 use crate::ui::areas::drive::{self, DriveAreaState};
 use crate::ui::areas::ledger::{self, LedgerAreaState};
@@ -17,7 +18,6 @@ use crate::ui::areas::listen::{self, ListenFacts, ListenView};
 use crate::ui::areas::stock::{self, StockAreaState};
 use crate::ui::commands::{AppCommand, Area, ListenCommand};
 use crate::ui::context::AreaContext;
-use crate::text::Units;
 use crate::ui::jobs::Jobs;
 use crate::wav_io::READABLE_EXTENSIONS;
 
@@ -376,12 +376,30 @@ mod tests {
 
     #[test]
     fn dropped_files_are_taken_by_their_ending_in_any_case() {
-        for name in ["taps.wav", "TAPS.WAV", "phone.m4a", "take.Flac", "x.MP3", "y.ogg"] {
-            assert_eq!(dropped_kind(std::path::Path::new(name)), Dropped::Recording, "{name}");
+        for name in [
+            "taps.wav",
+            "TAPS.WAV",
+            "phone.m4a",
+            "take.Flac",
+            "x.MP3",
+            "y.ogg",
+        ] {
+            assert_eq!(
+                dropped_kind(std::path::Path::new(name)),
+                Dropped::Recording,
+                "{name}"
+            );
         }
-        assert_eq!(dropped_kind(std::path::Path::new("violin.RON")), Dropped::Build);
+        assert_eq!(
+            dropped_kind(std::path::Path::new("violin.RON")),
+            Dropped::Build
+        );
         for name in ["notes.txt", "report.html", "no ending"] {
-            assert_eq!(dropped_kind(std::path::Path::new(name)), Dropped::Other, "{name}");
+            assert_eq!(
+                dropped_kind(std::path::Path::new(name)),
+                Dropped::Other,
+                "{name}"
+            );
         }
     }
 }

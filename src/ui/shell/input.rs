@@ -207,6 +207,9 @@ impl TapwrightApp {
                 "Some sound was lost because the computer fell behind ({dropped_samples_total} samples so far)."
             )),
             CaptureEvent::Status { message } => self.set_message(sentence(&message)),
+            CaptureEvent::NotLive { message } => self.set_message(sentence(&format!(
+                "{message}; what did not fit the buffer was skipped"
+            ))),
             CaptureEvent::DeviceLost { message } => {
                 let text = sentence(&message);
                 view.state = SourceState::Trouble(text.clone());

@@ -309,7 +309,12 @@ fn apply_pass_edit(edit: &PassEdit, ctx: &mut AreaContext) -> Result<(), String>
     let unit = edit.mass_unit;
     let mass_g = parse_optional_in(unit, "The mass", &edit.mass_text)?
         .filter(|m| *m > 0.0)
-        .ok_or_else(|| format!("The mass must be a number of {} above 0.", unit.plural_name()))?;
+        .ok_or_else(|| {
+            format!(
+                "The mass must be a number of {} above 0.",
+                unit.plural_name()
+            )
+        })?;
     let (part, number, note) = (edit.part.clone(), edit.number, edit.note.trim().to_owned());
     try_edit(ctx, "correcting the pass", move |build| {
         let pass = build
