@@ -269,18 +269,29 @@ fn the_null_device_is_named_for_what_it_is_not_as_losing_samples() {
     // ALSA's `null` capture device returns zeros as fast as they are read
     // (alsa-lib pcm_null.c: it has no clock): far faster than real time,
     // so the ring overfills at once. That is not sound the computer lost.
-    let run = listen(
-        home.path(),
-        &["--device", "null", "--taps", "1", "--seconds", "2"],
-    );
+    // By its short name and by its id from `tapwright devices`.
+    for device in ["null", "alsa:null"] {
+        let run = listen(
+            home.path(),
+            &["--device", device, "--taps", "1", "--seconds", "2"],
+        );
+        one_true_sentence_about_the_null_device(&run);
+    }
+}
+
+fn one_true_sentence_about_the_null_device(run: &alsa::Run) {
     assert_eq!(run.code, Some(2), "stderr:\n{}", run.stderr);
     assert!(!run.stderr.contains("were lost"), "{}", run.stderr);
+    // One sentence, the one thing that is true: no prompt to tap a
+    // microphone that is not one, no second message.
+    assert_eq!(run.stderr.trim_end().lines().count(), 1, "{}", run.stderr);
     assert!(
-        run.stderr.contains("faster than real time"),
+        run.stderr.contains("faster than real time")
+            && run.stderr.contains("not a live microphone")
+            && run.stderr.contains("no tap was heard"),
         "{}",
         run.stderr
     );
-    let last = run.stderr.lines().last().unwrap_or_default();
-    assert!(last.contains("no tap was heard"), "{last}");
+    assert!(!run.stderr.contains("tap the part"), "{}", run.stderr);
     assert!(run.stdout.is_empty(), "{}", run.stdout);
 }

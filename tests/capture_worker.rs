@@ -92,6 +92,7 @@ fn summary(events: &[CaptureEvent]) -> String {
             CaptureEvent::DeviceLost { message } => format!("lost: {message}"),
             CaptureEvent::Retrying { attempt, .. } => format!("retry {attempt}"),
             CaptureEvent::Status { message } => format!("status: {message}"),
+            CaptureEvent::NotLive { message } => format!("not live: {message}"),
             CaptureEvent::SourceEnded => "ended".to_owned(),
             CaptureEvent::Level(_) => String::new(),
         })

@@ -318,3 +318,83 @@ fn the_air_is_checked_even_when_only_the_coupled_correction_is_asked_for() {
     let output = air(&["--coupled", "100,200,180", "--temp-c", "22"]);
     assert_eq!(output.status.code(), Some(0), "{}", stderr(&output));
 }
+
+#[test]
+fn an_impossible_slot_width_names_the_option_given() {
+    let args = [
+        "--volume-l",
+        "2",
+        "--opening",
+        "slot:70x8",
+        "--target-hz",
+        "280",
+        "--solve",
+        "slot",
+        "--slot-width-mm",
+        "900",
+    ];
+    assert_refused(&args, "--slot-width-mm 900");
+    let err = stderr(&air(&args));
+    assert!(!err.contains("--opening"), "{err}");
+    assert!(err.contains("900 mm wide"), "{err}");
+}
+
+#[test]
+fn units_print_the_table_in_inches_and_fahrenheit_and_json_stays_si() {
+    let args = [
+        "--volume-l",
+        "2",
+        "--opening",
+        "slot:70x8",
+        "--opening",
+        "round:25.4",
+        "--thickness-mm",
+        "2.54",
+        "--temp-c",
+        "20",
+    ];
+    let metric = air(&args);
+    let mut imperial_args = args.to_vec();
+    imperial_args.extend(["--units", "imperial"]);
+    let imperial = air(&imperial_args);
+    assert!(imperial.status.success(), "{}", stderr(&imperial));
+    let (metric, imperial) = (stdout(&metric), stdout(&imperial));
+    // 20 °C = 68 °F; 2.54 mm = 0.1 in; 2 L = 122.047 in³; a round hole of
+    // 25.4 mm is 1 in; 70 × 8 mm = 2.756 × 0.315 in (1 in = 25.4 mm).
+    for expected in [
+        "68 °F",
+        "wall 0.1 in",
+        "122.047 in³",
+        "Ø 1 in",
+        "2.756 × 0.315 in",
+        "area in²",
+        "Hz per 0.1 in",
+        "Hz per °F",
+    ] {
+        assert!(imperial.contains(expected), "{expected} in\n{imperial}");
+    }
+    for expected in [
+        "20 °C",
+        "wall 2.54 mm",
+        "2 L",
+        "Ø 25.4 mm",
+        "70 × 8 mm",
+        "area cm²",
+        "Hz per mm",
+        "Hz per °C",
+    ] {
+        assert!(metric.contains(expected), "{expected} in\n{metric}");
+    }
+    // The same frequency either way.
+    let frequency = |text: &str| {
+        text.lines()
+            .find(|l| l.contains("Helmholtz frequency"))
+            .map(str::to_owned)
+            .unwrap_or_default()
+    };
+    assert_eq!(frequency(&metric), frequency(&imperial));
+    let v = json(&args);
+    let w = json(&imperial_args);
+    assert_eq!(v, w, "JSON is SI whatever --units says");
+    assert_eq!(w["wall_thickness_mm"], 2.54);
+}

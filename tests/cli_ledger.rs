@@ -272,3 +272,54 @@ fn a_build_file_with_a_byte_order_mark_is_shown() {
     assert_eq!(out.status.code(), Some(0), "{}", text(&out.stderr));
     assert!(text(&out.stdout).starts_with("Build: "));
 }
+
+#[test]
+fn the_report_in_imperial_units_reads_ounces_inches_and_fahrenheit() {
+    let metric = tapwright(&["ledger", "sample_sessions/violin_wren.ron"]);
+    let imperial = tapwright(&[
+        "ledger",
+        "sample_sessions/violin_wren.ron",
+        "--units",
+        "imperial",
+    ]);
+    assert!(imperial.status.success(), "{}", text(&imperial.stderr));
+    let (metric, imperial) = (text(&metric.stdout), text(&imperial.stdout));
+    let build = tapwright::ledger::store::load(std::path::Path::new(concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/sample_sessions/violin_wren.ron"
+    )))
+    .expect("sample loads");
+    let pass = build
+        .part("Top")
+        .and_then(|p| p.pass(7))
+        .expect("top pass 7");
+    // 1 oz = 28.349523125 g, 1 in = 25.4 mm exactly.
+    let ounces = format!("{:.3} oz", pass.mass_g / 28.349_523_125);
+    let grams = format!("{:.2} g", pass.mass_g);
+    let mean_mm = pass.mean_thickness_mm().expect("readings");
+    let inches = format!("mean thickness {:.3} in", mean_mm / 25.4);
+    assert!(
+        imperial.contains(&ounces) && !imperial.contains(&grams),
+        "{ounces} in\n{imperial}"
+    );
+    assert!(metric.contains(&grams), "{grams}");
+    assert!(imperial.contains(&inches), "{inches} in\n{imperial}");
+    assert!(
+        imperial.contains("remove ") && imperial.contains(" oz (range "),
+        "{imperial}"
+    );
+    if let Some(temp_c) = pass.air_temp_c {
+        let fahrenheit = format!("{:.1} °F", temp_c * 9.0 / 5.0 + 32.0);
+        assert!(imperial.contains(&fahrenheit), "{fahrenheit}");
+    }
+    // The CSV stays in grams and millimetres whatever is asked.
+    let csv = tapwright(&[
+        "ledger",
+        "--csv",
+        "--units",
+        "imperial",
+        "sample_sessions/violin_wren.ron",
+    ]);
+    let plain_csv = tapwright(&["ledger", "--csv", "sample_sessions/violin_wren.ron"]);
+    assert_eq!(csv.stdout, plain_csv.stdout);
+}

@@ -89,3 +89,40 @@ fn bad_values_give_one_sentence_and_exit_code_2() {
     assert_eq!(out.status.code(), Some(2));
     assert!(text(&out.stderr).contains("neither"));
 }
+
+#[test]
+fn units_change_the_bar_line_only_and_json_stays_si() {
+    let metric = stock(&SPRUCE);
+    let mut args = SPRUCE.to_vec();
+    args.extend(["--units", "imperial"]);
+    let imperial = stock(&args);
+    assert!(imperial.status.success(), "{}", text(&imperial.stderr));
+    let (metric, imperial) = (text(&metric.stdout), text(&imperial.stdout));
+    assert!(
+        metric.contains("300.0 × 25.0 × 10.0 mm, 33.75 g"),
+        "{metric}"
+    );
+    // 300 mm = 11.81 in, 25 mm = 0.98 in, 10 mm = 0.39 in, 33.75 g =
+    // 1.190 oz (1 in = 25.4 mm, 1 oz = 28.349523125 g).
+    assert!(
+        imperial.contains("11.81 × 0.98 × 0.39 in, 1.190 oz"),
+        "{imperial}"
+    );
+    // Density, modulus and speed stay SI, the same in both.
+    assert_eq!(
+        metric.lines().skip(1).collect::<Vec<_>>(),
+        imperial.lines().skip(1).collect::<Vec<_>>()
+    );
+    args.push("--json");
+    let json: serde_json::Value = serde_json::from_slice(&stock(&args).stdout).expect("valid JSON");
+    assert_eq!(json["length_mm"], 300.0);
+    assert_eq!(json["mass_g"], 33.75);
+    // A system that is neither is one sentence.
+    let mut bad = SPRUCE.to_vec();
+    bad.extend(["--units", "cubits"]);
+    let out = stock(&bad);
+    assert_eq!(out.status.code(), Some(2));
+    let err = text(&out.stderr);
+    assert_eq!(err.trim_end().lines().count(), 1, "{err}");
+    assert!(err.contains("--units") && err.contains("cubits"), "{err}");
+}

@@ -16,6 +16,7 @@ use tapwright::ledger::{
 };
 use tapwright::report::{build_report_html, ReportSettings};
 use tapwright::shapes::{tap_grid, Outline, OutlineShape};
+use tapwright::text::Units;
 
 const SAMPLES: [&str; 2] = [
     "sample_sessions/violin_wren.ron",
@@ -26,6 +27,7 @@ fn settings() -> ReportSettings {
     ReportSettings {
         a4_hz: 440.0,
         made: Timestamp::from_unix_seconds(1_718_000_000),
+        units: Units::metric(),
     }
 }
 
@@ -420,4 +422,67 @@ fn a_build_without_shape_maps_has_no_shape_section() {
     let document = parse_without_errors(&html);
     assert_eq!(document.select(&select("div.shape-pass")).count(), 0);
     assert!(!html.contains("Mode shapes"));
+}
+
+/// The violin sample's report in inches, ounces and °F: the pass heads,
+/// the overview, the forecasts and the charts' mass axis; the same build
+/// file (kept in mm and g) underneath. 1 oz = 28.349523125 g and 1 in =
+/// 25.4 mm exactly.
+#[test]
+fn the_report_in_imperial_units() {
+    let build = sample(SAMPLES[0]);
+    let imperial = ReportSettings {
+        units: Units::imperial(),
+        ..settings()
+    };
+    let html = build_report_html(&build, &imperial);
+    let document = parse_without_errors(&html);
+    let text: String = document.root_element().text().collect();
+    let top = build.part("Top").expect("a top");
+    let latest = top.latest_pass().expect("passes");
+    let ounces = format!("{:.3} oz", latest.mass_g / 28.349_523_125);
+    assert!(text.contains(&ounces), "{ounces}");
+    let mean_in = latest.mean_thickness_mm().expect("readings") / 25.4;
+    assert!(
+        text.contains(&format!("mean thickness {mean_in:.3} in")),
+        "{mean_in}"
+    );
+    for expected in [
+        "Outline (in)",
+        "Mass first → latest (oz)",
+        "Remove (oz)",
+        "Thickness (in)",
+    ] {
+        assert!(text.contains(expected), "missing {expected}");
+    }
+    assert!(html.contains("Mass (oz)"), "the charts' mass axis");
+    assert!(!html.contains("Mass (g)"));
+    let grams = format!("{:.2} g", latest.mass_g);
+    assert!(!text.contains(&grams), "no grams left: {grams}");
+    // The metric report of the same build keeps grams.
+    let metric: String = parse_without_errors(&build_report_html(&build, &settings()))
+        .root_element()
+        .text()
+        .collect();
+    assert!(metric.contains(&grams));
+}
+
+#[test]
+fn the_report_command_takes_units() {
+    let folder = tempfile::tempdir().expect("test value");
+    let out_path = folder.path().join("wren.html");
+    let out_text = out_path.to_str().expect("utf-8 path");
+    let out = tapwright(&["report", SAMPLES[0], "-o", out_text, "--units", "imperial"]);
+    assert!(
+        out.status.success(),
+        "{}",
+        String::from_utf8_lossy(&out.stderr)
+    );
+    let written = std::fs::read_to_string(&out_path).expect("report written");
+    assert!(written.contains("Mass first → latest (oz)"));
+    let refused = tapwright(&["report", SAMPLES[0], "-o", out_text, "--units", "cubits"]);
+    assert_eq!(refused.status.code(), Some(2));
+    let stderr = String::from_utf8_lossy(&refused.stderr);
+    assert_eq!(stderr.trim_end().lines().count(), 1, "{stderr}");
+    assert!(stderr.contains("--units"), "{stderr}");
 }

@@ -387,3 +387,189 @@ fn a_new_band_measures_the_taps_already_heard_again() {
         "{modes:?}"
     );
 }
+
+fn click(harness: &mut egui_kittest::Harness<'_, TapwrightApp>, label: &str) {
+    harness.get_by_label(label).click();
+    harness.run_ok();
+}
+
+/// The app started on an input device that cannot be opened, so it falls
+/// back to the demo recording (as it does without a sound card), in a
+/// window of `size` points.
+fn harness_without_a_microphone(size: egui::Vec2) -> egui_kittest::Harness<'static, TapwrightApp> {
+    let mut harness = egui_kittest::Harness::builder()
+        .with_size(size)
+        .build_ui_state(
+            |ui, app: &mut TapwrightApp| app.show(ui),
+            TapwrightApp::new(AppOptions {
+                source: StartSource::Device(Some("no such input device".into())),
+                demo_pacing: Pacing::AsFastAsPossible,
+                ..AppOptions::default()
+            }),
+        );
+    step_until(&mut harness, "the demo after the fallback", |app| {
+        app.input().pick == tapwright::ui::SourcePick::Demo
+            && app.input().state == SourceState::Ended
+            && !app.is_busy()
+    });
+    harness
+}
+
+/// Every "Leave out" button of the tap list lies inside the window.
+/// (The demo's fourth tap is a double strike and has no button.)
+fn leave_out_buttons_fit(harness: &egui_kittest::Harness<'_, TapwrightApp>, width: f32) {
+    for n in [1, 2, 3, 5, 6] {
+        let rect = harness.get_by_label(&format!("Leave tap {n} out")).rect();
+        assert!(
+            rect.max.x <= width && rect.min.x >= 0.0,
+            "Leave tap {n} out at {rect:?} in a window {width} wide"
+        );
+    }
+}
+
+#[test]
+fn without_a_microphone_the_status_line_is_one_short_line_that_fits() {
+    let mut harness = harness_without_a_microphone(egui::vec2(1280.0, 800.0));
+    let status = harness.state().status().expect("a status").clone();
+    assert_eq!(
+        status.text,
+        "No microphone could be opened, so the bundled demo recording plays instead."
+    );
+    let reason = status.detail.clone().expect("the reason behind it");
+    assert!(reason.contains("no such input device"), "{reason}");
+    // The sentence and the standing pointer to the cautions sit side by
+    // side in the window, neither under the other.
+    let message = harness.get_by_label(&status.text).rect();
+    let caution = harness
+        .get_by_label_contains("see Help for the cautions")
+        .rect();
+    assert!(
+        message.max.x <= caution.min.x,
+        "{message:?} runs under {caution:?}"
+    );
+    assert!(caution.max.x <= 1280.0, "{caution:?}");
+    assert!(
+        (message.center().y - caution.center().y).abs() < 4.0,
+        "one line"
+    );
+    // Help has the reason in full.
+    click(&mut harness, "Help");
+    harness.get_by_label_contains(&reason);
+    // The tap list fits beside the mode list.
+    click(&mut harness, "Help");
+    leave_out_buttons_fit(&harness, 1280.0);
+}
+
+#[test]
+fn a_long_message_is_cut_to_the_room_there_is_and_whole_on_hover() {
+    let mut harness = demo_harness();
+    demo_finished(&mut harness);
+    let long = format!(
+        "Opened /a/very/long/folder/{}/take.wav: 6 taps, 5 kept.",
+        "deeper/".repeat(30)
+    );
+    harness
+        .state_mut()
+        .queue(AppCommand::ShowMessage(long.clone()));
+    harness.run_ok();
+    let message = harness.get_by_label(&long).rect();
+    let caution = harness
+        .get_by_label_contains("see Help for the cautions")
+        .rect();
+    assert!(
+        message.max.x <= caution.min.x,
+        "{message:?} against {caution:?}"
+    );
+    assert!(message.height() < 30.0, "one line: {message:?}");
+}
+
+#[test]
+fn the_tap_list_fits_a_small_window_too() {
+    let harness = harness_without_a_microphone(egui::vec2(960.0, 640.0));
+    leave_out_buttons_fit(&harness, 960.0);
+    let harness = harness_without_a_microphone(egui::vec2(1100.0, 700.0));
+    leave_out_buttons_fit(&harness, 1100.0);
+}
+
+/// The invented plate of the encoded fixtures (tests/data/encoded/README.md):
+/// two taps with modes at 168, 338, 486 and 712 Hz.
+fn encoded_plate(name: &str) -> std::path::PathBuf {
+    std::path::Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("tests/data/encoded")
+        .join(name)
+}
+
+fn shows_the_plate(harness: &mut egui_kittest::Harness<'_, TapwrightApp>, path: &std::path::Path) {
+    let expected = SourceState::File(path.to_path_buf());
+    step_until(harness, "the opened recording", |app| {
+        app.input().state == expected && !app.is_busy()
+    });
+    let app = harness.state();
+    assert_eq!(app.session().taps().len(), 2);
+    for truth_hz in [168.0, 338.0, 486.0, 712.0] {
+        let (_, found) = mode_near(app, truth_hz).unwrap_or_else(|| panic!("{truth_hz} Hz"));
+        harness.get_by_label(&format!("{found:.1} Hz"));
+    }
+    harness.get_by_label("2 taps averaged");
+}
+
+#[test]
+fn a_flac_recording_opened_by_typed_path_shows_its_taps() {
+    let path = encoded_plate("plate.flac");
+    let mut harness = demo_harness();
+    harness.run_ok();
+    harness
+        .get_by_label("Or drop a recording on the window (WAV, FLAC, MP3, M4A, AIFF, CAF, Ogg).");
+    let field = harness.get_by_label("Path");
+    field.focus();
+    field.type_text(&path.display().to_string());
+    harness.run_ok();
+    harness.get_by_label("Open").click();
+    shows_the_plate(&mut harness, &path);
+}
+
+/// A file as the windowing system hands it over when dropped.
+#[derive(Debug)]
+struct DroppedFile(std::path::PathBuf);
+
+impl egui::DroppedFile for DroppedFile {
+    fn path(&self) -> &std::path::Path {
+        &self.0
+    }
+
+    fn bytes(&self) -> Result<Vec<u8>, String> {
+        std::fs::read(&self.0).map_err(|e| e.to_string())
+    }
+}
+
+#[test]
+fn a_phone_recording_dropped_on_the_window_shows_its_taps_and_a_text_file_is_named() {
+    // Apple Lossless in M4A, as an iPhone's voice memo in lossless mode
+    // writes it, with an upper-case ending.
+    let folder = tempfile::tempdir().unwrap();
+    let path = folder.path().join("PLATE.M4A");
+    std::fs::copy(encoded_plate("plate_alac.m4a"), &path).unwrap();
+    let mut harness = demo_harness();
+    harness.run_ok();
+    harness
+        .input_mut()
+        .dropped_files
+        .push(std::sync::Arc::new(DroppedFile(path.clone())));
+    harness.run_ok();
+    shows_the_plate(&mut harness, &path);
+
+    let notes = folder.path().join("notes.txt");
+    std::fs::write(&notes, "not sound").unwrap();
+    harness
+        .input_mut()
+        .dropped_files
+        .push(std::sync::Arc::new(DroppedFile(notes)));
+    harness.run_ok();
+    let status = harness.state().status().expect("a status").clone();
+    assert!(
+        status.is_error && status.text.contains("notes.txt"),
+        "{}",
+        status.text
+    );
+    assert!(status.text.contains(".flac"), "{}", status.text);
+}

@@ -139,6 +139,27 @@ impl Opening {
         }
     }
 
+    /// True for a round hole (its one size is a diameter).
+    pub fn is_round(&self) -> bool {
+        matches!(self, Opening::Round { .. })
+    }
+
+    /// Its sizes, mm: the diameter of a round hole; the length and the
+    /// (mean) width of an oval or a slot.
+    pub fn sizes_mm(&self) -> Vec<f64> {
+        match *self {
+            Opening::Round { diameter_mm } => vec![diameter_mm],
+            Opening::Oval {
+                length_mm,
+                width_mm,
+            } => vec![length_mm, width_mm],
+            Opening::Slot {
+                length_mm,
+                mean_width_mm,
+            } => vec![length_mm, mean_width_mm],
+        }
+    }
+
     /// Size as a maker writes it: "Ø 86 mm", "90 × 60 mm" (at most two
     /// decimals).
     pub fn size_text(&self) -> String {

@@ -10,7 +10,7 @@
 use anyhow::{anyhow, bail, Result};
 use serde_json::{json, Map, Value};
 
-use super::values::parse_number;
+use super::values::{parse_number, parse_units};
 use crate::acoustics::{
     compare_with_measured, coupled_correction, estimate_cavity, solve_round_diameter_mm,
     solve_slot_length_mm, solve_volume_m3, AcousticsError, AirCheck, AirConditions, CavityEstimate,
@@ -18,6 +18,8 @@ use crate::acoustics::{
     M3_PER_IN3, M3_PER_LITRE,
 };
 use crate::analysis::pitch::nearest_note;
+use crate::text::units::{field_text, Unit};
+use crate::text::{num, Units};
 
 /// Arguments of `tapwright air`. The option set is large, so it is boxed to
 /// keep the subcommand enum small.
@@ -96,9 +98,15 @@ pub struct AirOptions {
         allow_hyphen_values = true
     )]
     pub a4: String,
-    /// Print machine-readable JSON instead of a table.
+    /// Print machine-readable JSON instead of a table (always SI: mm, L,
+    /// °C, whatever --units says).
     #[arg(long)]
     pub json: bool,
+    /// Units of the printed table: metric (mm, cm², L, °C) or imperial (in,
+    /// in², in³, °F). Options are always given in the units their names
+    /// say (--thickness-mm, --temp-c …).
+    #[arg(long, value_name = "SYSTEM", default_value = "metric", value_parser = parse_units)]
+    pub units: Units,
     /// Target Helmholtz frequency for --solve, Hz.
     #[arg(long, value_name = "HZ", allow_hyphen_values = true)]
     pub target_hz: Option<String>,
@@ -131,13 +139,15 @@ enum SolveFor {
     Volume,
 }
 
-/// A solved size, for the report.
+/// A solved size, for the report: `value` in `unit` (mm or L).
 #[derive(Clone, Debug)]
 struct Solved {
     target_hz: f64,
     what: &'static str,
     value: f64,
     unit: &'static str,
+    /// The solved value in stored units (mm, or m³ for a volume).
+    stored: f64,
 }
 
 /// Everything the report shows; each part is present only when asked for.
@@ -159,7 +169,7 @@ pub fn run(args: &AirArgs) -> Result<()> {
         text.push('\n');
         text
     } else {
-        report_text(&report)
+        report_text(&report, args.units)
     };
     super::output::write_stdout(&text)
 }
@@ -264,7 +274,7 @@ fn solve_geometry(
         }
         return Ok((geometry, None));
     };
-    let explain_solve = |e: AcousticsError| explain(e, args);
+    let explain_solve = |e: AcousticsError| explain_solve_error(e, solve_for, args);
     let solved = match solve_for {
         SolveFor::RoundDiameter => {
             let diameter_mm =
@@ -275,6 +285,7 @@ fn solve_geometry(
                 what: "round hole diameter",
                 value: diameter_mm,
                 unit: "mm",
+                stored: diameter_mm,
             }
         }
         SolveFor::SlotLength { mean_width_mm } => {
@@ -289,6 +300,7 @@ fn solve_geometry(
                 what: "slot length",
                 value: length_mm,
                 unit: "mm",
+                stored: length_mm,
             }
         }
         SolveFor::Volume => {
@@ -304,6 +316,7 @@ fn solve_geometry(
                 what: "volume",
                 value: volume_m3 / M3_PER_LITRE,
                 unit: "L",
+                stored: volume_m3,
             }
         }
     };
@@ -441,6 +454,36 @@ fn parse_coupled(text: &str) -> Result<(f64, f64, f64)> {
 /// Prefixes a library error with the option it came from.
 fn at_option(option: &str, error: AcousticsError) -> anyhow::Error {
     anyhow!("{option}: {error}")
+}
+
+/// Names the option behind an error of the solve. The openings given were
+/// checked before the solve began, so openings that no longer fit the body
+/// are the solved slot's doing: its width, the option the maker typed.
+fn explain_solve_error(
+    error: AcousticsError,
+    solve_for: SolveFor,
+    args: &AirOptions,
+) -> anyhow::Error {
+    match (&error, solve_for) {
+        (
+            AcousticsError::OpeningsTooLarge {
+                total_area_cm2,
+                limit_cm2,
+                volume_l,
+            },
+            SolveFor::SlotLength { mean_width_mm },
+        ) => {
+            let typed = args.slot_width_mm.as_deref().unwrap_or_default().trim();
+            anyhow!(
+                "--slot-width-mm {typed}: a slot {} mm wide does not fit this body: even as short as it is wide it brings the openings' total area to {} cm², more than the {} cm² a {} L body can hold; give a narrower slot",
+                crate::text::number_text(mean_width_mm),
+                num(*total_area_cm2, 1),
+                num(*limit_cm2, 1),
+                crate::text::number_text(*volume_l)
+            )
+        }
+        _ => explain(error, args),
+    }
 }
 
 /// Names the option behind a library error from the cavity model.
@@ -581,18 +624,17 @@ fn opening_sizes(opening: &Opening) -> Vec<(&'static str, f64)> {
     }
 }
 
-fn report_text(report: &AirReport) -> String {
+fn report_text(report: &AirReport, units: Units) -> String {
     let mut lines: Vec<String> = Vec::new();
     if let (Some(geometry), Some(estimate)) = (&report.geometry, &report.estimate) {
-        lines.extend(estimate_lines(geometry, estimate, report.a4_hz));
+        lines.extend(estimate_lines(geometry, estimate, report.a4_hz, units));
     }
     if let Some(solved) = &report.solved {
         lines.push(String::new());
         lines.push(format!(
-            "Solved: {} {:.3} {} gives {:.2} Hz (target {} Hz)",
+            "Solved: {} {} gives {:.2} Hz (target {} Hz)",
             solved.what,
-            solved.value,
-            solved.unit,
+            solved_text(solved, units),
             report
                 .estimate
                 .as_ref()
@@ -635,17 +677,52 @@ fn report_text(report: &AirReport) -> String {
     text
 }
 
-fn estimate_lines(geometry: &CavityGeometry, estimate: &CavityEstimate, a4_hz: f64) -> Vec<String> {
+/// "82.345 mm", "3.242 in", "2.1 L", "128 in³": a solved size in `units`.
+fn solved_text(solved: &Solved, units: Units) -> String {
+    if solved.unit == "L" {
+        let volume = units.volume;
+        format!(
+            "{} {}",
+            num(volume.from_m3(solved.stored), volume.decimals() + 1),
+            volume.symbol()
+        )
+    } else {
+        let length = units.length;
+        format!(
+            "{} {}",
+            num(length.from_mm(solved.stored), 3),
+            length.symbol()
+        )
+    }
+}
+
+/// A stored value as typed in `unit`, with the unit: "20 °C", "2.5 mm".
+fn with_unit<U: Unit>(unit: U, stored: f64) -> String {
+    format!("{} {}", field_text(unit, stored), unit.symbol())
+}
+
+fn estimate_lines(
+    geometry: &CavityGeometry,
+    estimate: &CavityEstimate,
+    a4_hz: f64,
+    units: Units,
+) -> Vec<String> {
     let air = &geometry.air;
+    let temperature = with_unit(units.temperature, air.temp_c);
     let air_text = match geometry.sound_model {
         SpeedOfSoundModel::Cramer => format!(
-            "{} °C, {} % RH, {} kPa",
-            air.temp_c,
+            "{temperature}, {} % RH, {} kPa",
             air.relative_humidity_pct,
             air.pressure_pa / 1e3
         ),
-        SpeedOfSoundModel::Iso9613 => format!("{} °C", air.temp_c),
+        SpeedOfSoundModel::Iso9613 => temperature,
     };
+    let length = units.length;
+    let (step_mm, step_name) = length.slope_step();
+    // Areas, conductances and slopes to 0.01 in mm, 0.001 in inches.
+    let decimals = length.thickness_decimals();
+    let area_unit = length.area_symbol();
+    let area = |m2: f64| num(length.area_from_m2(m2), length.area_decimals());
     let mut lines = vec![
         "Cavity estimate (rigid walls)".to_string(),
         format!(
@@ -654,15 +731,20 @@ fn estimate_lines(geometry: &CavityGeometry, estimate: &CavityEstimate, a4_hz: f
             geometry.sound_model.name()
         ),
         format!(
-            "  body     {} L, wall {} mm at the openings, {} end correction",
-            (geometry.volume_l() * 1e4).round() / 1e4,
-            geometry.wall_thickness_mm,
+            "  body     {}, wall {} at the openings, {} end correction",
+            with_unit(units.volume, geometry.volume_m3),
+            with_unit(length, geometry.wall_thickness_mm),
             geometry.end_correction.name()
         ),
         String::new(),
         format!(
-            "  {:<3} {:<6} {:<18} {:>9} {:>15} {:>10}",
-            "#", "kind", "size", "area cm²", "conductance mm", "Hz per mm"
+            "  {:<3} {:<6} {:<18} {:>9} {:>16} {:>15}",
+            "#",
+            "kind",
+            "size",
+            format!("area {area_unit}"),
+            format!("conductance {}", length.symbol()),
+            format!("Hz per {step_name}")
         ),
     ];
     for (index, (opening, hz_per_mm)) in estimate
@@ -671,23 +753,24 @@ fn estimate_lines(geometry: &CavityGeometry, estimate: &CavityEstimate, a4_hz: f
         .zip(&estimate.sensitivities.hz_per_mm_of_opening)
         .enumerate()
     {
+        let size = length.opening_text(opening.opening.is_round(), &opening.opening.sizes_mm());
         lines.push(format!(
-            "  {:<3} {:<6} {:<18} {:>9.2} {:>15.2} {:>10.3}",
+            "  {:<3} {:<6} {:<18} {:>9} {:>16} {:>15.3}",
             index + 1,
             opening.opening.kind(),
-            opening.opening.size_text(),
-            opening.area_m2 * 1e4,
-            opening.conductance_m * 1e3,
-            hz_per_mm
+            size,
+            area(opening.area_m2),
+            num(length.from_mm(opening.conductance_m * 1e3), decimals),
+            hz_per_mm * step_mm
         ));
     }
     lines.push(format!(
-        "  {:<3} {:<6} {:<18} {:>9.2} {:>15.2}",
+        "  {:<3} {:<6} {:<18} {:>9} {:>16}",
         "",
         "total",
         "",
-        geometry.total_area_m2() * 1e4,
-        estimate.conductance_m * 1e3
+        area(geometry.total_area_m2()),
+        num(length.from_mm(estimate.conductance_m * 1e3), decimals)
     ));
     lines.push(String::new());
     let note = match nearest_note(estimate.helmholtz_hz, a4_hz) {
@@ -699,9 +782,13 @@ fn estimate_lines(geometry: &CavityGeometry, estimate: &CavityEstimate, a4_hz: f
         estimate.helmholtz_hz
     ));
     let s = &estimate.sensitivities;
+    let (volume_step_l, volume_step) = units.volume.slope_step();
     lines.push(format!(
-        "  sensitivity          {:+.2} Hz per litre, {:+.3} Hz per °C, {:+.2} Hz per mm of wall thickness",
-        s.hz_per_litre, s.hz_per_degree_c, s.hz_per_mm_of_thickness
+        "  sensitivity          {:+.2} Hz per {volume_step}, {:+.3} Hz per {}, {:+.2} Hz per {step_name} of wall thickness",
+        s.hz_per_litre * volume_step_l,
+        units.temperature.per_degree(s.hz_per_degree_c),
+        units.temperature.symbol(),
+        s.hz_per_mm_of_thickness * step_mm
     ));
     let orifice_limit = matches!(
         geometry.end_correction,

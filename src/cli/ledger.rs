@@ -5,17 +5,23 @@
 use std::path::PathBuf;
 
 use super::output::write_stdout;
+use super::values::parse_units;
 use crate::ledger::{csv, store, Build, Forecast, FrequencyChange, Part, Pass, PassChange};
-use crate::text::forecast;
+use crate::text::{forecast, num, signed, Units};
 
 /// Arguments of `tapwright ledger`.
 #[derive(Debug, clap::Args)]
 pub struct LedgerArgs {
     /// The build file (RON) to show.
     pub file: PathBuf,
-    /// Write the pass table as CSV to standard output instead of the report.
+    /// Write the pass table as CSV to standard output instead of the report
+    /// (always in mm, g and °C).
     #[arg(long)]
     pub csv: bool,
+    /// Units of the report: metric (mm, g, °C) or imperial (in, oz, °F).
+    /// The build file and the CSV keep mm, g and °C whatever is chosen.
+    #[arg(long, value_name = "SYSTEM", default_value = "metric", value_parser = parse_units)]
+    pub units: Units,
 }
 
 /// Loads the build and prints the report (or the CSV table).
@@ -24,13 +30,13 @@ pub fn run(args: &LedgerArgs) -> anyhow::Result<()> {
     let text = if args.csv {
         csv::pass_table(&build)
     } else {
-        report(&build)
+        report(&build, args.units)
     };
     write_stdout(&text)
 }
 
-/// The text report of a build.
-pub fn report(build: &Build) -> String {
+/// The text report of a build, lengths, masses and temperatures in `units`.
+pub fn report(build: &Build, units: Units) -> String {
     let mut out = String::new();
     out.push_str(&format!(
         "Build: {} ({}, created {})\n",
@@ -46,18 +52,21 @@ pub fn report(build: &Build) -> String {
     }
     for part in build.parts() {
         out.push('\n');
-        part_report(&mut out, part);
+        part_report(&mut out, part, units);
     }
     out
 }
 
-fn part_report(out: &mut String, part: &Part) {
+fn part_report(out: &mut String, part: &Part, units: Units) {
     let mut about = vec![part.kind().describe().to_string()];
     if let Some(species) = &part.wood_species {
         about.push(species.clone());
     }
     if let (Some(length), Some(width)) = (part.outline_length_mm, part.outline_width_mm) {
-        about.push(format!("outline {length:.0} × {width:.0} mm"));
+        about.push(format!(
+            "outline {}",
+            units.length.outline_text(length, width)
+        ));
     }
     out.push_str(&format!("{} ({})\n", part.name(), about.join("; ")));
     out.push_str(&format!("  labels: {}\n", part.labels().join(", ")));
@@ -71,7 +80,7 @@ fn part_report(out: &mut String, part: &Part) {
         .max()
         .unwrap_or(0);
     for (pass, changes) in part.passes().iter().zip(part.all_changes()) {
-        pass_report(out, pass, &changes, label_width);
+        pass_report(out, pass, &changes, label_width, units);
     }
     let forecasts = part.forecasts();
     if !part.targets().is_empty() {
@@ -79,7 +88,7 @@ fn part_report(out: &mut String, part: &Part) {
     }
     for (label, target_hz) in part.targets() {
         match forecasts.iter().find(|f| &f.label == label) {
-            Some(forecast) => forecast_report(out, forecast),
+            Some(forecast) => forecast_report(out, forecast, units),
             None => out.push_str(&format!(
                 "    {label} → {target_hz:.2} Hz: no pass has this label yet\n"
             )),
@@ -87,22 +96,32 @@ fn part_report(out: &mut String, part: &Part) {
     }
 }
 
-fn pass_report(out: &mut String, pass: &Pass, changes: &[PassChange], label_width: usize) {
+fn pass_report(
+    out: &mut String,
+    pass: &Pass,
+    changes: &[PassChange],
+    label_width: usize,
+    units: Units,
+) {
     let mut line = format!(
-        "  Pass {}  {}  {:.2} g",
+        "  Pass {}  {}  {}",
         pass.number(),
         pass.time,
-        pass.mass_g
+        plain_minus(units.mass.text(pass.mass_g))
     );
     if let Some(mean) = pass.mean_thickness_mm() {
         let count = pass.thickness.len();
         let readings = if count == 1 { "reading" } else { "readings" };
         line.push_str(&format!(
-            "  mean thickness {mean:.2} mm ({count} {readings})"
+            "  mean thickness {} ({count} {readings})",
+            units.length.thickness_text(mean)
         ));
     }
     if let Some(temp_c) = pass.air_temp_c {
-        line.push_str(&format!("  {temp_c:.1} °C"));
+        line.push_str(&format!(
+            "  {}",
+            plain_minus(units.temperature.text(temp_c))
+        ));
     }
     if let Some(rh) = pass.relative_humidity_pct {
         line.push_str(&format!("  {rh:.0} % RH"));
@@ -162,16 +181,38 @@ fn change_text(change: &FrequencyChange) -> String {
     )
 }
 
-fn forecast_report(out: &mut String, f: &Forecast) {
+fn forecast_report(out: &mut String, f: &Forecast, units: Units) {
     let (low, high) = f.mass_to_remove_range_g;
+    let mass = units.mass;
+    let estimate = |g: f64| plain_minus(num(mass.from_g(g), mass.estimate_decimals()));
     out.push_str(&format!(
-        "    {} → {:.2} Hz: now {:.2} Hz at {:.2} g (pass {}); remove {:.1} g (range {:.1} to {:.1} g) to reach {:.1} g\n",
-        f.label, f.target_hz, f.now_hz, f.now_mass_g, f.from_pass, f.mass_to_remove_g, low, high, f.target_mass_g
+        "    {} → {:.2} Hz: now {:.2} Hz at {} (pass {}); remove {} {} (range {} to {} {}) to reach {} {}\n",
+        f.label,
+        f.target_hz,
+        f.now_hz,
+        plain_minus(mass.text(f.now_mass_g)),
+        f.from_pass,
+        estimate(f.mass_to_remove_g),
+        mass.symbol(),
+        estimate(low),
+        estimate(high),
+        mass.symbol(),
+        estimate(f.target_mass_g),
+        mass.symbol()
     ));
     if let Some(t) = &f.thickness {
+        let length = units.length;
+        let decimals = length.thickness_decimals();
+        let value = |mm: f64| plain_minus(num(length.from_mm(mm), decimals));
+        let change = |mm: f64| plain_minus(signed(length.from_mm(mm), decimals));
         out.push_str(&format!(
-            "      mean thickness {:.2} → {:.2} mm ({:+.2} mm, range {:+.2} to {:+.2} mm)\n",
-            t.mean_now_mm, t.mean_target_mm, t.change_mm, t.change_range_mm.0, t.change_range_mm.1
+            "      mean thickness {} → {} {unit} ({} {unit}, range {} to {} {unit})\n",
+            value(t.mean_now_mm),
+            value(t.mean_target_mm),
+            change(t.change_mm),
+            change(t.change_range_mm.0),
+            change(t.change_range_mm.1),
+            unit = length.symbol()
         ));
     }
     out.push_str(&format!(
@@ -181,9 +222,15 @@ fn forecast_report(out: &mut String, f: &Forecast) {
     for warning in &f.warnings {
         out.push_str(&format!(
             "      warning: {}\n",
-            forecast::warning_text(warning)
+            forecast::warning_text(warning, units.mass)
         ));
     }
+}
+
+/// The report keeps the ASCII minus of its other numbers (it is read by
+/// scripts too).
+fn plain_minus(text: String) -> String {
+    text.replace('\u{2212}', "-")
 }
 
 fn one_line(text: &str) -> String {

@@ -18,6 +18,12 @@ use crate::wav_io::write_mono;
 /// Longest wait for one event before the deadline is checked again.
 const EVENT_WAIT: Duration = Duration::from_millis(100);
 
+/// How long a new source is watched before "tap the part" is printed. A
+/// source that delivers faster than real time overfills the capture ring
+/// well within this (ALSA's `null` device gives 40 s of sound in a few
+/// milliseconds), and to such a source the prompt would not be true.
+const LIVE_CHECK: Duration = Duration::from_millis(300);
+
 #[derive(Debug, clap::Args)]
 pub struct ListenArgs {
     /// Input device: a name or id from `tapwright devices` (default: the system default).
@@ -52,11 +58,49 @@ fn parse_seconds(text: &str) -> Result<f64, String> {
 }
 
 /// What `listen` has collected so far: every tap heard (records dropped
-/// once saved), and the samples lost.
+/// once saved), the samples lost, and whether the source was found to be
+/// no live microphone.
 #[derive(Default)]
 struct Collected {
     taps: Vec<Tap>,
     dropped_samples: u64,
+    /// The sentence saying the source is not live, if it is not.
+    not_live: Option<String>,
+}
+
+/// The lines on standard error that tell the maker what is going on, each
+/// said once and only when it is true.
+struct Progress<'a> {
+    /// "Listening on …: tap the part; …", until printed.
+    prompt: Option<String>,
+    started: Instant,
+    /// True once the not-live sentence was printed.
+    not_live_told: bool,
+    args: &'a ListenArgs,
+}
+
+impl Progress<'_> {
+    /// Prints the prompt once the source has run for [`LIVE_CHECK`] as a
+    /// live one, or at the first tap.
+    fn prompt_if_due(&mut self, collected: &Collected, tap_arrived: bool) {
+        let due = tap_arrived || self.started.elapsed() >= LIVE_CHECK;
+        if due && collected.not_live.is_none() {
+            if let Some(prompt) = self.prompt.take() {
+                note(&prompt);
+            }
+        }
+    }
+
+    /// Before the first tap from a source that is not live, says so (its
+    /// taps are real, but what did not fit the buffer was skipped).
+    fn not_live_before_a_tap(&mut self, collected: &Collected) {
+        if let (Some(message), false) = (&collected.not_live, self.not_live_told) {
+            note(&format!(
+                "tapwright: {message}; what did not fit the buffer was skipped."
+            ));
+            self.not_live_told = true;
+        }
+    }
 }
 
 impl Collected {
@@ -94,11 +138,11 @@ pub fn run(args: &ListenArgs) -> anyhow::Result<()> {
         std::fs::create_dir_all(dir)
             .with_context(|| format!("creating the folder {}", dir.display()))?;
     }
-    note(&format!(
+    let prompt = format!(
         "Listening on {source}: tap the part; stopping after {} accepted taps or {} s.",
         args.taps, args.seconds
-    ));
-    let collected = collect_taps(&mut handle, args)?;
+    );
+    let collected = collect_taps(&mut handle, args, prompt)?;
     handle.stop();
     if collected.dropped_samples > 0 {
         note(&format!(
@@ -121,11 +165,23 @@ fn listen_settings(args: &ListenArgs) -> anyhow::Result<CaptureSettings> {
     })
 }
 
-/// Takes events until enough taps are accepted, time is up, or the source ends.
-fn collect_taps(handle: &mut CaptureHandle, args: &ListenArgs) -> anyhow::Result<Collected> {
+/// Takes events until enough taps are accepted, time is up, or the source
+/// ends; prints `prompt` once the source proves live.
+fn collect_taps(
+    handle: &mut CaptureHandle,
+    args: &ListenArgs,
+    prompt: String,
+) -> anyhow::Result<Collected> {
     let deadline = Instant::now() + Duration::from_secs_f64(args.seconds);
     let mut collected = Collected::default();
+    let mut progress = Progress {
+        prompt: Some(prompt),
+        started: Instant::now(),
+        not_live_told: false,
+        args,
+    };
     while collected.accepted() < args.taps as usize {
+        progress.prompt_if_due(&collected, false);
         let now = Instant::now();
         if now >= deadline {
             break;
@@ -137,7 +193,9 @@ fn collect_taps(handle: &mut CaptureHandle, args: &ListenArgs) -> anyhow::Result
         };
         match event {
             CaptureEvent::Tap(mut tap) => {
-                save_tap(args.save_wav.as_deref(), &tap)?;
+                progress.prompt_if_due(&collected, true);
+                progress.not_live_before_a_tap(&collected);
+                save_tap(progress.args.save_wav.as_deref(), &tap)?;
                 match (&tap.analysis, tap.rejected) {
                     (_, Some(reason)) => note(&format!(
                         "tap {}: rejected, {reason} ({})",
@@ -166,6 +224,7 @@ fn collect_taps(handle: &mut CaptureHandle, args: &ListenArgs) -> anyhow::Result
                 delay_ms as f64 / 1000.0
             )),
             CaptureEvent::Status { message } => note(&format!("tapwright: {message}.")),
+            CaptureEvent::NotLive { message } => collected.not_live = Some(message),
             CaptureEvent::SourceEnded => break,
             CaptureEvent::SourceStarted { .. }
             | CaptureEvent::Level(_)
@@ -192,6 +251,13 @@ fn print_report(
     collected: &Collected,
 ) -> anyhow::Result<()> {
     if collected.taps.is_empty() {
+        if let Some(not_live) = &collected.not_live {
+            // The one thing that is true: it is no microphone, and it
+            // gave nothing to hear.
+            bail!(
+                "{not_live}, and no tap was heard from it; choose a microphone with --device (see tapwright devices)"
+            );
+        }
         bail!(
             "no tap was heard from {source} in {} s: nothing rose {} dB above the background",
             args.seconds,

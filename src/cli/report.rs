@@ -3,8 +3,10 @@
 
 use std::path::PathBuf;
 
+use super::values::parse_units;
 use crate::ledger::store;
 use crate::report::{build_report_html, write_report, ReportSettings};
+use crate::text::Units;
 
 /// Arguments of `tapwright report`.
 #[derive(Debug, clap::Args)]
@@ -17,6 +19,10 @@ pub struct ReportArgs {
     /// Reference pitch for note names and cents, Hz.
     #[arg(long, default_value_t = 440.0, value_name = "HZ")]
     pub a4: f64,
+    /// Units of the report: metric (mm, g, °C, L) or imperial (in, oz, °F,
+    /// in³). The build file keeps mm, g and °C whatever is chosen.
+    #[arg(long, value_name = "SYSTEM", default_value = "metric", value_parser = parse_units)]
+    pub units: Units,
 }
 
 /// Loads the build, makes the report and writes it.
@@ -33,6 +39,7 @@ pub fn run(args: &ReportArgs) -> anyhow::Result<()> {
     let build = store::load(&args.file)?;
     let settings = ReportSettings {
         a4_hz: args.a4,
+        units: args.units,
         ..ReportSettings::default()
     };
     let html = build_report_html(&build, &settings);

@@ -9,7 +9,8 @@ use anyhow::{anyhow, Result};
 use serde_json::{json, Value};
 
 use super::output::write_stdout;
-use super::values::{parse_number, parse_optional};
+use super::values::{parse_number, parse_optional, parse_units};
+use crate::text::Units;
 
 use crate::acoustics::stock::{bar_figures, BarFigures, BarSample, StockError, WOOD_POISSON_RATIO};
 
@@ -41,9 +42,14 @@ pub struct StockArgs {
     /// First longitudinal frequency, Hz (hold at the middle, tap an end).
     #[arg(long, value_name = "HZ", allow_hyphen_values = true)]
     pub longitudinal_hz: Option<String>,
-    /// Print one JSON object instead of the table.
+    /// Print one JSON object instead of the table (always SI: mm, g).
     #[arg(long)]
     pub json: bool,
+    /// Units of the bar's sizes and mass in the table: metric (mm, g) or
+    /// imperial (in, oz). The options are always mm and g; density,
+    /// modulus and speed of sound stay SI.
+    #[arg(long, value_name = "SYSTEM", default_value = "metric", value_parser = parse_units)]
+    pub units: Units,
 }
 
 /// Runs `tapwright stock`.
@@ -55,7 +61,7 @@ pub fn run(args: &StockArgs) -> Result<()> {
         text.push('\n');
         text
     } else {
-        report_text(&figures)
+        report_text(&bar, &figures, args.units)
     };
     write_stdout(&text)
 }
@@ -137,11 +143,14 @@ fn report_json(bar: &BarSample, figures: &BarFigures) -> Value {
     value
 }
 
-fn report_text(figures: &BarFigures) -> String {
-    let mut lines = vec![format!(
-        "density               {:>9.1} kg/m³",
-        figures.density_kg_m3
-    )];
+fn report_text(bar: &BarSample, figures: &BarFigures, units: Units) -> String {
+    let mut lines = vec![
+        format!(
+            "bar                   {}",
+            units.bar_text((bar.length_mm, bar.width_mm, bar.thickness_mm), bar.mass_g)
+        ),
+        format!("density               {:>9.1} kg/m³", figures.density_kg_m3),
+    ];
     if let Some(flexural) = &figures.flexural {
         lines.push(format!(
             "E, flexural           {:>9.3} GPa   ({}, T1 = {:.4} at Poisson's ratio {WOOD_POISSON_RATIO})",

@@ -3,7 +3,7 @@
 //! refused); each refusal names the option and, where there is one, the
 //! range.
 
-use crate::text::read_number;
+use crate::text::{read_number, Units};
 
 /// The number given to `option` ("--temp-c"), or one sentence naming it:
 /// "--temp-c \"abc\" is not a number".
@@ -48,6 +48,19 @@ pub fn parse_count(text: &str, range: std::ops::RangeInclusive<u32>) -> Result<u
         Ok(value) => Err(format!("{value} is outside {low} to {high}")),
         Err(_) => Err(format!(
             "'{text}' is not a whole number from {low} to {high}"
+        )),
+    }
+}
+
+/// `--units metric|imperial` (any case): how printed lengths, masses,
+/// temperatures and volumes read. Options keep their SI units and JSON and
+/// CSV stay SI whatever is chosen.
+pub fn parse_units(text: &str) -> Result<Units, String> {
+    match text.trim().to_ascii_lowercase().as_str() {
+        "metric" => Ok(Units::metric()),
+        "imperial" => Ok(Units::imperial()),
+        _ => Err(format!(
+            "'{text}' is not metric (mm, g, °C, L) or imperial (in, oz, °F, in³)"
         )),
     }
 }

@@ -12,6 +12,7 @@ use plotters::coord::Shift;
 use plotters::prelude::*;
 
 use crate::ledger::{Forecast, LabelPoint};
+use crate::text::MassUnit;
 
 /// Width and height of one mode's SVG, px (both panels). Scaled down to the
 /// page width by the style sheet.
@@ -46,6 +47,8 @@ pub struct ModeChart<'a> {
     pub forecast: Option<&'a Forecast>,
     /// The series colour.
     pub colour: RGBColor,
+    /// The unit of the mass axis.
+    pub mass_unit: MassUnit,
 }
 
 /// The SVG text of one mode's chart; the problem as a sentence if plotters
@@ -80,8 +83,9 @@ fn frequency_range_hz(chart: &ModeChart) -> (f64, f64) {
     (low, high)
 }
 
-/// The mass axis: every pass and the forecast's band, padded.
-fn mass_range_g(chart: &ModeChart) -> (f64, f64) {
+/// The mass axis in the chart's unit: every pass and the forecast's band,
+/// padded to at least 0.5 g.
+fn mass_range(chart: &ModeChart) -> (f64, f64) {
     let mut values: Vec<f64> = chart.history.iter().map(|p| p.mass_g).collect();
     if let Some(f) = usable_forecast(chart) {
         values.extend([
@@ -90,7 +94,9 @@ fn mass_range_g(chart: &ModeChart) -> (f64, f64) {
             f.target_mass_range_g.1,
         ]);
     }
-    padded_range(&values, 0.06, 0.5)
+    let unit = chart.mass_unit;
+    let values: Vec<f64> = values.into_iter().map(|g| unit.from_g(g)).collect();
+    padded_range(&values, 0.06, unit.from_g(0.5))
 }
 
 /// min..max of the finite `values`, widened by `fraction` of the span on
@@ -168,34 +174,37 @@ fn by_mass(
     chart: &ModeChart,
     hz: std::ops::Range<f64>,
 ) -> DrawResult {
-    let (low_g, high_g) = mass_range_g(chart);
+    let unit = chart.mass_unit;
+    let (low, high) = mass_range(chart);
+    let x_title = format!("Mass ({})", unit.symbol());
+    let decimals = unit.estimate_decimals();
     let mut plot = ChartBuilder::on(area)
         .caption(format!("{} by mass", chart.label), (FONT, 17))
         .margin(10)
         .x_label_area_size(36)
         .y_label_area_size(56)
-        .build_cartesian_2d(low_g..high_g, hz.clone())?;
+        .build_cartesian_2d(low..high, hz.clone())?;
     plot.configure_mesh()
         .light_line_style(WHITE)
         .bold_line_style(GRID)
         .x_labels(6)
-        .x_label_formatter(&|g| format!("{g:.1}"))
+        .x_label_formatter(&|m| format!("{m:.decimals$}"))
         .y_label_formatter(&|y| format!("{y:.0}"))
-        .x_desc("Mass (g)")
+        .x_desc(x_title)
         .y_desc("Frequency (Hz)")
         .label_style((FONT, 13))
         .draw()?;
     let points: Vec<(f64, f64)> = chart
         .history
         .iter()
-        .map(|p| (p.mass_g, p.frequency_hz))
+        .map(|p| (unit.from_g(p.mass_g), p.frequency_hz))
         .collect();
     draw_track(&mut plot, &points, chart.colour)?;
     if let Some(target_hz) = chart.target_hz {
-        draw_target(&mut plot, low_g..high_g, target_hz)?;
+        draw_target(&mut plot, low..high, target_hz)?;
     }
     if let Some(f) = usable_forecast(chart) {
-        draw_forecast(&mut plot, f, chart.colour)?;
+        draw_forecast(&mut plot, f, chart.colour, unit)?;
     }
     Ok(())
 }
@@ -228,23 +237,32 @@ where
     Ok(())
 }
 
-fn draw_forecast<X>(plot: &mut Plot<'_, '_, X>, f: &Forecast, colour: RGBColor) -> DrawResult
+fn draw_forecast<X>(
+    plot: &mut Plot<'_, '_, X>,
+    f: &Forecast,
+    colour: RGBColor,
+    unit: MassUnit,
+) -> DrawResult
 where
     X: Ranged<ValueType = f64>,
 {
     let (low_g, high_g) = f.target_mass_range_g;
+    let mass = |g: f64| unit.from_g(g);
     plot.draw_series(LineSeries::new(
-        [(low_g, f.target_hz), (high_g, f.target_hz)],
+        [(mass(low_g), f.target_hz), (mass(high_g), f.target_hz)],
         colour.mix(0.45).stroke_width(6),
     ))?;
     plot.draw_series(DashedLineSeries::new(
-        [(f.now_mass_g, f.now_hz), (f.target_mass_g, f.target_hz)],
+        [
+            (mass(f.now_mass_g), f.now_hz),
+            (mass(f.target_mass_g), f.target_hz),
+        ],
         3,
         3,
         colour.stroke_width(1),
     ))?;
     plot.draw_series(std::iter::once(Circle::new(
-        (f.target_mass_g, f.target_hz),
+        (mass(f.target_mass_g), f.target_hz),
         6,
         colour.stroke_width(2),
     )))?;
@@ -284,6 +302,7 @@ mod tests {
             target_hz: Some(340.0),
             forecast: None,
             colour: series_colour(0),
+            mass_unit: MassUnit::Gram,
         })
         .expect("test value");
         assert!(svg.starts_with("<svg"), "{}", &svg[..40]);

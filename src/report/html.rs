@@ -14,7 +14,7 @@ use super::charts::{mode_chart_svg, series_colour, ModeChart};
 use super::shapes::shape_section;
 use super::ReportSettings;
 use crate::text::forecast::{caution_text, method_text};
-use crate::text::{capitalised, date_text, note_text, num, signed};
+use crate::text::{capitalised, date_text, note_text, num, signed, MassUnit, Units};
 
 /// The style sheet: screen and print (A4 and Letter both fit the 180 mm
 /// text width; each part starts on a new page; rows and charts are not
@@ -72,10 +72,10 @@ pub fn document(build: &Build, settings: &ReportSettings) -> Markup {
             body {
                 (build_header(build, settings))
                 (cautions(build))
-                (parts_overview(build))
+                (parts_overview(build, settings.units))
                 (top_against_back(build))
                 (air_check(build, settings))
-                (stock(build))
+                (stock(build, settings.units))
                 @for part in build.parts() {
                     (part_section(part, settings))
                 }
@@ -87,7 +87,7 @@ pub fn document(build: &Build, settings: &ReportSettings) -> Markup {
 
 /// The build's wood samples, each bar with its figures (ASTM E1876 for the
 /// flexural modulus; see `acoustics::stock`); nothing when there are none.
-pub fn stock(build: &Build) -> Markup {
+pub fn stock(build: &Build, units: Units) -> Markup {
     if build.stock().is_empty() {
         return html! {};
     }
@@ -96,18 +96,19 @@ pub fn stock(build: &Build) -> Markup {
         table.stock {
             thead {
                 tr {
-                    th { "Sample" } th { "Species" } th { "Bar" } th { "Density (kg/m³)" }
+                    th { "Sample" } th { "Species" } th { "Bar" } th { "Size, mass" } th { "Density (kg/m³)" }
                     th { "E (GPa)" } th { "Speed of sound (m/s)" } th { "Radiation ratio" }
                 }
             }
             tbody {
                 @for sample in build.stock() {
-                    @for (grain, figures) in [("along the grain", sample.along_figures()), ("across the grain", sample.cross_figures())] {
-                        @if let Some(figures) = figures {
+                    @for (grain, bar, figures) in [("along the grain", sample.along_grain.as_ref(), sample.along_figures()), ("across the grain", sample.cross_grain.as_ref(), sample.cross_figures())] {
+                        @if let (Some(bar), Some(figures)) = (bar, figures) {
                             tr {
                                 td { (sample.name) }
                                 td { (sample.species) }
                                 td { (grain) }
+                                td { (units.bar_text((bar.length_mm, bar.width_mm, bar.thickness_mm), bar.mass_g)) }
                                 @match figures {
                                     Ok(f) => {
                                         td.num { (num(f.density_kg_m3, 0)) }
@@ -121,10 +122,10 @@ pub fn stock(build: &Build) -> Markup {
                         }
                     }
                     @if let Some(ratio) = sample.grain_ratio() {
-                        tr.weak { td colspan="7" { (sample.name) ": along/across ratio of E " (num(ratio, 1)) } }
+                        tr.weak { td colspan="8" { (sample.name) ": along/across ratio of E " (num(ratio, 1)) } }
                     }
                     @if !sample.source_note.is_empty() {
-                        tr.weak { td colspan="7" { (sample.name) ": " (sample.source_note) } }
+                        tr.weak { td colspan="8" { (sample.name) ": " (sample.source_note) } }
                     }
                 }
             }
@@ -175,23 +176,23 @@ pub fn cautions(build: &Build) -> Markup {
 }
 
 /// One line per part.
-pub fn parts_overview(build: &Build) -> Markup {
+pub fn parts_overview(build: &Build, units: Units) -> Markup {
     html! {
         h2 { "Parts" }
         @if build.parts().is_empty() {
             p.weak { "This build has no parts yet." }
         } @else {
             table.overview {
-                thead { tr { th { "Part" } th { "Kind" } th { "Wood" } th.num { "Outline (mm)" } th.num { "Passes" } th.num { "Mass first → latest (g)" } } }
+                thead { tr { th { "Part" } th { "Kind" } th { "Wood" } th.num { "Outline (" (units.length.symbol()) ")" } th.num { "Passes" } th.num { "Mass first → latest (" (units.mass.symbol()) ")" } } }
                 tbody {
                     @for part in build.parts() {
                         tr {
                             td { (part.name()) }
                             td { (part.kind().describe()) }
                             td { (part.wood_species.as_deref().unwrap_or("–")) }
-                            td.num { (outline_text(part)) }
+                            td.num { (outline_text(part, units)) }
                             td.num { (part.passes().len()) }
-                            td.num { (mass_span_text(part)) }
+                            td.num { (mass_span_text(part, units)) }
                         }
                     }
                 }
@@ -252,6 +253,7 @@ pub fn air_check(build: &Build, settings: &ReportSettings) -> Markup {
 }
 
 fn air_estimate(build: &Build, geometry: &CavityGeometry, settings: &ReportSettings) -> Markup {
+    let units = settings.units;
     let estimate = match estimate_cavity(geometry) {
         Ok(estimate) => estimate,
         Err(problem) => {
@@ -262,15 +264,15 @@ fn air_estimate(build: &Build, geometry: &CavityGeometry, settings: &ReportSetti
     html! {
         table.facts {
             tbody {
-                tr { td { "Air volume" } td { (num(geometry.volume_l(), 2)) " L" } }
+                tr { td { "Air volume" } td { (units.volume.text(geometry.volume_m3)) } }
                 @for (index, opening) in estimate.openings.iter().enumerate() {
                     tr {
                         td { "Opening " (index + 1) }
-                        td { (opening.opening.kind()) ", " (opening.opening.size_text()) ", " (num(opening.area_m2 * 1e4, 2)) " cm²" }
+                        td { (opening.opening.kind()) ", " (units.length.opening_text(opening.opening.is_round(), &opening.opening.sizes_mm())) ", " (units.length.area_text(opening.area_m2)) }
                     }
                 }
-                tr { td { "Wall thickness at the openings" } td { (num(geometry.wall_thickness_mm, 1)) " mm, " (geometry.end_correction.name()) " end correction" } }
-                tr { td { "Air" } td { (num(geometry.air.temp_c, 1)) " °C, " (num(geometry.air.relative_humidity_pct, 0)) " % RH; speed of sound " (num(estimate.speed_of_sound_m_s, 1)) " m/s" } }
+                tr { td { "Wall thickness at the openings" } td { (units.length.thickness_text(geometry.wall_thickness_mm)) ", " (geometry.end_correction.name()) " end correction" } }
+                tr { td { "Air" } td { (units.temperature.text(geometry.air.temp_c)) ", " (num(geometry.air.relative_humidity_pct, 0)) " % RH; speed of sound " (num(estimate.speed_of_sound_m_s, 1)) " m/s" } }
                 tr { td { "Rigid-wall (Helmholtz) estimate" } td { strong { (num(estimate.helmholtz_hz, 1)) " Hz" } " " (note_text(estimate.helmholtz_hz, settings.a4_hz)) } }
                 @if let Some((part, pass, a0_hz)) = &measured {
                     tr { td { "Measured A0" } td { (num(*a0_hz, 1)) " Hz " (note_text(*a0_hz, settings.a4_hz)) " (" (part) ", pass " (pass) ")" } }
@@ -320,11 +322,11 @@ pub fn part_section(part: &Part, settings: &ReportSettings) -> Markup {
     html! {
         section.part data-part=(part.name()) {
             h2 { (part.name()) }
-            p.meta { (part_about(part)) }
+            p.meta { (part_about(part, settings.units)) }
             (pass_table(part, settings))
-            (mode_charts(part))
+            (mode_charts(part, settings.units.mass))
             (shape_section(part))
-            (targets_and_forecasts(part))
+            (targets_and_forecasts(part, settings.units))
         }
     }
 }
@@ -351,6 +353,7 @@ fn pass_table(part: &Part, settings: &ReportSettings) -> Markup {
 }
 
 fn pass_rows(part: &Part, pass: &Pass, settings: &ReportSettings) -> Markup {
+    let units = settings.units;
     let unlabelled: Vec<String> = pass
         .modes()
         .iter()
@@ -361,14 +364,14 @@ fn pass_rows(part: &Part, pass: &Pass, settings: &ReportSettings) -> Markup {
         tbody.pass data-pass=(pass.number()) {
             tr.pass-head {
                 td colspan="10" {
-                    "Pass " (pass.number()) " · " (date_text(&pass.time.to_string())) " · " (num(pass.mass_g, 2)) " g"
-                    @if let Some(mean) = pass.mean_thickness_mm() { " · mean thickness " (num(mean, 2)) " mm" }
-                    @if let Some(temp_c) = pass.air_temp_c { " · " (num(temp_c, 1)) " °C" }
+                    "Pass " (pass.number()) " · " (date_text(&pass.time.to_string())) " · " (units.mass.text(pass.mass_g))
+                    @if let Some(mean) = pass.mean_thickness_mm() { " · mean thickness " (units.length.thickness_text(mean)) }
+                    @if let Some(temp_c) = pass.air_temp_c { " · " (units.temperature.text(temp_c)) }
                     @if let Some(rh) = pass.relative_humidity_pct { " · " (num(rh, 0)) " % RH" }
                 }
             }
             @if !pass.thickness.is_empty() {
-                tr.pass-detail { td colspan="10" { "Thickness (mm): " (thickness_text(pass)) } }
+                tr.pass-detail { td colspan="10" { "Thickness (" (units.length.symbol()) "): " (thickness_text(pass, units)) } }
             }
             @if !pass.note.trim().is_empty() {
                 tr.pass-detail { td colspan="10" { "Note: " (pass.note) } }
@@ -405,7 +408,7 @@ fn change_cells(change: Option<FrequencyChange>) -> Markup {
     }
 }
 
-fn mode_charts(part: &Part) -> Markup {
+fn mode_charts(part: &Part, mass_unit: MassUnit) -> Markup {
     let labels = part.labels_in_use();
     if labels.is_empty() {
         return html! { h3 { "Charts" } p.weak { "No labelled modes yet to chart." } };
@@ -421,6 +424,7 @@ fn mode_charts(part: &Part) -> Markup {
                 target_hz: part.targets().get(*label).copied(),
                 forecast: forecasts.iter().find(|f| f.label == *label),
                 colour: series_colour(index),
+                mass_unit,
             };
             figure.mode-chart data-label=(label) {
                 @match mode_chart_svg(&chart) {
@@ -437,7 +441,7 @@ fn mode_charts(part: &Part) -> Markup {
     }
 }
 
-fn targets_and_forecasts(part: &Part) -> Markup {
+fn targets_and_forecasts(part: &Part, units: Units) -> Markup {
     if part.targets().is_empty() {
         return html! {};
     }
@@ -446,12 +450,13 @@ fn targets_and_forecasts(part: &Part) -> Markup {
         h3 { "Targets and forecasts" }
         table.forecasts {
             thead {
-                tr { th { "Mode" } th.num { "Target (Hz)" } th.num { "Now (Hz)" } th.num { "Mass now (g)" } th.num { "Remove (g)" } th.num { "Band (g)" } th { "Mean thickness" } }
+                @let g = units.mass.symbol();
+                tr { th { "Mode" } th.num { "Target (Hz)" } th.num { "Now (Hz)" } th.num { "Mass now (" (g) ")" } th.num { "Remove (" (g) ")" } th.num { "Band (" (g) ")" } th { "Mean thickness" } }
             }
             tbody {
                 @for (label, target_hz) in part.targets() {
                     @match forecasts.iter().find(|f| &f.label == label) {
-                        Some(f) => { (forecast_row(f)) }
+                        Some(f) => { (forecast_row(f, units)) }
                         None => {
                             tr { td { (label) } td.num { (num(*target_hz, 1)) } td.weak colspan="5" { "no pass has this label yet" } }
                         }
@@ -462,19 +467,24 @@ fn targets_and_forecasts(part: &Part) -> Markup {
     }
 }
 
-fn forecast_row(f: &Forecast) -> Markup {
+fn forecast_row(f: &Forecast, units: Units) -> Markup {
     let (low, high) = f.mass_to_remove_range_g;
+    let decimals = units.mass.estimate_decimals();
+    let mass = |g: f64| num(units.mass.from_g(g), decimals);
     html! {
         tr {
             td { (f.label) }
             td.num { (num(f.target_hz, 1)) }
             td.num { (num(f.now_hz, 1)) " (pass " (f.from_pass) ")" }
-            td.num { (num(f.now_mass_g, 1)) }
-            td.num { strong { (num(f.mass_to_remove_g, 1)) } }
-            td.num { (num(low, 1)) " to " (num(high, 1)) }
+            td.num { (mass(f.now_mass_g)) }
+            td.num { strong { (mass(f.mass_to_remove_g)) } }
+            td.num { (mass(low)) " to " (mass(high)) }
             td {
                 @match &f.thickness {
-                    Some(t) => { (num(t.mean_now_mm, 2)) " → " (num(t.mean_target_mm, 2)) " mm" }
+                    Some(t) => {
+                        (num(units.length.from_mm(t.mean_now_mm), units.length.thickness_decimals())) " → "
+                        (units.length.thickness_text(t.mean_target_mm))
+                    }
                     None => { span.weak { "no readings" } }
                 }
             }
@@ -485,7 +495,7 @@ fn forecast_row(f: &Forecast) -> Markup {
                 span.weak { "How: " (method_text(&f.method, f.from_pass)) }
                 @for warning in &f.warnings {
                     br;
-                    span.warning { (caution_text(warning)) }
+                    span.warning { (caution_text(warning, units.mass)) }
                 }
             }
         }
@@ -504,13 +514,17 @@ pub fn footer(settings: &ReportSettings) -> Markup {
 
 // ----- small text helpers ---------------------------------------------------
 
-fn part_about(part: &Part) -> String {
+fn part_about(part: &Part, units: Units) -> String {
     let mut bits = vec![part.kind().describe().to_owned()];
     if let Some(wood) = &part.wood_species {
         bits.push(wood.clone());
     }
     if part.outline_length_mm.is_some() || part.outline_width_mm.is_some() {
-        bits.push(format!("outline {} mm", outline_text(part)));
+        bits.push(format!(
+            "outline {} {}",
+            outline_text(part, units),
+            units.length.symbol()
+        ));
     }
     if part.labels().is_empty() {
         bits.push("no labels".to_owned());
@@ -520,29 +534,42 @@ fn part_about(part: &Part) -> String {
     bits.join(" · ")
 }
 
-fn outline_text(part: &Part) -> String {
+/// The outline's numbers in the chosen unit, without the unit.
+fn outline_text(part: &Part, units: Units) -> String {
+    let length = units.length;
+    let size = |mm: f64| num(length.from_mm(mm), length.outline_decimals());
     match (part.outline_length_mm, part.outline_width_mm) {
-        (Some(l), Some(w)) => format!("{} × {}", num(l, 0), num(w, 0)),
-        (Some(l), None) => format!("{} long", num(l, 0)),
-        (None, Some(w)) => format!("{} wide", num(w, 0)),
+        (Some(l), Some(w)) => format!("{} × {}", size(l), size(w)),
+        (Some(l), None) => format!("{} long", size(l)),
+        (None, Some(w)) => format!("{} wide", size(w)),
         (None, None) => "–".to_owned(),
     }
 }
 
-fn mass_span_text(part: &Part) -> String {
+/// First and latest mass in the chosen unit, without the unit.
+fn mass_span_text(part: &Part, units: Units) -> String {
+    let mass = |g: f64| num(units.mass.from_g(g), units.mass.estimate_decimals());
     match (part.passes().first(), part.passes().last()) {
         (Some(first), Some(last)) if first.number() != last.number() => {
-            format!("{} → {}", num(first.mass_g, 1), num(last.mass_g, 1))
+            format!("{} → {}", mass(first.mass_g), mass(last.mass_g))
         }
-        (Some(only), _) => num(only.mass_g, 1),
+        (Some(only), _) => mass(only.mass_g),
         _ => "–".to_owned(),
     }
 }
 
-fn thickness_text(pass: &Pass) -> String {
+/// The readings in the chosen unit, without the unit.
+fn thickness_text(pass: &Pass, units: Units) -> String {
+    let length = units.length;
     pass.thickness
         .iter()
-        .map(|r| format!("{} {}", r.point, num(r.thickness_mm, 2)))
+        .map(|r| {
+            format!(
+                "{} {}",
+                r.point,
+                num(length.from_mm(r.thickness_mm), length.thickness_decimals())
+            )
+        })
         .collect::<Vec<_>>()
         .join(", ")
 }

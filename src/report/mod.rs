@@ -18,6 +18,7 @@ use std::path::{Path, PathBuf};
 
 use crate::atomic_file::write_bytes_atomically;
 use crate::ledger::{Build, Timestamp};
+use crate::text::Units;
 
 /// Choices that are not in the build.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -26,14 +27,18 @@ pub struct ReportSettings {
     pub a4_hz: f64,
     /// When the report is made (shown in it).
     pub made: Timestamp,
+    /// Units of lengths, masses, temperatures and volumes (the build file
+    /// keeps mm, g, °C and m³ whatever is chosen here).
+    pub units: Units,
 }
 
 impl Default for ReportSettings {
-    /// A4 = 440 Hz, made now.
+    /// A4 = 440 Hz, metric units, made now.
     fn default() -> Self {
         Self {
             a4_hz: 440.0,
             made: Timestamp::now(),
+            units: Units::metric(),
         }
     }
 }

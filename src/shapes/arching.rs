@@ -33,8 +33,8 @@
 use nalgebra::{DMatrix, SymmetricEigen};
 
 use super::basis::PolynomialBasis;
+use super::material::PlateMaterial;
 use super::outline::Outline;
-use super::plate::PlateMaterial;
 
 /// How many degrees higher the in-plane displacements' polynomials go
 /// than the deflection's (see the module documentation).

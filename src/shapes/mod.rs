@@ -42,6 +42,7 @@ pub mod drawing;
 pub mod estimate;
 pub mod grid;
 mod legendre;
+mod material;
 pub mod outline;
 pub mod plate;
 mod poles;

@@ -6,6 +6,7 @@
 use crate::ledger::{FallbackReason, Forecast, ForecastMethod, ForecastWarning};
 
 use super::numbers::{num, signed};
+use super::units::{LengthUnit, MassUnit, Units};
 
 /// Closer than this to its target, a mode counts as there (a few cents is
 /// within what a pass of taps repeats to; common practice, no source).
@@ -13,10 +14,11 @@ pub const AT_TARGET_CENTS: f64 = 3.0;
 
 /// The sentences of one forecast, headline first, each with whether it is
 /// a caution: the headline, the thickness (when the pass has readings),
-/// "How: …", then one "Caution: …" per warning.
-pub fn forecast_lines(f: &Forecast) -> Vec<(String, bool)> {
-    let mut lines = vec![(headline(f), false)];
-    if let Some(thickness) = thickness_text(f) {
+/// "How: …", then one "Caution: …" per warning; masses and thicknesses
+/// in `units`.
+pub fn forecast_lines(f: &Forecast, units: Units) -> Vec<(String, bool)> {
+    let mut lines = vec![(headline(f, units.mass), false)];
+    if let Some(thickness) = thickness_text(f, units.length) {
         lines.push((thickness, false));
     }
     lines.push((
@@ -24,13 +26,13 @@ pub fn forecast_lines(f: &Forecast) -> Vec<(String, bool)> {
         false,
     ));
     for warning in &f.warnings {
-        lines.push((caution_text(warning), true));
+        lines.push((caution_text(warning, units.mass), true));
     }
     lines
 }
 
 /// What to do: remove about so much, nothing more, or nothing at all.
-pub fn headline(f: &Forecast) -> String {
+pub fn headline(f: &Forecast, mass: MassUnit) -> String {
     let (low, high) = f.mass_to_remove_range_g;
     let off_cents = 1200.0 * (f.now_hz / f.target_hz).log2();
     if off_cents.abs() < AT_TARGET_CENTS {
@@ -41,15 +43,17 @@ pub fn headline(f: &Forecast) -> String {
             num(f.target_hz, 1)
         )
     } else if f.mass_to_remove_g >= 0.0 {
+        let decimals = mass.estimate_decimals();
         format!(
-            "{}: remove about {} g (between {} and {} g) to go from {} Hz to {} Hz; the part would weigh about {} g.",
+            "{}: remove about {} (between {} and {} {}) to go from {} Hz to {} Hz; the part would weigh about {}.",
             f.label,
-            num(f.mass_to_remove_g, 1),
-            num(low.max(0.0), 1),
-            num(high.max(0.0), 1),
+            mass.estimate_text(f.mass_to_remove_g),
+            num(mass.from_g(low.max(0.0)), decimals),
+            num(mass.from_g(high.max(0.0)), decimals),
+            mass.symbol(),
             num(f.now_hz, 1),
             num(f.target_hz, 1),
-            num(f.target_mass_g, 1)
+            mass.estimate_text(f.target_mass_g)
         )
     } else {
         format!(
@@ -64,15 +68,18 @@ pub fn headline(f: &Forecast) -> String {
 
 /// The mean thickness now and at the target, when the starting pass has
 /// thickness readings.
-pub fn thickness_text(f: &Forecast) -> Option<String> {
+pub fn thickness_text(f: &Forecast, length: LengthUnit) -> Option<String> {
     let t = f.thickness.as_ref()?;
+    let decimals = length.thickness_decimals();
+    let unit = length.symbol();
+    let change = |mm: f64| signed(length.from_mm(mm), decimals);
     Some(format!(
-        "Mean thickness from {} mm to about {} mm ({} mm, between {} and {} mm).",
-        num(t.mean_now_mm, 2),
-        num(t.mean_target_mm, 2),
-        signed(t.change_mm, 2),
-        signed(t.change_range_mm.0, 2),
-        signed(t.change_range_mm.1, 2)
+        "Mean thickness from {} to about {} ({} {unit}, between {} and {} {unit}).",
+        length.thickness_text(t.mean_now_mm),
+        length.thickness_text(t.mean_target_mm),
+        change(t.change_mm),
+        change(t.change_range_mm.0),
+        change(t.change_range_mm.1)
     ))
 }
 
@@ -113,16 +120,17 @@ fn fallback_text(reason: &FallbackReason) -> String {
     }
 }
 
-/// A warning as the sentence after "Caution:" ("the target is above …").
-pub fn warning_text(warning: &ForecastWarning) -> String {
+/// A warning as the sentence after "Caution:" ("the target is above …"),
+/// masses in `mass`.
+pub fn warning_text(warning: &ForecastWarning, mass: MassUnit) -> String {
     match warning {
         ForecastWarning::ExtrapolatesBeyondHistory {
             outside_g,
             history_span_g,
         } => format!(
-            "the forecast reaches {} g beyond the masses measured so far (which span only {} g); treat it as a rough guide and measure again on the way.",
-            num(*outside_g, 1),
-            num(*history_span_g, 1)
+            "the forecast reaches {} beyond the masses measured so far (which span only {}); treat it as a rough guide and measure again on the way.",
+            mass.estimate_text(*outside_g),
+            mass.estimate_text(*history_span_g)
         ),
         ForecastWarning::TargetAboveCurrent => {
             "the target is above the mode's frequency now; removing wood lowers it.".to_owned()
@@ -134,8 +142,8 @@ pub fn warning_text(warning: &ForecastWarning) -> String {
 }
 
 /// A warning as a whole sentence: "Caution: the target is above …".
-pub fn caution_text(warning: &ForecastWarning) -> String {
-    format!("Caution: {}", warning_text(warning))
+pub fn caution_text(warning: &ForecastWarning, mass: MassUnit) -> String {
+    format!("Caution: {}", warning_text(warning, mass))
 }
 
 #[cfg(test)]
@@ -167,7 +175,7 @@ mod tests {
 
     #[test]
     fn a_fallback_forecast_says_why_and_warns_in_words() {
-        let lines = forecast_lines(&fallback_forecast());
+        let lines = forecast_lines(&fallback_forecast(), Units::metric());
         assert!(lines[0]
             .0
             .starts_with("mode 5: remove about 2.0 g (between 2.0 and 3.9 g)"));
@@ -182,7 +190,7 @@ mod tests {
         let mut f = fallback_forecast();
         f.now_hz = 335.0;
         f.mass_to_remove_g = -1.5;
-        let lines = forecast_lines(&f);
+        let lines = forecast_lines(&f, Units::metric());
         assert!(
             lines[0]
                 .0
@@ -192,7 +200,33 @@ mod tests {
         );
         f.now_hz = 340.2;
         f.mass_to_remove_g = 0.04;
-        let lines = forecast_lines(&f);
+        let lines = forecast_lines(&f, Units::metric());
         assert!(lines[0].0.contains("at its target"), "{}", lines[0].0);
+    }
+
+    #[test]
+    fn a_forecast_reads_in_ounces_and_inches() {
+        let mut f = fallback_forecast();
+        f.thickness = Some(crate::ledger::ThicknessForecast {
+            mean_now_mm: 2.54,
+            mean_target_mm: 2.286,
+            change_mm: -0.254,
+            change_range_mm: (-0.381, -0.254),
+        });
+        let lines = forecast_lines(&f, Units::imperial());
+        // 2.0 g = 0.071 oz, 3.9 g = 0.138 oz, 68.0 g = 2.399 oz (1 oz =
+        // 28.349523125 g); 2.54 mm = 0.100 in.
+        assert!(
+            lines[0].0.starts_with(
+                "mode 5: remove about 0.071 oz (between 0.071 and 0.138 oz) to go from 350.0 Hz to 340.0 Hz; the part would weigh about 2.399 oz."
+            ),
+            "{}",
+            lines[0].0
+        );
+        assert_eq!(
+            lines[1].0,
+            "Mean thickness from 0.100 in to about 0.090 in (\u{2212}0.010 in, between \u{2212}0.015 and \u{2212}0.010 in)."
+        );
+        assert!(lines[3].0.contains("0.176 oz beyond"), "{}", lines[3].0);
     }
 }

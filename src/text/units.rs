@@ -11,7 +11,9 @@
 
 use serde::{Deserialize, Serialize};
 
-use super::numbers::num;
+use super::numbers::{num, number_text};
+use super::sentences::sentence;
+use super::typed::{read_number, NumberProblem};
 
 /// Millimetres in one inch (exact, 1959 agreement).
 pub const MM_PER_INCH: f64 = 25.4;
@@ -63,9 +65,40 @@ pub struct Units {
 }
 
 impl Units {
+    /// "metric", "imperial", or "mixed" when the kinds differ: for a
+    /// button or a heading.
+    pub fn name(self) -> &'static str {
+        if self == Self::metric() {
+            "metric"
+        } else if self == Self::imperial() {
+            "imperial"
+        } else {
+            "mixed"
+        }
+    }
+
     /// Millimetres, grams, °C and litres.
     pub fn metric() -> Self {
         Self::default()
+    }
+
+    /// "300.0 × 25.0 × 10.0 mm, 33.75 g" / "11.81 × 0.98 × 0.39 in,
+    /// 1.190 oz": a sample bar's sizes and mass.
+    pub fn bar_text(
+        self,
+        (length_mm, width_mm, thickness_mm): (f64, f64, f64),
+        mass_g: f64,
+    ) -> String {
+        let length = self.length;
+        let size = |mm: f64| num(length.from_mm(mm), length.size_decimals());
+        format!(
+            "{} × {} × {} {}, {}",
+            size(length_mm),
+            size(width_mm),
+            size(thickness_mm),
+            length.symbol(),
+            self.mass.text(mass_g)
+        )
     }
 
     /// Inches, ounces, °F and cubic inches.
@@ -264,6 +297,270 @@ impl VolumeUnit {
     }
 }
 
+/// One kind of unit: how a value shown or typed in it relates to the value
+/// a build file keeps (mm, g, °C or m³).
+pub trait Unit: Copy + PartialEq {
+    /// "mm", "oz", "°F", "in³".
+    fn symbol(self) -> &'static str;
+    /// A value in this unit as the stored value.
+    fn to_stored(self, value: f64) -> f64;
+    /// A stored value in this unit.
+    fn from_stored(self, stored: f64) -> f64;
+}
+
+impl Unit for LengthUnit {
+    fn symbol(self) -> &'static str {
+        LengthUnit::symbol(self)
+    }
+    fn to_stored(self, value: f64) -> f64 {
+        self.to_mm(value)
+    }
+    fn from_stored(self, stored: f64) -> f64 {
+        self.from_mm(stored)
+    }
+}
+
+impl Unit for MassUnit {
+    fn symbol(self) -> &'static str {
+        MassUnit::symbol(self)
+    }
+    fn to_stored(self, value: f64) -> f64 {
+        self.to_g(value)
+    }
+    fn from_stored(self, stored: f64) -> f64 {
+        self.from_g(stored)
+    }
+}
+
+impl Unit for TemperatureUnit {
+    fn symbol(self) -> &'static str {
+        TemperatureUnit::symbol(self)
+    }
+    fn to_stored(self, value: f64) -> f64 {
+        self.to_c(value)
+    }
+    fn from_stored(self, stored: f64) -> f64 {
+        self.from_c(stored)
+    }
+}
+
+impl Unit for VolumeUnit {
+    fn symbol(self) -> &'static str {
+        VolumeUnit::symbol(self)
+    }
+    fn to_stored(self, value: f64) -> f64 {
+        self.to_m3(value)
+    }
+    fn from_stored(self, stored: f64) -> f64 {
+        self.from_m3(stored)
+    }
+}
+
+/// The significant digits of a typed number ("0.0120" has 3).
+fn significant_digits(text: &str) -> usize {
+    let digits: String = text.chars().filter(char::is_ascii_digit).collect();
+    digits.trim_start_matches('0').len()
+}
+
+/// `value` to `digits` significant digits (fixed notation).
+fn significant_text(value: f64, digits: usize) -> String {
+    if value == 0.0 || !value.is_finite() {
+        return "0".to_owned();
+    }
+    let magnitude = value.abs().log10().floor() as i32;
+    let decimals = (digits as i32 - 1 - magnitude).clamp(0, 15) as usize;
+    format!("{value:.decimals$}")
+}
+
+/// "86.00" → "86", "8.50" → "8.5".
+fn without_trailing_zeros(text: String) -> String {
+    if text.contains('.') {
+        text.trim_end_matches('0').trim_end_matches('.').to_owned()
+    } else {
+        text
+    }
+}
+
+/// A stored value as a maker would type it in `unit` (six significant
+/// digits, no trailing zeros: 70 mm is "70" or "2.75591" in): what a field
+/// is filled with. Read back, it is the stored value to six significant
+/// digits.
+pub fn field_text<U: Unit>(unit: U, stored: f64) -> String {
+    number_text(unit.from_stored(stored))
+}
+
+/// A number typed in `unit` into the field `what`, by the one rule of
+/// `text::typed`, as the stored value; or one sentence naming the field
+/// ("The mass \"abc\" is not a number.").
+pub fn parse_in<U: Unit>(unit: U, what: &str, text: &str) -> Result<f64, String> {
+    parse_optional_in(unit, what, text)?
+        .ok_or_else(|| sentence(&format!("{what} {}", NumberProblem::Empty.describe(text))))
+}
+
+/// Like [`parse_in`], but an empty field is no value (None) rather than a
+/// problem.
+pub fn parse_optional_in<U: Unit>(unit: U, what: &str, text: &str) -> Result<Option<f64>, String> {
+    match read_number(text) {
+        Ok(value) => Ok(Some(unit.to_stored(value))),
+        Err(NumberProblem::Empty) => Ok(None),
+        Err(problem) => Err(sentence(&format!("{what} {}", problem.describe(text)))),
+    }
+}
+
+/// Rewrites a number typed in `from` as the same quantity in `to` (a field
+/// whose unit the maker just changed), with the fewest decimals that bring
+/// back the same number when the unit is changed back (86 mm becomes
+/// "3.385827" in, which becomes "86" mm again); text that is not a number
+/// is left as it is, for the maker to finish.
+pub fn convert_typed<U: Unit>(text: &mut String, from: U, to: U) {
+    if from == to {
+        return;
+    }
+    let Ok(value) = read_number(text) else {
+        return;
+    };
+    let stored = from.to_stored(value);
+    // As many significant digits as were typed, six at least.
+    let digits = significant_digits(text).max(6);
+    let as_typed = significant_text(value, digits);
+    let comes_back = |candidate: &String| {
+        read_number(candidate)
+            .is_ok_and(|v| significant_text(from.from_stored(to.to_stored(v)), digits) == as_typed)
+    };
+    *text = (0..=9)
+        .map(|decimals| without_trailing_zeros(format!("{:.decimals$}", to.from_stored(stored))))
+        .find(comes_back)
+        .unwrap_or_else(|| field_text(to, stored));
+}
+
+impl LengthUnit {
+    /// Decimals for a part's outline: whole millimetres, or 0.01 in.
+    pub fn outline_decimals(self) -> usize {
+        match self {
+            LengthUnit::Millimetre => 0,
+            LengthUnit::Inch => 2,
+        }
+    }
+
+    /// "356 × 207 mm" / "14.02 × 8.15 in".
+    pub fn outline_text(self, length_mm: f64, width_mm: f64) -> String {
+        let decimals = self.outline_decimals();
+        format!(
+            "{} × {} {}",
+            num(self.from_mm(length_mm), decimals),
+            num(self.from_mm(width_mm), decimals),
+            self.symbol()
+        )
+    }
+
+    /// "cm²" or "in²".
+    pub fn area_symbol(self) -> &'static str {
+        match self {
+            LengthUnit::Millimetre => "cm²",
+            LengthUnit::Inch => "in²",
+        }
+    }
+
+    /// An area stored in m² in cm² or in².
+    pub fn area_from_m2(self, m2: f64) -> f64 {
+        match self {
+            LengthUnit::Millimetre => m2 * 1e4,
+            LengthUnit::Inch => m2 / (MM_PER_INCH * 1e-3).powi(2),
+        }
+    }
+
+    /// Decimals for an area: 0.01 cm², 0.001 in².
+    pub fn area_decimals(self) -> usize {
+        match self {
+            LengthUnit::Millimetre => 2,
+            LengthUnit::Inch => 3,
+        }
+    }
+
+    /// "5.60 cm²" / "0.868 in²": an opening's area (stored in m²).
+    pub fn area_text(self, m2: f64) -> String {
+        format!(
+            "{} {}",
+            num(self.area_from_m2(m2), self.area_decimals()),
+            self.area_symbol()
+        )
+    }
+
+    /// An opening's sizes as a maker writes them: "Ø 86 mm", "70 × 8 mm",
+    /// "Ø 3.386 in", "2.756 × 0.315 in" (to 0.01 mm or 0.001 in, trailing
+    /// zeros dropped). `diameter` puts "Ø" in front.
+    pub fn opening_text(self, diameter: bool, sizes_mm: &[f64]) -> String {
+        let decimals = match self {
+            LengthUnit::Millimetre => 2,
+            LengthUnit::Inch => 3,
+        };
+        let sizes: Vec<String> = sizes_mm
+            .iter()
+            .map(|mm| without_trailing_zeros(num(self.from_mm(*mm), decimals)))
+            .collect();
+        let prefix = if diameter { "Ø " } else { "" };
+        format!("{prefix}{} {}", sizes.join(" × "), self.symbol())
+    }
+
+    /// The step a slope is given per ("mm", or "0.1 in": 2.54 mm, a step a
+    /// maker in inches would take), with its size in mm.
+    pub fn slope_step(self) -> (f64, &'static str) {
+        match self {
+            LengthUnit::Millimetre => (1.0, "mm"),
+            LengthUnit::Inch => (0.1 * MM_PER_INCH, "0.1 in"),
+        }
+    }
+}
+
+impl MassUnit {
+    /// "grams" or "ounces", for sentences.
+    pub fn plural_name(self) -> &'static str {
+        match self {
+            MassUnit::Gram => "grams",
+            MassUnit::Ounce => "ounces",
+        }
+    }
+
+    /// Decimals for an estimate (a forecast's mass): 0.1 g or 0.001 oz.
+    pub fn estimate_decimals(self) -> usize {
+        match self {
+            MassUnit::Gram => 1,
+            MassUnit::Ounce => 3,
+        }
+    }
+
+    /// "1.5 g" / "0.053 oz": an estimated mass.
+    pub fn estimate_text(self, g: f64) -> String {
+        format!(
+            "{} {}",
+            num(self.from_g(g), self.estimate_decimals()),
+            self.symbol()
+        )
+    }
+}
+
+impl TemperatureUnit {
+    /// A change per °C as the same change per degree of this unit (a
+    /// Fahrenheit degree is 5/9 of a Celsius one).
+    pub fn per_degree(self, per_degree_c: f64) -> f64 {
+        match self {
+            TemperatureUnit::Celsius => per_degree_c,
+            TemperatureUnit::Fahrenheit => per_degree_c * 5.0 / 9.0,
+        }
+    }
+}
+
+impl VolumeUnit {
+    /// The step a slope is given per, with its size in litres: a litre, or
+    /// 10 in³ (0.16 L).
+    pub fn slope_step(self) -> (f64, &'static str) {
+        match self {
+            VolumeUnit::Litre => (1.0, "litre"),
+            VolumeUnit::CubicInch => (10.0 * LITRES_PER_CUBIC_INCH, "10 in³"),
+        }
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -299,6 +596,105 @@ mod tests {
         assert_eq!(MassUnit::Ounce.text(g), "2.406 oz");
         let c = TemperatureUnit::Fahrenheit.to_c(69.8);
         assert_eq!(TemperatureUnit::Fahrenheit.text(c), "69.8 °F");
+    }
+
+    #[test]
+    fn typed_values_are_read_in_their_unit_and_refused_in_one_sentence() {
+        assert_eq!(parse_in(LengthUnit::Inch, "The thickness", "0,1"), Ok(2.54));
+        assert_eq!(
+            parse_in(MassUnit::Ounce, "The mass", " 2 "),
+            Ok(2.0 * GRAMS_PER_OUNCE)
+        );
+        assert_eq!(
+            parse_optional_in(TemperatureUnit::Fahrenheit, "The air temperature", ""),
+            Ok(None)
+        );
+        assert_eq!(
+            parse_in(LengthUnit::Inch, "The thickness", "thin").unwrap_err(),
+            "The thickness \"thin\" is not a number."
+        );
+        assert_eq!(
+            parse_in(MassUnit::Gram, "The mass", "").unwrap_err(),
+            "The mass is empty: type a number."
+        );
+    }
+
+    #[test]
+    fn a_field_follows_a_change_of_unit_and_keeps_unfinished_text() {
+        let mut text = "0.118".to_owned();
+        convert_typed(&mut text, LengthUnit::Inch, LengthUnit::Millimetre);
+        assert_eq!(text, "2.9972"); // 0.118 × 25.4 exactly
+        convert_typed(&mut text, LengthUnit::Millimetre, LengthUnit::Inch);
+        assert_eq!(text, "0.118");
+        let mut text = "2,".to_owned();
+        convert_typed(&mut text, MassUnit::Gram, MassUnit::Ounce);
+        // "2," reads as 2 (a decimal comma), 2 g = 0.070548 oz to the
+        // digits that bring 2 g back.
+        assert_eq!(text, "0.070548");
+        let mut unfinished = "abc".to_owned();
+        convert_typed(&mut unfinished, MassUnit::Gram, MassUnit::Ounce);
+        assert_eq!(unfinished, "abc");
+        // Back and forth: the number typed comes back as typed.
+        for typed in ["86", "70", "2.5", "356", "0.01"] {
+            let mut text = typed.to_owned();
+            convert_typed(&mut text, LengthUnit::Millimetre, LengthUnit::Inch);
+            convert_typed(&mut text, LengthUnit::Inch, LengthUnit::Millimetre);
+            assert_eq!(text, typed);
+        }
+        let mut text = "86".to_owned();
+        convert_typed(&mut text, LengthUnit::Millimetre, LengthUnit::Inch);
+        assert_eq!(text, "3.385827");
+        let mut text = "20".to_owned();
+        convert_typed(
+            &mut text,
+            TemperatureUnit::Celsius,
+            TemperatureUnit::Fahrenheit,
+        );
+        assert_eq!(text, "68");
+        // 70 mm shown in inches and read back: the same to six digits.
+        let shown = field_text(LengthUnit::Inch, 70.0);
+        assert_eq!(shown, "2.75591");
+        let back = parse_in(LengthUnit::Inch, "x", &shown).expect("a number");
+        assert!((back - 70.0).abs() / 70.0 < 5e-6, "{back}");
+    }
+
+    #[test]
+    fn derived_quantities_follow_the_length_unit() {
+        // 1 in² = 6.4516 cm² exactly (from 1 in = 2.54 cm).
+        assert_eq!(LengthUnit::Millimetre.area_text(6.4516e-4), "6.45 cm²");
+        assert_eq!(LengthUnit::Inch.area_text(6.4516e-4), "1.000 in²");
+        assert_eq!(
+            LengthUnit::Millimetre.opening_text(true, &[86.0]),
+            "Ø 86 mm"
+        );
+        assert_eq!(
+            LengthUnit::Inch.opening_text(false, &[70.0, 8.0]),
+            "2.756 × 0.315 in"
+        );
+        assert_eq!(
+            LengthUnit::Inch.outline_text(355.6, 203.2),
+            "14.00 × 8.00 in"
+        );
+        assert_eq!(
+            LengthUnit::Millimetre.outline_text(355.6, 203.2),
+            "356 × 203 mm"
+        );
+        assert!((TemperatureUnit::Fahrenheit.per_degree(0.9) - 0.5).abs() < 1e-12);
+        assert_eq!(Units::imperial().name(), "imperial");
+        assert_eq!(
+            Units::metric().bar_text((300.0, 25.0, 10.0), 33.75),
+            "300.0 × 25.0 × 10.0 mm, 33.75 g"
+        );
+        // 300 mm = 11.81 in, 33.75 g = 1.190 oz.
+        assert_eq!(
+            Units::imperial().bar_text((300.0, 25.4, 10.0), 33.75),
+            "11.81 × 1.00 × 0.39 in, 1.190 oz"
+        );
+        let mixed = Units {
+            mass: MassUnit::Gram,
+            ..Units::imperial()
+        };
+        assert_eq!(mixed.name(), "mixed");
     }
 
     #[test]

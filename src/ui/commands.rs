@@ -7,6 +7,7 @@
 use std::path::PathBuf;
 
 use crate::ledger::{Build, Family, LedgerError, PassInput};
+use crate::text::Units;
 
 /// The places in the window (README.md, "The workbench").
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Default)]
@@ -109,6 +110,9 @@ pub enum AppCommand {
     /// Make Listen offer the labels of this part of the open build (None:
     /// the trade's preset labels).
     SetListenPart(Option<String>),
+    /// Show lengths, masses, temperatures and volumes in these units from
+    /// now on, and keep the choice for the next run.
+    SetUnits(Units),
     /// Show a sentence in the status line.
     ShowMessage(String),
     /// Show a problem as one sentence in the status line.
@@ -153,7 +157,8 @@ pub enum ListenCommand {
     },
     /// Forget the taps and start a new pass.
     NewPass,
-    /// Read a WAV file and show its taps as the pass.
+    /// Read a recording (WAV, FLAC, MP3, M4A …) and show its taps as the
+    /// pass.
     OpenRecording(PathBuf),
     /// Show the file dialog to open a recording.
     ChooseRecordingFile,
@@ -188,6 +193,7 @@ impl std::fmt::Debug for AppCommand {
                 write!(f, "KeepShapeMap({part:?}, pass {pass})")
             }
             Self::SetListenPart(part) => write!(f, "SetListenPart({part:?})"),
+            Self::SetUnits(units) => write!(f, "SetUnits({units:?})"),
             Self::ShowMessage(text) => write!(f, "ShowMessage({text:?})"),
             Self::ShowError(text) => write!(f, "ShowError({text:?})"),
             Self::Listen(command) => write!(f, "Listen({command:?})"),

@@ -1,6 +1,7 @@
 //! What an area may read each frame: the [`AreaContext`] every area is
 //! given (the pass being measured, the open build, the reference pitch,
-//! the job runner and the list to push commands into), and the input's
+//! the maker's units, the job runner and the list to push commands into),
+//! and the input's
 //! state that the Listen area shows.
 
 use std::path::{Path, PathBuf};
@@ -9,6 +10,7 @@ use std::time::Instant;
 use crate::analysis::PassResult;
 use crate::audio::{DeviceInfo, InputLevel};
 use crate::ledger::{Build, MeasuredMode, PassInput, StoredSpectrum};
+use crate::text::Units;
 use crate::ui::commands::{AppCommand, SourcePick};
 use crate::ui::jobs::Jobs;
 
@@ -68,6 +70,10 @@ pub struct AreaContext<'a> {
     pub listen_part: Option<&'a str>,
     /// Reference pitch for note names, Hz.
     pub a4_hz: f64,
+    /// The maker's units: every length, mass, temperature and volume on
+    /// screen is shown in them and typed values are read in them (the
+    /// build keeps mm, g, °C and m³).
+    pub units: Units,
     /// The window's runner of background work, for an area's own jobs
     /// (file dialogs, exports, opening the drive output).
     pub jobs: &'a Jobs,

@@ -15,11 +15,16 @@ pub struct FileDialog {
     pub extensions: &'static [&'static str],
 }
 
-/// Open a recording (Listen).
+/// Open a recording (Listen): every ending `wav_io` reads, in lower and
+/// upper case (a dialog on Linux matches the case).
 pub const OPEN_RECORDING: FileDialog = FileDialog {
     title: "Open a recording",
-    filter: "WAV recording",
-    extensions: &["wav", "WAV"],
+    filter: "Recording (WAV, FLAC, MP3, M4A, AIFF, CAF, Ogg)",
+    extensions: &[
+        "wav", "wave", "aif", "aiff", "aifc", "caf", "flac", "mp3", "m4a", "mp4", "aac", "ogg",
+        "oga", "WAV", "WAVE", "AIF", "AIFF", "AIFC", "CAF", "FLAC", "MP3", "M4A", "MP4", "AAC",
+        "OGG", "OGA",
+    ],
 };
 /// Save the kept taps (Listen).
 pub const SAVE_TAPS: FileDialog = FileDialog {
@@ -76,5 +81,24 @@ impl FileDialog {
             .add_filter(self.filter, self.extensions)
             .set_file_name(suggested_name)
             .save_file()
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::wav_io::READABLE_EXTENSIONS;
+
+    #[test]
+    fn the_recording_dialog_offers_every_readable_ending_in_both_cases() {
+        for extension in READABLE_EXTENSIONS {
+            for case in [extension.to_string(), extension.to_ascii_uppercase()] {
+                assert!(OPEN_RECORDING.extensions.contains(&case.as_str()), "{case}");
+            }
+        }
+        assert_eq!(
+            OPEN_RECORDING.extensions.len(),
+            2 * READABLE_EXTENSIONS.len()
+        );
     }
 }

@@ -9,19 +9,22 @@
 //!   plot).
 //! - `commands`, `context`: what areas may ask and read; `session`: the
 //!   pass being measured; `jobs`: the one runner of background work;
-//!   `dialogs`: the file dialogs.
+//!   `dialogs`: the file dialogs; `preferences`: the maker's units, kept
+//!   between runs.
 
 pub mod areas;
 pub mod commands;
 pub mod context;
 mod dialogs;
 mod jobs;
+pub mod preferences;
 pub mod session;
 mod shell;
 pub mod widgets;
 
 pub use commands::{AppCommand, Area, BuildEdit, ListenCommand, SourcePick};
 pub use context::{stored_spectrum_of, AreaContext, InputView, SourceState};
+pub use preferences::Preferences;
 pub use session::ListenSession;
 pub use shell::{
     run_workbench, AppOptions, StartSource, Status, TapwrightApp, WorkbenchOptions, LABEL_SETS,

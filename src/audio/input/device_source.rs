@@ -150,8 +150,8 @@ impl DeviceSource {
         if std::mem::replace(&mut self.pace.told_fast, true) {
             return None;
         }
-        Some(SourceRead::Notice(format!(
-            "the input {} delivers sound faster than real time ({delivered_s:.0} s of sound in {elapsed_s:.1} s), so it is not a live microphone; what did not fit the buffer was skipped",
+        Some(SourceRead::NotLive(format!(
+            "the input {} delivers sound faster than real time ({delivered_s:.0} s of sound in {elapsed_s:.1} s), so it is not a live microphone",
             self.description
         )))
     }

@@ -54,6 +54,15 @@ pub enum CaptureEvent {
         /// One sentence.
         message: String,
     },
+    /// The source delivers sound faster than real time, so it is not a live
+    /// microphone (ALSA's `null` device gives endless silence, a `file`
+    /// plug-in a recording); what did not fit the ring was skipped, not
+    /// lost. Sent once per source.
+    NotLive {
+        /// "the input … delivers sound faster than real time (… s of sound
+        /// in … s), so it is not a live microphone": a sentence to finish.
+        message: String,
+    },
     /// The source stopped working (unplugged, taken by another program,
     /// silent for a second). The worker will try again.
     DeviceLost {

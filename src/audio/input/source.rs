@@ -23,6 +23,11 @@ pub enum SourceRead {
     Lost(String),
     /// Something worth telling the user that does not stop the source.
     Notice(String),
+    /// The source delivers sound faster than real time, so it is not a
+    /// live microphone (ALSA's `null` device, a `file` plug-in): the
+    /// sentence saying so, for the receiver to finish. Told once; the
+    /// source goes on.
+    NotLive(String),
 }
 
 /// A stream of mono f32 samples at a fixed rate.

@@ -374,6 +374,10 @@ impl Worker {
                     pending.push(CaptureEvent::Status { message });
                     None
                 }
+                SourceRead::NotLive(message) => {
+                    pending.push(CaptureEvent::NotLive { message });
+                    None
+                }
                 SourceRead::Ended => Some(Outcome::Ended),
                 SourceRead::Lost(message) => Some(Outcome::Lost(message)),
             };

@@ -189,25 +189,28 @@ fn settings_panel(
     ui.strong("Recording file");
     ui.horizontal(|ui| {
         let label = ui.label("Path");
-        let field = ui
-            .add(
-                egui::TextEdit::singleline(&mut view.typed_path)
-                    .hint_text("/path/to/taps.wav")
-                    .desired_width(ui.available_width() - 60.0),
-            )
-            .labelled_by(label.id);
-        let entered = field.lost_focus() && ui.input(|i| i.key_pressed(egui::Key::Enter));
-        if ui
-            .button("Open")
-            .on_hover_text("Open the WAV file typed at the left")
-            .clicked()
-            || entered
-        {
-            listen(
-                ctx,
-                ListenCommand::OpenRecording(PathBuf::from(view.typed_path.trim())),
-            );
-        }
+        // The button first, from the right, so the field takes exactly the
+        // room left and never widens the panel.
+        ui.with_layout(egui::Layout::right_to_left(egui::Align::Center), |ui| {
+            let open = ui
+                .button("Open")
+                .on_hover_text("Open the recording typed at the left (WAV, FLAC, MP3, M4A …)")
+                .clicked();
+            let field = ui
+                .add(
+                    egui::TextEdit::singleline(&mut view.typed_path)
+                        .hint_text("/path/to/taps.wav")
+                        .desired_width(ui.available_width()),
+                )
+                .labelled_by(label.id);
+            let entered = field.lost_focus() && ui.input(|i| i.key_pressed(egui::Key::Enter));
+            if open || entered {
+                listen(
+                    ctx,
+                    ListenCommand::OpenRecording(PathBuf::from(view.typed_path.trim())),
+                );
+            }
+        });
     });
     ui.horizontal_wrapped(|ui| {
         if ui.button("Choose a recording…").clicked() {
@@ -223,7 +226,7 @@ fn settings_panel(
             listen(ctx, ListenCommand::ChooseSaveTapsFile);
         }
     });
-    ui.weak("Or drop a WAV file on the window.");
+    ui.weak("Or drop a recording on the window (WAV, FLAC, MP3, M4A, AIFF, CAF, Ogg).");
 
     ui.separator();
     ui.strong("Pass");
@@ -315,9 +318,11 @@ fn source_state_line(ui: &mut egui::Ui, facts: &ListenFacts, ctx: &mut AreaConte
     let input = facts.input;
     match &input.state {
         SourceState::Starting => {
+            // Wrapped: a long device name must not widen the panel for
+            // good (a panel keeps the width its content once took).
             ui.horizontal(|ui| {
                 ui.spinner();
-                ui.label(format!("Opening {} …", input.description));
+                ui.add(egui::Label::new(format!("Opening {} …", input.description)).wrap());
             });
         }
         SourceState::Running => {
@@ -428,17 +433,39 @@ fn central(ui: &mut egui::Ui, view: &mut ListenView, facts: &ListenFacts, ctx: &
 
     ui.add_space(4.0);
     let width = ui.available_width();
-    ui.horizontal_top(|ui| {
-        ui.vertical(|ui| {
-            ui.set_width(width * 0.56);
-            mode_list(ui, view, facts, ctx);
+    if width >= MODES_BESIDE_TAPS_WIDTH {
+        // The tap list keeps the room its columns need; the mode list
+        // takes the rest.
+        let modes_width = (width - TAP_LIST_WIDTH).min(width * 0.62);
+        ui.horizontal_top(|ui| {
+            ui.vertical(|ui| {
+                ui.set_width(modes_width);
+                mode_list(ui, view, facts, ctx);
+            });
+            ui.separator();
+            ui.vertical(|ui| {
+                tap_list(ui, facts, ctx);
+            });
+        });
+    } else {
+        // A narrow window: the taps under the modes, each list as wide
+        // as the window.
+        let half = (ui.available_height() * 0.5).max(120.0);
+        ui.allocate_ui(egui::vec2(width, half), |ui| {
+            mode_list(ui, view, facts, ctx)
         });
         ui.separator();
-        ui.vertical(|ui| {
-            tap_list(ui, facts, ctx);
-        });
-    });
+        tap_list(ui, facts, ctx);
+    }
 }
+
+/// Room the tap list's five columns take (tap, time, level, state, button;
+/// about 370 points with the window's text sizes) with the panel's margin
+/// and a scroll bar, points.
+const TAP_LIST_WIDTH: f32 = 395.0;
+/// Narrower than this, the tap list goes under the mode list (the mode
+/// list's seven columns need about 520 points).
+const MODES_BESIDE_TAPS_WIDTH: f32 = 920.0;
 
 fn mode_list(ui: &mut egui::Ui, view: &mut ListenView, facts: &ListenFacts, ctx: &mut AreaContext) {
     ui.strong("Modes");

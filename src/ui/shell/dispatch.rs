@@ -30,6 +30,7 @@ impl TapwrightApp {
             } => self.record_pass(&part, input, &labels),
             AppCommand::KeepShapeMap { part, pass, map } => self.keep_shape_map(&part, pass, *map),
             AppCommand::SetListenPart(part) => self.pass.listen_part = part,
+            AppCommand::SetUnits(units) => self.set_units(units),
             AppCommand::ShowMessage(text) => self.set_message(text),
             AppCommand::ShowError(text) => self.set_error(text),
             AppCommand::Listen(command) => self.apply_listen(command),
@@ -148,6 +149,8 @@ impl TapwrightApp {
                 ShellJob::Saved(Ok(text)) => self.set_message(text),
                 ShellJob::Saved(Err(problem)) => self.set_error(problem),
                 ShellJob::BuildLoaded { path, result } => self.build_loaded(path, result),
+                ShellJob::PreferencesSaved(Ok(())) => {}
+                ShellJob::PreferencesSaved(Err(problem)) => self.set_error(problem),
             }
         }
     }

@@ -1,14 +1,16 @@
-//! The frame around the areas: the top bar (areas, help, theme), the status
-//! line, the area shown with the context it reads, the help window, text
-//! sizes, dropped files, and when to draw again.
+//! The frame around the areas: the top bar (areas, units, help, theme),
+//! the status line, the area shown with the context it reads, the help and
+//! units windows, text sizes, dropped files, and when to draw again.
 
 use std::path::PathBuf;
 use std::time::{Duration, Instant};
 
 use eframe::egui;
 
-use super::{help, PassState, Status, TapwrightApp, LABEL_SETS};
+use super::status::StatusLine;
+use super::{help, units_window, PassState, TapwrightApp, LABEL_SETS};
 use crate::audio::{CaptureSettings, OutputChoice};
+use crate::text::Units;
 use crate::ui::areas::air::{self, AirAreaState};
 use crate::ui::areas::drive::{self, DriveAreaState};
 use crate::ui::areas::ledger::{self, LedgerAreaState};
@@ -18,6 +20,7 @@ use crate::ui::areas::stock::{self, StockAreaState};
 use crate::ui::commands::{AppCommand, Area, ListenCommand};
 use crate::ui::context::AreaContext;
 use crate::ui::jobs::Jobs;
+use crate::wav_io::READABLE_EXTENSIONS;
 
 use super::document::OpenDocument;
 
@@ -49,14 +52,15 @@ impl AreaStates {
     }
 }
 
-/// The window's own state: the area shown, the theme, the help window and
-/// the status line.
+/// The window's own state: the area shown, the theme, the help and units
+/// windows and the status line.
 #[derive(Debug)]
 pub(super) struct WindowView {
     pub area: Area,
     pub dark: bool,
     pub show_help: bool,
-    pub status: Option<Status>,
+    pub show_units: bool,
+    pub status: StatusLine,
 }
 
 impl Default for WindowView {
@@ -65,7 +69,8 @@ impl Default for WindowView {
             area: Area::Listen,
             dark: true,
             show_help: false,
-            status: None,
+            show_units: false,
+            status: StatusLine::default(),
         }
     }
 }
@@ -121,7 +126,7 @@ impl FrameTiming {
 
 /// What every area reads this frame, and the list it pushes commands into.
 fn area_context<'a>(
-    pass: &'a PassState,
+    (pass, units): (&'a PassState, Units),
     document: &'a OpenDocument,
     jobs: &'a Jobs,
     commands: &'a mut Vec<AppCommand>,
@@ -134,6 +139,7 @@ fn area_context<'a>(
         build_unsaved: document.unsaved(),
         listen_part: pass.listen_part.as_deref(),
         a4_hz: pass.a4_hz,
+        units,
         jobs,
         commands,
     }
@@ -145,6 +151,7 @@ impl TapwrightApp {
         egui::Panel::bottom("status line").show(ui, |ui| self.draw_status_line(ui));
         let label_choices = self.pass.label_choices(self.document.build());
         let busy = self.is_busy();
+        let units = self.units();
         let Self {
             pass,
             document,
@@ -153,9 +160,10 @@ impl TapwrightApp {
             areas,
             input,
             view,
+            preferences,
             ..
         } = self;
-        let mut ctx = area_context(pass, document, jobs, commands);
+        let mut ctx = area_context((pass, units), document, jobs, commands);
         match view.area {
             Area::Listen => {
                 let label_sets: Vec<&str> = LABEL_SETS.iter().map(|s| s.0).collect();
@@ -198,11 +206,19 @@ impl TapwrightApp {
         }
         if view.show_help {
             let mut open = true;
+            let recent: Vec<_> = view.status.recent().cloned().collect();
             egui::Window::new("Help and caution")
                 .open(&mut open)
                 .default_size([520.0, 420.0])
-                .show(ui.ctx(), help::show);
+                .show(ui.ctx(), |ui| help::show(ui, &recent));
             view.show_help = open;
+        }
+        if view.show_units {
+            let kept_in = preferences.folder.as_deref();
+            let chosen = units_window::show(ui.ctx(), &mut view.show_units, units, kept_in);
+            if let Some(units) = chosen {
+                commands.push(AppCommand::SetUnits(units));
+            }
         }
     }
 
@@ -224,6 +240,16 @@ impl TapwrightApp {
             ui.with_layout(egui::Layout::right_to_left(egui::Align::Center), |ui| {
                 if ui.selectable_label(self.view.show_help, "Help").clicked() {
                     self.view.show_help = !self.view.show_help;
+                }
+                let units_text = format!("Units: {}", self.units().name());
+                if ui
+                    .selectable_label(self.view.show_units, units_text)
+                    .on_hover_text(
+                        "Millimetres or inches, grams or ounces, °C or °F, litres or cubic inches",
+                    )
+                    .clicked()
+                {
+                    self.view.show_units = !self.view.show_units;
                 }
                 let theme_text = if self.view.dark {
                     "Light theme"
@@ -255,30 +281,12 @@ impl TapwrightApp {
     }
 
     fn draw_status_line(&mut self, ui: &mut egui::Ui) {
-        const CAUTION_LINE: &str =
-            "Keep sound levels low, tools guarded and dust extracted; see Help for the cautions.";
-        ui.horizontal(|ui| {
-            match &self.view.status {
-                Some(status) if status.is_error => {
-                    ui.colored_label(ui.visuals().error_fg_color, &status.text);
-                }
-                Some(status) => {
-                    ui.label(&status.text);
-                }
-                None => {
-                    ui.weak("Tap the plate near the microphone; taps and modes appear here.");
-                }
-            }
-            if self.view.status.is_some() && ui.small_button("Dismiss").clicked() {
-                self.view.status = None;
-            }
-            ui.with_layout(egui::Layout::right_to_left(egui::Align::Center), |ui| {
-                ui.weak(CAUTION_LINE);
-            });
-        });
+        self.view.status.draw(ui);
     }
 
-    /// A WAV file dropped on the window is opened in Listen.
+    /// A file dropped on the window: a recording is opened in Listen, a
+    /// build file (.ron) in the Ledger; anything else is named in the
+    /// status line.
     pub(super) fn take_dropped_files(&mut self, ctx: &egui::Context) {
         let dropped: Vec<PathBuf> = ctx.input(|i| {
             i.raw
@@ -288,9 +296,23 @@ impl TapwrightApp {
                 .filter(|p| !p.as_os_str().is_empty())
                 .collect()
         });
-        if let Some(path) = dropped.into_iter().next() {
-            self.commands
-                .push(AppCommand::Listen(ListenCommand::OpenRecording(path)));
+        let Some(path) = dropped.into_iter().next() else {
+            return;
+        };
+        match dropped_kind(&path) {
+            Dropped::Recording => self
+                .commands
+                .push(AppCommand::Listen(ListenCommand::OpenRecording(path))),
+            Dropped::Build => self.commands.push(AppCommand::OpenBuild(path)),
+            Dropped::Other => self.set_error(format!(
+                "{} is neither a recording ({}) nor a build file (.ron)",
+                path.display(),
+                READABLE_EXTENSIONS
+                    .iter()
+                    .map(|e| format!(".{e}"))
+                    .collect::<Vec<_>>()
+                    .join(", ")
+            )),
         }
     }
 
@@ -304,6 +326,29 @@ impl TapwrightApp {
                 ctx.request_repaint_after(left);
             }
         }
+    }
+}
+
+/// What a dropped file is taken for, by its name's ending (any case).
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+enum Dropped {
+    Recording,
+    Build,
+    Other,
+}
+
+fn dropped_kind(path: &std::path::Path) -> Dropped {
+    let extension = path
+        .extension()
+        .and_then(|e| e.to_str())
+        .map(str::to_ascii_lowercase)
+        .unwrap_or_default();
+    if READABLE_EXTENSIONS.contains(&extension.as_str()) {
+        Dropped::Recording
+    } else if extension == "ron" {
+        Dropped::Build
+    } else {
+        Dropped::Other
     }
 }
 
@@ -332,4 +377,38 @@ pub(super) fn set_text_sizes(ctx: &egui::Context) {
         );
         style.spacing.item_spacing = egui::vec2(8.0, 5.0);
     });
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn dropped_files_are_taken_by_their_ending_in_any_case() {
+        for name in [
+            "taps.wav",
+            "TAPS.WAV",
+            "phone.m4a",
+            "take.Flac",
+            "x.MP3",
+            "y.ogg",
+        ] {
+            assert_eq!(
+                dropped_kind(std::path::Path::new(name)),
+                Dropped::Recording,
+                "{name}"
+            );
+        }
+        assert_eq!(
+            dropped_kind(std::path::Path::new("violin.RON")),
+            Dropped::Build
+        );
+        for name in ["notes.txt", "report.html", "no ending"] {
+            assert_eq!(
+                dropped_kind(std::path::Path::new(name)),
+                Dropped::Other,
+                "{name}"
+            );
+        }
+    }
 }

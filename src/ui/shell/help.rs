@@ -1,9 +1,13 @@
-//! The Help window: how to use Listen, and the caution note.
+//! The Help window: how to use Listen, the caution note, and the latest
+//! messages of the status line in full.
 
 use eframe::egui;
 
-/// Draws the help text.
-pub fn show(ui: &mut egui::Ui) {
+use super::status::full_text;
+use super::Status;
+
+/// Draws the help text, with `recent` status messages (oldest first).
+pub fn show(ui: &mut egui::Ui, recent: &[Status]) {
     egui::ScrollArea::vertical().id_salt("help scroll").show(ui, |ui| {
         ui.heading("Listen");
         ui.label(
@@ -47,6 +51,27 @@ pub fn show(ui: &mut egui::Ui) {
         ui.label(
             "These notes do not replace your local workshop-safety rules or professional \
              practice; follow those first.",
+        );
+        ui.add_space(8.0);
+        ui.heading("Messages");
+        if recent.is_empty() {
+            ui.weak("No messages yet.");
+        }
+        for status in recent.iter().rev() {
+            let text = full_text(status);
+            if status.is_error {
+                ui.colored_label(ui.visuals().error_fg_color, text);
+            } else {
+                ui.label(text);
+            }
+        }
+        ui.add_space(8.0);
+        ui.heading("Units");
+        ui.label(
+            "Units in the top bar chooses millimetres or inches, grams or ounces, °C or °F and \
+             litres or cubic inches for every field, table and chart and for the build report. \
+             Build files always keep millimetres, grams, °C and litres, so a build reads the \
+             same on any workbench.",
         );
         ui.add_space(8.0);
         ui.heading("About");

@@ -7,7 +7,7 @@ use std::path::PathBuf;
 use std::sync::Arc;
 use std::time::{Duration, Instant};
 
-use super::{file_name, work, StartSource, TapwrightApp};
+use super::{file_name, work, StartSource, Status, TapwrightApp};
 use crate::analysis::Tap;
 use crate::audio::{
     AudioError, CaptureEvent, CaptureHandle, CaptureSettings, Notify, SourceChoice,
@@ -162,10 +162,12 @@ impl TapwrightApp {
                 if may_fall_back {
                     self.input.fell_back_to_demo = true;
                     self.open_sample_build_if_wanted();
-                    self.set_message(format!(
-                        "No microphone could be opened ({}); playing the bundled demo recording instead.",
-                        problem.trim_end_matches('.')
-                    ));
+                    // One short line; the reason on hover and in Help.
+                    self.view.status.show(Status {
+                        text: "No microphone could be opened, so the bundled demo recording plays instead.".to_owned(),
+                        is_error: false,
+                        detail: Some(problem),
+                    });
                     self.start_source(SourcePick::Demo);
                 } else {
                     self.input.view.state = SourceState::Failed(problem.clone());
@@ -210,6 +212,9 @@ impl TapwrightApp {
                 "Some sound was lost because the computer fell behind ({dropped_samples_total} samples so far)."
             )),
             CaptureEvent::Status { message } => self.set_message(sentence(&message)),
+            CaptureEvent::NotLive { message } => self.set_message(sentence(&format!(
+                "{message}; what did not fit the buffer was skipped"
+            ))),
             CaptureEvent::DeviceLost { message } => {
                 let text = sentence(&message);
                 view.state = SourceState::Trouble(text.clone());
@@ -245,10 +250,10 @@ impl TapwrightApp {
         }
     }
 
-    /// Reads a WAV file on the job runner and shows its taps as the pass.
+    /// Reads a recording on the job runner and shows its taps as the pass.
     pub(super) fn open_recording(&mut self, path: PathBuf) {
         if path.as_os_str().is_empty() {
-            self.set_error("Type the path of a WAV file first.".to_owned());
+            self.set_error("Type the path of a recording first.".to_owned());
             return;
         }
         self.input.stop();

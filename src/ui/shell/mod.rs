@@ -20,6 +20,8 @@ mod help;
 mod input;
 mod prompts;
 mod saver;
+mod status;
+mod units_window;
 mod window;
 mod work;
 
@@ -31,11 +33,12 @@ use eframe::egui;
 use crate::analysis::{PassResult, DEFAULT_A4_HZ};
 use crate::audio::{OutputChoice, Pacing};
 use crate::ledger::Build;
-use crate::text::sentence;
+use crate::text::{sentence, Units};
 use crate::ui::areas::drive::{self, DriveAreaState};
 use crate::ui::commands::{AppCommand, Area, SourcePick};
 use crate::ui::context::InputView;
 use crate::ui::jobs::{Inbox, Jobs};
+use crate::ui::preferences::{self, Preferences};
 use crate::ui::session::ListenSession;
 
 use document::OpenDocument;
@@ -77,6 +80,11 @@ pub struct AppOptions {
     /// What the demo source replays (None: the bundled demo recording);
     /// tests give their own taps here, to play them as if live.
     pub demo_recording: Option<crate::wav_io::MonoRecording>,
+    /// The folder whose `preferences.ron` holds the maker's units between
+    /// runs (the window passes the user's configuration folder, see
+    /// `ui::preferences`); None: nothing is read or written and the window
+    /// starts in metric units, as tests do.
+    pub preferences_folder: Option<PathBuf>,
 }
 
 impl Default for AppOptions {
@@ -89,6 +97,7 @@ impl Default for AppOptions {
             started_at: None,
             drive_output: OutputChoice::default(),
             demo_recording: None,
+            preferences_folder: None,
         }
     }
 }
@@ -115,6 +124,19 @@ pub struct Status {
     pub text: String,
     /// True for problems.
     pub is_error: bool,
+    /// More about it (the reason behind a short sentence), shown on hover
+    /// and in Help.
+    pub detail: Option<String>,
+}
+
+/// The preferences in force and where they are kept.
+#[derive(Debug)]
+struct PreferencesState {
+    current: Preferences,
+    /// None: not kept between runs.
+    folder: Option<PathBuf>,
+    /// Why the kept preferences could not be read, until shown.
+    problem: Option<String>,
 }
 
 /// The pass being measured in Listen, and how its modes are named.
@@ -161,6 +183,7 @@ pub struct TapwrightApp {
     document: OpenDocument,
     areas: AreaStates,
     view: WindowView,
+    preferences: PreferencesState,
     /// What the areas asked for this frame, applied after drawing.
     commands: Vec<AppCommand>,
     timing: FrameTiming,
@@ -176,7 +199,16 @@ impl TapwrightApp {
         };
         let jobs = Jobs::default();
         let input = InputState::new(pick);
+        let (current, problem) = match &options.preferences_folder {
+            Some(folder) => preferences::load(folder),
+            None => (Preferences::default(), None),
+        };
         Self {
+            preferences: PreferencesState {
+                current,
+                folder: options.preferences_folder.clone(),
+                problem,
+            },
             ctx: None,
             work: jobs.inbox(),
             document: OpenDocument::new(&jobs),
@@ -213,7 +245,17 @@ impl TapwrightApp {
 
     /// The status line.
     pub fn status(&self) -> Option<&Status> {
-        self.view.status.as_ref()
+        self.view.status.current()
+    }
+
+    /// The latest status sentences, oldest first (Help lists them).
+    pub fn recent_messages(&self) -> impl Iterator<Item = &Status> {
+        self.view.status.recent()
+    }
+
+    /// The maker's units.
+    pub fn units(&self) -> Units {
+        self.preferences.current.units
     }
 
     /// The area shown.
@@ -314,20 +356,41 @@ impl TapwrightApp {
         if let Some(path) = self.options.build.clone() {
             self.commands.push(AppCommand::OpenBuild(path));
         }
+        if let Some(problem) = self.preferences.problem.take() {
+            self.set_error(problem);
+        }
     }
 
     fn set_message(&mut self, text: String) {
-        self.view.status = Some(Status {
+        self.view.status.show(Status {
             text,
             is_error: false,
+            detail: None,
         });
     }
 
     fn set_error(&mut self, text: String) {
-        self.view.status = Some(Status {
+        self.view.status.show(Status {
             text: sentence(&text),
             is_error: true,
+            detail: None,
         });
+    }
+
+    /// Shows lengths, masses, temperatures and volumes in `units` and
+    /// keeps the choice (in the background) when the window has a folder
+    /// for it.
+    fn set_units(&mut self, units: Units) {
+        if units == self.preferences.current.units {
+            return;
+        }
+        self.preferences.current.units = units;
+        if let Some(folder) = self.preferences.folder.clone() {
+            let preferences = self.preferences.current;
+            self.work.spawn("preferences", move || {
+                ShellJob::PreferencesSaved(preferences::save(&folder, &preferences))
+            });
+        }
     }
 }
 

@@ -39,6 +39,7 @@ pub fn run_workbench(options: &WorkbenchOptions) -> anyhow::Result<()> {
         build: options.build.clone(),
         sample_build_with_demo: true,
         started_at: timing.then_some(started_at),
+        preferences_folder: crate::ui::preferences::default_folder(),
         ..AppOptions::default()
     };
     let native_options = eframe::NativeOptions {

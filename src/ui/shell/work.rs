@@ -17,7 +17,7 @@ use crate::ui::session::taps_of_stream;
 /// What a file dialog of the shell was opened for.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum FilePurpose {
-    /// Open a WAV recording.
+    /// Open a recording.
     OpenRecording,
     /// Save the kept taps as WAV.
     SaveTaps,
@@ -64,6 +64,8 @@ pub enum ShellJob {
     TapsRemeasured(Vec<(usize, TapAnalysis)>),
     /// A file was written: the sentence to show, or the problem.
     Saved(Result<String, String>),
+    /// The preferences were written (or why not).
+    PreferencesSaved(Result<(), String>),
     /// A build file was read, with the fingerprint of what was read.
     BuildLoaded {
         path: PathBuf,
@@ -99,7 +101,8 @@ pub fn choose_file(purpose: FilePurpose, suggested_name: &str) -> ShellJob {
     ShellJob::FileChosen { purpose, path }
 }
 
-/// Reads a WAV file and measures every tap in it.
+/// Reads a recording (any format `wav_io` reads) and measures every tap in
+/// it.
 pub fn analyse_recording(
     path: PathBuf,
     trigger: TriggerSettings,

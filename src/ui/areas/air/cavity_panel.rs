@@ -11,7 +11,10 @@ use crate::acoustics::{
 
 use super::form::{GeometryDraft, OpeningDraft, OpeningKind, Preset, VolumeUnit};
 use super::{AirAreaState, Checked};
-use crate::text::{capitalised, note_text, num, number_text, parse_number, sentence, signed};
+use crate::text::units::{convert_typed, field_text, parse_in};
+use crate::text::{
+    capitalised, note_text, num, number_text, parse_number, sentence, signed, LengthUnit,
+};
 
 /// Width of a number field, points.
 const FIELD_WIDTH: f32 = 72.0;
@@ -67,14 +70,15 @@ pub(super) fn inputs(ui: &mut egui::Ui, state: &mut AirAreaState) -> bool {
             ui.end_row();
 
             let label = ui.label("Wall thickness");
+            let length_symbol = draft.length_unit().symbol();
             ui.horizontal(|ui| {
-                changed |= number_field(ui, &mut draft.thickness_mm)
+                changed |= number_field(ui, &mut draft.thickness)
                     .labelled_by(label.id)
                     .on_hover_text(
                         "Thickness of the top (or rim) at the openings; 0 for a thin wall",
                     )
                     .changed();
-                ui.label("mm");
+                ui.label(length_symbol);
             });
             ui.end_row();
         });
@@ -94,7 +98,11 @@ fn number_field(ui: &mut egui::Ui, text: &mut String) -> egui::Response {
 
 fn openings_list(ui: &mut egui::Ui, draft: &mut GeometryDraft) -> bool {
     let mut changed = false;
-    ui.label("Openings, in mm: diameter, or length × (mean) width");
+    let unit = draft.length_unit();
+    let symbol = unit.symbol();
+    ui.label(format!(
+        "Openings, in {symbol}: diameter, or length × (mean) width"
+    ));
     let mut remove = None;
     egui::Grid::new("air openings grid")
         .num_columns(6)
@@ -115,22 +123,22 @@ fn openings_list(ui: &mut egui::Ui, draft: &mut GeometryDraft) -> bool {
                     .response
                     .accessible_name(format!("Opening {number} shape"));
                 if kind != opening.kind {
-                    opening.set_kind(kind);
+                    opening.set_kind(kind, unit);
                     changed = true;
                 }
                 let (first_name, second_name) = opening.kind.size_names();
                 // Each size in its own grid cell: a field inside a
                 // horizontal cell is squeezed to the cell's width.
-                changed |= number_field(ui, &mut opening.first_mm)
+                changed |= number_field(ui, &mut opening.first)
                     .accessible_name(format!("Opening {number} {first_name}"))
-                    .on_hover_text(format!("{}, mm", capitalised(first_name)))
+                    .on_hover_text(format!("{}, {symbol}", capitalised(first_name)))
                     .changed();
                 match second_name {
                     Some(second_name) => {
                         ui.label("×");
-                        changed |= number_field(ui, &mut opening.second_mm)
+                        changed |= number_field(ui, &mut opening.second)
                             .accessible_name(format!("Opening {number} {second_name}"))
-                            .on_hover_text(format!("{}, mm", capitalised(second_name)))
+                            .on_hover_text(format!("{}, {symbol}", capitalised(second_name)))
                             .changed();
                     }
                     None => {
@@ -162,7 +170,7 @@ fn openings_list(ui: &mut egui::Ui, draft: &mut GeometryDraft) -> bool {
             .accessible_name("Add a round hole")
             .clicked()
         {
-            draft.openings.push(OpeningDraft::round(50.0));
+            draft.openings.push(OpeningDraft::round(50.0, unit));
             changed = true;
         }
         if ui
@@ -170,12 +178,13 @@ fn openings_list(ui: &mut egui::Ui, draft: &mut GeometryDraft) -> bool {
             .accessible_name("Add an oval")
             .clicked()
         {
-            draft
-                .openings
-                .push(OpeningDraft::from_opening(&Opening::Oval {
+            draft.openings.push(OpeningDraft::from_opening(
+                &Opening::Oval {
                     length_mm: 60.0,
                     width_mm: 40.0,
-                }));
+                },
+                unit,
+            ));
             changed = true;
         }
         if ui
@@ -183,7 +192,7 @@ fn openings_list(ui: &mut egui::Ui, draft: &mut GeometryDraft) -> bool {
             .accessible_name("Add a slot")
             .clicked()
         {
-            draft.openings.push(OpeningDraft::slot(70.0, 8.0));
+            draft.openings.push(OpeningDraft::slot(70.0, 8.0, unit));
             changed = true;
         }
     });
@@ -241,12 +250,13 @@ fn air_fields(ui: &mut egui::Ui, draft: &mut GeometryDraft) -> bool {
     let mut changed = false;
     ui.strong("Air");
     let uses_humidity = draft.sound_model == SpeedOfSoundModel::Cramer;
+    let temperature_symbol = draft.temperature_unit().symbol();
     egui::Grid::new("air conditions grid")
         .num_columns(2)
         .spacing([8.0, 4.0])
         .show(ui, |ui| {
             let rows: [(&str, &str, &mut String, bool); 3] = [
-                ("Air temperature", "°C", &mut draft.temp_c, true),
+                ("Air temperature", temperature_symbol, &mut draft.temp, true),
                 (
                     "Relative humidity",
                     "%",
@@ -279,15 +289,22 @@ fn air_fields(ui: &mut egui::Ui, draft: &mut GeometryDraft) -> bool {
             }
 
             let label = ui.label("Speed of sound model");
+            let temperature = draft.temperature_unit();
             let mut model = draft.sound_model;
             egui::ComboBox::from_id_salt("air sound model")
                 .selected_text(model_name(model))
                 .width(120.0)
                 .show_ui(ui, |ui| {
                     ui.selectable_value(&mut model, SpeedOfSoundModel::Cramer, "Cramer 1993")
-                        .on_hover_text("Temperature, humidity, pressure and CO₂; 0 to 30 °C");
+                        .on_hover_text(format!(
+                            "Temperature, humidity, pressure and CO₂; {}",
+                            model_range(SpeedOfSoundModel::Cramer, temperature)
+                        ));
                     ui.selectable_value(&mut model, SpeedOfSoundModel::Iso9613, "ISO 9613-1")
-                        .on_hover_text("Temperature only; −20 to 50 °C");
+                        .on_hover_text(format!(
+                            "Temperature only; {}",
+                            model_range(SpeedOfSoundModel::Iso9613, temperature)
+                        ));
                 })
                 .response
                 .labelled_by(label.id);
@@ -297,13 +314,29 @@ fn air_fields(ui: &mut egui::Ui, draft: &mut GeometryDraft) -> bool {
             }
             ui.end_row();
         });
+    let range = model_range(draft.sound_model, draft.temperature_unit());
     ui.weak(match draft.sound_model {
         SpeedOfSoundModel::Cramer => {
-            "Cramer 1993: temperature, humidity and pressure, for 0 to 30 °C."
+            format!("Cramer 1993: temperature, humidity and pressure, for {range}.")
         }
-        SpeedOfSoundModel::Iso9613 => "ISO 9613-1: temperature only, for −20 to 50 °C.",
+        SpeedOfSoundModel::Iso9613 => format!("ISO 9613-1: temperature only, for {range}."),
     });
     changed
+}
+
+/// "0 to 30 °C" / "32 to 86 °F": the air temperatures a model covers
+/// (Cramer 1993: 0 to 30 °C; ISO 9613-1: −20 to 50 °C).
+fn model_range(model: SpeedOfSoundModel, unit: crate::text::TemperatureUnit) -> String {
+    let (low_c, high_c) = match model {
+        SpeedOfSoundModel::Cramer => (0.0, 30.0),
+        SpeedOfSoundModel::Iso9613 => (-20.0, 50.0),
+    };
+    format!(
+        "{} to {} {}",
+        num(unit.from_c(low_c), 0),
+        num(unit.from_c(high_c), 0),
+        unit.symbol()
+    )
 }
 
 // ----- the estimate -----------------------------------------------------------
@@ -312,6 +345,9 @@ fn air_fields(ui: &mut egui::Ui, draft: &mut GeometryDraft) -> bool {
 /// is none.
 pub(super) fn estimate(ui: &mut egui::Ui, draft: &GeometryDraft, checked: &Checked, a4_hz: f64) {
     ui.strong("Rigid-wall estimate");
+    let units = draft.units;
+    let length = units.length;
+    let (step_mm, step_name) = length.slope_step();
     let speed = draft
         .air()
         .and_then(|air| speed_of_sound_m_s(&air, draft.sound_model).map_err(|e| e.to_string()));
@@ -335,7 +371,10 @@ pub(super) fn estimate(ui: &mut egui::Ui, draft: &GeometryDraft, checked: &Check
                 && message.contains("temperature")
                 && message.contains("outside")
             {
-                ui.weak("For air outside 0 to 30 °C, choose the ISO 9613-1 model.");
+                ui.weak(format!(
+                    "For air outside {}, choose the ISO 9613-1 model.",
+                    model_range(SpeedOfSoundModel::Cramer, units.temperature)
+                ));
             }
             return;
         }
@@ -347,15 +386,18 @@ pub(super) fn estimate(ui: &mut egui::Ui, draft: &GeometryDraft, checked: &Check
         .num_columns(5)
         .spacing([10.0, 3.0])
         .show(ui, |ui| {
-            for title in ["Opening", "Size", "Area", "Conductance", "Hz per mm"] {
+            let per_step = format!("Hz per {step_name}");
+            for title in ["Opening", "Size", "Area", "Conductance", per_step.as_str()] {
                 ui.strong(title);
             }
             ui.end_row();
             for (index, opening) in estimate.openings.iter().enumerate() {
                 ui.label(format!("{}. {}", index + 1, opening.opening.kind()));
-                ui.monospace(opening.opening.size_text());
-                ui.monospace(format!("{} cm²", num(opening.area_m2 * 1e4, 2)));
-                ui.monospace(format!("{} mm", num(opening.conductance_m * 1e3, 1)));
+                ui.monospace(
+                    length.opening_text(opening.opening.is_round(), &opening.opening.sizes_mm()),
+                );
+                ui.monospace(length.area_text(opening.area_m2));
+                ui.monospace(length.size_text(opening.conductance_m * 1e3));
                 let slope = estimate
                     .sensitivities
                     .hz_per_mm_of_opening
@@ -366,20 +408,16 @@ pub(super) fn estimate(ui: &mut egui::Ui, draft: &GeometryDraft, checked: &Check
                     Opening::Round { .. } => "diameter",
                     _ => "length",
                 };
-                ui.monospace(signed(slope, 2))
-                    .on_hover_text(format!("Hz per mm of this opening's {size_name}"));
+                ui.monospace(signed(slope * step_mm, 2))
+                    .on_hover_text(format!("Hz per {step_name} of this opening's {size_name}"));
                 ui.end_row();
             }
             ui.strong("Total");
             ui.label("");
-            ui.monospace(format!(
-                "{} cm²",
-                num(
-                    estimate.openings.iter().map(|o| o.area_m2).sum::<f64>() * 1e4,
-                    2
-                )
-            ));
-            ui.monospace(format!("{} mm", num(estimate.conductance_m * 1e3, 1)));
+            ui.monospace(
+                length.area_text(estimate.openings.iter().map(|o| o.area_m2).sum::<f64>()),
+            );
+            ui.monospace(length.size_text(estimate.conductance_m * 1e3));
             ui.label("");
             ui.end_row();
         });
@@ -404,22 +442,35 @@ pub(super) fn estimate(ui: &mut egui::Ui, draft: &GeometryDraft, checked: &Check
         .num_columns(2)
         .spacing([10.0, 3.0])
         .show(ui, |ui| {
-            ui.label("Per litre more volume");
-            ui.monospace(format!("{} Hz", signed(slopes.hz_per_litre, 2)));
+            let (volume_step_l, volume_step) = units.volume.slope_step();
+            ui.label(format!("Per {volume_step} more volume"));
+            ui.monospace(format!(
+                "{} Hz",
+                signed(slopes.hz_per_litre * volume_step_l, 2)
+            ));
             ui.end_row();
-            ui.label("Per °C warmer air");
-            ui.monospace(format!("{} Hz", signed(slopes.hz_per_degree_c, 2)));
+            ui.label(format!("Per {} warmer air", units.temperature.symbol()));
+            ui.monospace(format!(
+                "{} Hz",
+                signed(units.temperature.per_degree(slopes.hz_per_degree_c), 2)
+            ));
             ui.end_row();
-            ui.label("Per mm thicker wall");
-            ui.monospace(format!("{} Hz", signed(slopes.hz_per_mm_of_thickness, 2)));
+            ui.label(format!("Per {step_name} thicker wall"));
+            ui.monospace(format!(
+                "{} Hz",
+                signed(slopes.hz_per_mm_of_thickness * step_mm, 2)
+            ));
             ui.end_row();
             for (index, slope) in slopes.hz_per_mm_of_opening.iter().enumerate() {
                 let size_name = match estimate.openings.get(index).map(|o| o.opening) {
                     Some(Opening::Round { .. }) => "diameter",
                     _ => "length",
                 };
-                ui.label(format!("Per mm more {size_name} of opening {}", index + 1));
-                ui.monospace(format!("{} Hz", signed(*slope, 2)));
+                ui.label(format!(
+                    "Per {step_name} more {size_name} of opening {}",
+                    index + 1
+                ));
+                ui.monospace(format!("{} Hz", signed(*slope * step_mm, 2)));
                 ui.end_row();
             }
         });
@@ -460,8 +511,10 @@ pub struct SolveDraft {
     /// The opening (index) the solved one takes the place of; None: an
     /// added opening.
     pub replaces: Option<usize>,
-    /// The slot's mean width, mm, as typed.
-    pub slot_width_mm: String,
+    /// The slot's mean width, as typed in `unit`.
+    pub slot_width: String,
+    /// The unit of `slot_width` (the maker's length unit, followed).
+    pub unit: LengthUnit,
 }
 
 impl Default for SolveDraft {
@@ -471,7 +524,8 @@ impl Default for SolveDraft {
             target_hz: String::new(),
             solve_for: SolveFor::Volume,
             replaces: None,
-            slot_width_mm: "8".to_owned(),
+            slot_width: "8".to_owned(),
+            unit: LengthUnit::Millimetre,
         };
         solve.fit_to(&GeometryDraft::default());
         solve
@@ -482,6 +536,7 @@ impl SolveDraft {
     /// Picks a sensible thing to solve for this body: the last round hole's
     /// diameter, else the last slot's length at its width, else the volume.
     pub fn fit_to(&mut self, draft: &GeometryDraft) {
+        self.unit = draft.length_unit();
         let last_of = |kind| draft.openings.iter().rposition(|o| o.kind == kind);
         if let Some(index) = last_of(OpeningKind::Round) {
             self.solve_for = SolveFor::RoundDiameter;
@@ -489,11 +544,19 @@ impl SolveDraft {
         } else if let Some(index) = last_of(OpeningKind::Slot) {
             self.solve_for = SolveFor::SlotLength;
             self.replaces = Some(index);
-            self.slot_width_mm = draft.openings[index].second_mm.clone();
+            self.slot_width = draft.openings[index].second.clone();
         } else {
             self.solve_for = SolveFor::Volume;
             self.replaces = None;
         }
+    }
+}
+
+impl SolveDraft {
+    /// Rewrites the typed width in the maker's length unit.
+    pub fn follow_units(&mut self, unit: LengthUnit) {
+        convert_typed(&mut self.slot_width, self.unit, unit);
+        self.unit = unit;
     }
 }
 
@@ -540,7 +603,7 @@ fn run_solve(solve: &SolveDraft, draft: &GeometryDraft) -> Result<(Solved, f64),
                         .map_err(acoustics)?,
                 }
             } else {
-                let width_mm = parse_number("the slot's mean width", &solve.slot_width_mm)?;
+                let width_mm = parse_in(solve.unit, "the slot's mean width", &solve.slot_width)?;
                 Opening::Slot {
                     length_mm: solve_slot_length_mm(&geometry, width_mm, target_hz)
                         .map_err(acoustics)?,
@@ -567,7 +630,7 @@ fn run_solve(solve: &SolveDraft, draft: &GeometryDraft) -> Result<(Solved, f64),
 fn apply_solved(draft: &mut GeometryDraft, solved: &Solved) {
     match solved {
         Solved::Opening { index, opening } => {
-            let typed = OpeningDraft::from_opening(opening);
+            let typed = OpeningDraft::from_opening(opening, draft.length_unit());
             match index.and_then(|i| draft.openings.get_mut(i)) {
                 Some(slot) => *slot = typed,
                 None => draft.openings.push(typed),
@@ -641,11 +704,11 @@ pub(super) fn solve(ui: &mut egui::Ui, state: &mut AirAreaState) -> bool {
                 let label = ui.label("Slot mean width");
                 ui.horizontal(|ui| {
                     ui.add(
-                        egui::TextEdit::singleline(&mut solve.slot_width_mm)
+                        egui::TextEdit::singleline(&mut solve.slot_width)
                             .desired_width(FIELD_WIDTH),
                     )
                     .labelled_by(label.id);
-                    ui.label("mm");
+                    ui.label(solve.unit.symbol());
                 });
                 ui.end_row();
             }
@@ -662,10 +725,13 @@ pub(super) fn solve(ui: &mut egui::Ui, state: &mut AirAreaState) -> bool {
             return false;
         }
     };
+    let length = state.draft.length_unit();
+    // The solved size to 0.01 mm or 0.001 in.
+    let size = |mm: f64| num(length.from_mm(mm), length.thickness_decimals());
     let (answer, button) = match &solved {
         Solved::Opening { opening, .. } => match *opening {
             Opening::Round { diameter_mm } => (
-                format!("Round hole Ø {} mm", num(diameter_mm, 2)),
+                format!("Round hole Ø {} {}", size(diameter_mm), length.symbol()),
                 "Apply this diameter",
             ),
             Opening::Slot {
@@ -673,13 +739,17 @@ pub(super) fn solve(ui: &mut egui::Ui, state: &mut AirAreaState) -> bool {
                 mean_width_mm,
             } => (
                 format!(
-                    "Slot {} × {} mm",
-                    num(length_mm, 2),
-                    number_text(mean_width_mm)
+                    "Slot {} × {} {}",
+                    size(length_mm),
+                    field_text(length, mean_width_mm),
+                    length.symbol()
                 ),
                 "Apply this length",
             ),
-            Opening::Oval { .. } => (opening.size_text(), "Apply this size"),
+            Opening::Oval { .. } => (
+                length.opening_text(false, &opening.sizes_mm()),
+                "Apply this size",
+            ),
         },
         Solved::Volume { volume_m3 } => {
             let unit = state.draft.volume_unit;

@@ -339,11 +339,13 @@ pub(super) fn air_check(
     if let Some(temp_c) = pass_temp_c {
         let typed_c = estimate_temp_c(checked);
         if let Some(typed_c) = typed_c.filter(|t| (t - temp_c).abs() >= 1.0) {
+            let unit = ctx.units.temperature;
             ui.weak(format!(
-                "The pass was measured at {} °C and the estimate uses {} °C ({} Hz per °C).",
-                num(temp_c, 1),
-                num(typed_c, 1),
-                signed(estimate.sensitivities.hz_per_degree_c, 2)
+                "The pass was measured at {} and the estimate uses {} ({} Hz per {}).",
+                unit.text(temp_c),
+                unit.text(typed_c),
+                signed(unit.per_degree(estimate.sensitivities.hz_per_degree_c), 2),
+                unit.symbol()
             ));
         }
     }

@@ -1,6 +1,7 @@
-//! What the maker types in the Air area, kept as text, and how it becomes a
-//! [`CavityGeometry`]. No egui here: presets and unit conversion, so they
-//! can be tested on their own.
+//! What the maker types in the Air area, kept as text in the maker's units
+//! (followed when they change), and how it becomes a [`CavityGeometry`] in
+//! mm, m³ and °C. No egui here: presets and unit conversion, so they can be
+//! tested on their own.
 //!
 //! Every refusal is one sentence that names the field ("The volume \"abc\"
 //! is not a number."), read by the one rule of `text::typed`.
@@ -9,9 +10,11 @@ use crate::acoustics::{
     AirConditions, CavityGeometry, EndCorrection, Opening, SpeedOfSoundModel, M3_PER_CM3,
     M3_PER_IN3, M3_PER_LITRE,
 };
-use crate::text::{number_text, parse_number};
+use crate::text::units::{convert_typed, field_text, parse_in, Unit};
+use crate::text::{number_text, parse_number, LengthUnit, TemperatureUnit, Units};
 
-/// The unit the volume is typed in.
+/// The unit the volume is typed in: the maker's (litres or cubic inches),
+/// or cubic centimetres, which this field alone offers.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
 pub enum VolumeUnit {
     /// Litres.
@@ -59,6 +62,14 @@ impl VolumeUnit {
         }
     }
 
+    /// The field's unit for the maker's volume unit.
+    pub fn of(unit: crate::text::VolumeUnit) -> Self {
+        match unit {
+            crate::text::VolumeUnit::Litre => VolumeUnit::Litre,
+            crate::text::VolumeUnit::CubicInch => VolumeUnit::CubicInch,
+        }
+    }
+
     /// Cubic metres in one of this unit.
     pub fn m3_per_unit(self) -> f64 {
         match self {
@@ -66,6 +77,18 @@ impl VolumeUnit {
             VolumeUnit::CubicCentimetre => M3_PER_CM3,
             VolumeUnit::CubicInch => M3_PER_IN3,
         }
+    }
+}
+
+impl Unit for VolumeUnit {
+    fn symbol(self) -> &'static str {
+        VolumeUnit::symbol(self)
+    }
+    fn to_stored(self, value: f64) -> f64 {
+        self.to_m3(value)
+    }
+    fn from_stored(self, stored: f64) -> f64 {
+        stored / self.m3_per_unit()
     }
 }
 
@@ -109,77 +132,78 @@ impl OpeningKind {
 pub struct OpeningDraft {
     /// Its shape.
     pub kind: OpeningKind,
-    /// Diameter (round) or length (oval, slot), mm, as typed.
-    pub first_mm: String,
-    /// Width (oval) or mean width (slot), mm, as typed; unused for round.
-    pub second_mm: String,
+    /// Diameter (round) or length (oval, slot), as typed in the draft's
+    /// length unit.
+    pub first: String,
+    /// Width (oval) or mean width (slot), as typed; unused for round.
+    pub second: String,
 }
 
 impl OpeningDraft {
-    /// A round hole of this diameter.
-    pub fn round(diameter_mm: f64) -> Self {
-        Self::from_opening(&Opening::Round { diameter_mm })
+    /// A round hole of this diameter, typed in `unit`.
+    pub fn round(diameter_mm: f64, unit: LengthUnit) -> Self {
+        Self::from_opening(&Opening::Round { diameter_mm }, unit)
     }
 
-    /// A slot of this length and mean width.
-    pub fn slot(length_mm: f64, mean_width_mm: f64) -> Self {
-        Self::from_opening(&Opening::Slot {
-            length_mm,
-            mean_width_mm,
-        })
-    }
-
-    /// The draft of an opening.
-    pub fn from_opening(opening: &Opening) -> Self {
-        match *opening {
-            Opening::Round { diameter_mm } => OpeningDraft {
-                kind: OpeningKind::Round,
-                first_mm: number_text(diameter_mm),
-                second_mm: String::new(),
-            },
-            Opening::Oval {
-                length_mm,
-                width_mm,
-            } => OpeningDraft {
-                kind: OpeningKind::Oval,
-                first_mm: number_text(length_mm),
-                second_mm: number_text(width_mm),
-            },
-            Opening::Slot {
+    /// A slot of this length and mean width, typed in `unit`.
+    pub fn slot(length_mm: f64, mean_width_mm: f64, unit: LengthUnit) -> Self {
+        Self::from_opening(
+            &Opening::Slot {
                 length_mm,
                 mean_width_mm,
-            } => OpeningDraft {
-                kind: OpeningKind::Slot,
-                first_mm: number_text(length_mm),
-                second_mm: number_text(mean_width_mm),
             },
+            unit,
+        )
+    }
+
+    /// The draft of an opening, its sizes written in `unit`.
+    pub fn from_opening(opening: &Opening, unit: LengthUnit) -> Self {
+        let sizes = opening.sizes_mm();
+        let size = |index: usize| {
+            sizes
+                .get(index)
+                .map_or_else(String::new, |mm| field_text(unit, *mm))
+        };
+        let kind = match opening {
+            Opening::Round { .. } => OpeningKind::Round,
+            Opening::Oval { .. } => OpeningKind::Oval,
+            Opening::Slot { .. } => OpeningKind::Slot,
+        };
+        OpeningDraft {
+            kind,
+            first: size(0),
+            second: size(1),
         }
     }
 
     /// Changes the shape, keeping the sizes typed where they still make
-    /// sense (a width is offered when the new shape needs one).
-    pub fn set_kind(&mut self, kind: OpeningKind) {
-        if kind != OpeningKind::Round && self.second_mm.trim().is_empty() {
-            self.second_mm = match kind {
-                OpeningKind::Slot => "8".to_owned(),
-                _ => self.first_mm.clone(),
+    /// sense (a width is offered when the new shape needs one: 8 mm for a
+    /// slot, written in `unit`).
+    pub fn set_kind(&mut self, kind: OpeningKind, unit: LengthUnit) {
+        if kind != OpeningKind::Round && self.second.trim().is_empty() {
+            self.second = match kind {
+                OpeningKind::Slot => field_text(unit, 8.0),
+                _ => self.first.clone(),
             };
         }
         self.kind = kind;
     }
 
-    /// The opening, or one sentence naming the field that is not a number.
-    /// `position` is the 1-based place in the list.
-    pub fn to_opening(&self, position: usize) -> Result<Opening, String> {
+    /// The opening in mm (its sizes typed in `unit`), or one sentence
+    /// naming the field that is not a number. `position` is the 1-based
+    /// place in the list.
+    pub fn to_opening(&self, position: usize, unit: LengthUnit) -> Result<Opening, String> {
         let (first_name, second_name) = self.kind.size_names();
-        let first = parse_number(
+        let first = parse_in(
+            unit,
             &format!("the {first_name} of opening {position}"),
-            &self.first_mm,
+            &self.first,
         )?;
         let second = match second_name {
-            Some(name) => parse_number(
+            Some(name) => parse_in(
+                unit,
                 &format!("the {name} of opening {position}"),
-                &self.second_mm,
+                &self.second,
             )?,
             None => 0.0,
         };
@@ -200,18 +224,22 @@ impl OpeningDraft {
 /// The whole cavity as typed.
 #[derive(Clone, Debug, PartialEq)]
 pub struct GeometryDraft {
+    /// The maker's units the fields follow: opening sizes and the wall in
+    /// `units.length`, the air in `units.temperature`; the volume in
+    /// `volume_unit`, which starts as `units.volume`.
+    pub units: Units,
     /// Volume as typed, in `volume_unit`.
     pub volume: String,
     /// The unit of `volume`.
     pub volume_unit: VolumeUnit,
     /// The openings.
     pub openings: Vec<OpeningDraft>,
-    /// Wall thickness at the openings, mm.
-    pub thickness_mm: String,
+    /// Wall thickness at the openings, as typed.
+    pub thickness: String,
     /// End correction model.
     pub end_correction: EndCorrection,
-    /// Air temperature, °C.
-    pub temp_c: String,
+    /// Air temperature, as typed.
+    pub temp: String,
     /// Relative humidity, %.
     pub relative_humidity_pct: String,
     /// Air pressure, kPa.
@@ -223,9 +251,10 @@ pub struct GeometryDraft {
 }
 
 impl Default for GeometryDraft {
-    /// The violin-like body, in default air.
+    /// The violin-like body, in default air, in metric units.
     fn default() -> Self {
-        let mut draft = Self::from_geometry(&CavityGeometry::new(1e-3, Vec::new()));
+        let mut draft =
+            Self::from_geometry(&CavityGeometry::new(1e-3, Vec::new()), Units::metric());
         draft.apply_preset(Preset::ViolinLike);
         draft
     }
@@ -262,19 +291,20 @@ impl Preset {
 }
 
 impl GeometryDraft {
-    /// The draft of a stored geometry; the volume is shown in litres.
-    pub fn from_geometry(geometry: &CavityGeometry) -> Self {
+    /// The draft of a stored geometry, written in `units`.
+    pub fn from_geometry(geometry: &CavityGeometry, units: Units) -> Self {
         let mut draft = GeometryDraft {
+            units,
             volume: String::new(),
-            volume_unit: VolumeUnit::Litre,
+            volume_unit: VolumeUnit::of(units.volume),
             openings: geometry
                 .openings
                 .iter()
-                .map(OpeningDraft::from_opening)
+                .map(|o| OpeningDraft::from_opening(o, units.length))
                 .collect(),
-            thickness_mm: number_text(geometry.wall_thickness_mm),
+            thickness: field_text(units.length, geometry.wall_thickness_mm),
             end_correction: geometry.end_correction,
-            temp_c: number_text(geometry.air.temp_c),
+            temp: field_text(units.temperature, geometry.air.temp_c),
             relative_humidity_pct: number_text(geometry.air.relative_humidity_pct),
             pressure_kpa: number_text(geometry.air.pressure_pa / 1000.0),
             co2_ppm: geometry.air.co2_ppm,
@@ -284,19 +314,54 @@ impl GeometryDraft {
         draft
     }
 
-    /// Replaces the body and openings with a preset; the air stays.
+    /// Replaces the body and openings with a preset (written in the
+    /// draft's units); the air stays.
     pub fn apply_preset(&mut self, preset: Preset) {
+        let unit = self.units.length;
         let (volume_l, openings) = match preset {
             Preset::ViolinLike => (
                 2.0,
-                vec![OpeningDraft::slot(70.0, 8.0), OpeningDraft::slot(70.0, 8.0)],
+                vec![
+                    OpeningDraft::slot(70.0, 8.0, unit),
+                    OpeningDraft::slot(70.0, 8.0, unit),
+                ],
             ),
-            Preset::GuitarLike => (13.0, vec![OpeningDraft::round(86.0)]),
+            Preset::GuitarLike => (13.0, vec![OpeningDraft::round(86.0, unit)]),
         };
-        self.volume_unit = VolumeUnit::Litre;
-        self.volume = number_text(volume_l);
+        self.volume_unit = VolumeUnit::of(self.units.volume);
+        self.set_volume_m3(volume_l * M3_PER_LITRE);
         self.openings = openings;
-        self.thickness_mm = "2.5".to_owned();
+        self.thickness = field_text(unit, 2.5);
+    }
+
+    /// Follows a change of the maker's units: what is typed is rewritten
+    /// in the new units (text that is not a number stays as it is), and
+    /// the volume moves to the new volume unit.
+    pub fn follow_units(&mut self, units: Units) {
+        let old = self.units;
+        if old == units {
+            return;
+        }
+        for opening in &mut self.openings {
+            convert_typed(&mut opening.first, old.length, units.length);
+            convert_typed(&mut opening.second, old.length, units.length);
+        }
+        convert_typed(&mut self.thickness, old.length, units.length);
+        convert_typed(&mut self.temp, old.temperature, units.temperature);
+        self.units = units;
+        if old.volume != units.volume {
+            self.set_volume_unit(VolumeUnit::of(units.volume));
+        }
+    }
+
+    /// The unit opening sizes and the wall are typed in.
+    pub fn length_unit(&self) -> LengthUnit {
+        self.units.length
+    }
+
+    /// The unit the air temperature is typed in.
+    pub fn temperature_unit(&self) -> TemperatureUnit {
+        self.units.temperature
     }
 
     /// Writes a volume into the text, in the chosen unit.
@@ -306,16 +371,13 @@ impl GeometryDraft {
 
     /// Changes the unit, converting the typed volume when it is a number.
     pub fn set_volume_unit(&mut self, unit: VolumeUnit) {
-        let old = self.volume_unit;
+        convert_typed(&mut self.volume, self.volume_unit, unit);
         self.volume_unit = unit;
-        if let Ok(value) = parse_number("the volume", &self.volume) {
-            self.set_volume_m3(old.to_m3(value));
-        }
     }
 
     /// The air conditions, or one sentence naming the field.
     pub fn air(&self) -> Result<AirConditions, String> {
-        let temp_c = parse_number("the air temperature", &self.temp_c)?;
+        let temp_c = parse_in(self.units.temperature, "the air temperature", &self.temp)?;
         // ISO 9613-1 uses the temperature only: the other fields are not
         // read, so a half-typed humidity does not block the result.
         let (relative_humidity_pct, pressure_pa) = match self.sound_model {
@@ -349,9 +411,9 @@ impl GeometryDraft {
             .openings
             .iter()
             .enumerate()
-            .map(|(index, draft)| draft.to_opening(index + 1))
+            .map(|(index, draft)| draft.to_opening(index + 1, self.units.length))
             .collect::<Result<Vec<_>, _>>()?;
-        let wall_thickness_mm = parse_number("the wall thickness", &self.thickness_mm)?;
+        let wall_thickness_mm = parse_in(self.units.length, "the wall thickness", &self.thickness)?;
         Ok(CavityGeometry {
             volume_m3: self.volume_unit.to_m3(volume),
             openings,
@@ -363,10 +425,11 @@ impl GeometryDraft {
     }
 }
 
-/// True when two geometries agree to nine significant digits (a geometry
-/// shown as text and read back is not bit-for-bit the same).
+/// True when two geometries agree to the six significant digits a field
+/// shows (a geometry shown as text, in inches say, and read back is not
+/// bit-for-bit the same).
 pub fn same_geometry(a: &CavityGeometry, b: &CavityGeometry) -> bool {
-    let close = |x: f64, y: f64| (x - y).abs() <= 1e-9 * x.abs().max(y.abs()).max(1e-12);
+    let close = |x: f64, y: f64| (x - y).abs() <= 1e-5 * x.abs().max(y.abs()).max(1e-12);
     let same_opening = |p: &Opening, q: &Opening| match (*p, *q) {
         (Opening::Round { diameter_mm: d1 }, Opening::Round { diameter_mm: d2 }) => close(d1, d2),
         (
@@ -418,10 +481,33 @@ mod tests {
         assert_eq!(geometry.openings.len(), 2);
         assert_eq!(geometry.wall_thickness_mm, 2.5);
         assert_eq!(geometry.air, AirConditions::default());
-        let again = GeometryDraft::from_geometry(&geometry)
+        let again = GeometryDraft::from_geometry(&geometry, Units::metric())
             .to_geometry()
             .expect("test value");
         assert!(same_geometry(&geometry, &again));
+    }
+
+    #[test]
+    fn the_fields_follow_the_maker_s_units_and_the_geometry_stays() {
+        let mut draft = GeometryDraft::default();
+        let before = draft.to_geometry().expect("test value");
+        draft.follow_units(Units::imperial());
+        // 70 mm = 2.755906 in, 2.5 mm = 0.0984252 in, 20 °C = 68 °F, 2 L =
+        // 122.0475 in³ (1 in = 25.4 mm exactly), each to the digits that
+        // bring the metric number back.
+        assert_eq!(draft.openings[0].first, "2.755906");
+        assert_eq!(draft.thickness, "0.0984252");
+        assert_eq!(draft.temp, "68");
+        assert_eq!(draft.volume_unit, VolumeUnit::CubicInch);
+        assert_eq!(draft.volume, "122.0475");
+        let after = draft.to_geometry().expect("test value");
+        assert!(same_geometry(&before, &after));
+        // A preset in inches is the same body.
+        draft.apply_preset(Preset::GuitarLike);
+        assert_eq!(draft.openings[0].first, "3.38583");
+        draft.follow_units(Units::metric());
+        assert_eq!(draft.openings[0].first, "86");
+        assert_eq!(draft.volume, "13");
     }
 
     #[test]
@@ -437,7 +523,7 @@ mod tests {
     #[test]
     fn a_bad_opening_size_names_the_opening() {
         let mut draft = GeometryDraft::default();
-        draft.openings[1].second_mm = "wide".to_owned();
+        draft.openings[1].second = "wide".to_owned();
         assert_eq!(
             draft.to_geometry().unwrap_err(),
             "The mean width of opening 2 \"wide\" is not a number."

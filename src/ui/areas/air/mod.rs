@@ -79,6 +79,8 @@ impl Checked {
 
 /// Draws the Air area.
 pub fn show(ui: &mut egui::Ui, state: &mut AirAreaState, ctx: &mut AreaContext) {
+    state.draft.follow_units(ctx.units);
+    state.solve.follow_units(ctx.units.length);
     follow_build(state, ctx.build);
     let checked = Checked::of(&state.draft);
 
@@ -152,7 +154,7 @@ fn follow_build(state: &mut AirAreaState, build: Option<&Build>) {
 }
 
 fn load_geometry(state: &mut AirAreaState, geometry: &CavityGeometry) {
-    state.draft = GeometryDraft::from_geometry(geometry);
+    state.draft = GeometryDraft::from_geometry(geometry, state.draft.units);
     state.solve.fit_to(&state.draft);
     state.edited = false;
 }

@@ -11,7 +11,7 @@ use egui_plot::{HLine, Legend, Line, LineStyle, MarkerShape, Plot, Points};
 use crate::ledger::Part;
 
 use super::LedgerAreaState;
-use crate::text::num;
+use crate::text::{num, MassUnit, Units};
 use crate::ui::widgets::spectrum_plot::{frequency_label, log_frequency_marks};
 
 /// Which chart is shown.
@@ -54,7 +54,7 @@ fn colour(index: usize) -> Color32 {
 }
 
 /// The chart chooser and the chart.
-pub fn charts(ui: &mut egui::Ui, state: &mut LedgerAreaState, part: &Part) {
+pub fn charts(ui: &mut egui::Ui, state: &mut LedgerAreaState, part: &Part, units: Units) {
     ui.horizontal(|ui| {
         ui.strong("Charts");
         for kind in ChartKind::ALL {
@@ -67,7 +67,8 @@ pub fn charts(ui: &mut egui::Ui, state: &mut LedgerAreaState, part: &Part) {
     }
     match state.chart {
         ChartKind::AgainstPass | ChartKind::AgainstMass => {
-            mode_chart(ui, part, state.chart == ChartKind::AgainstMass)
+            let by_mass = (state.chart == ChartKind::AgainstMass).then_some(units.mass);
+            mode_chart(ui, part, by_mass)
         }
         ChartKind::Spectra => {
             let chosen = state
@@ -79,15 +80,20 @@ pub fn charts(ui: &mut egui::Ui, state: &mut LedgerAreaState, part: &Part) {
     }
 }
 
-fn mode_chart(ui: &mut egui::Ui, part: &Part, by_mass: bool) {
+/// Each labelled mode against the pass number, or against the mass in
+/// the unit given.
+fn mode_chart(ui: &mut egui::Ui, part: &Part, by_mass: Option<MassUnit>) {
     let labels = part.labels_in_use();
     if labels.is_empty() {
         ui.weak("No labelled modes yet to chart.");
         return;
     }
-    let x_title = if by_mass { "Mass (g)" } else { "Pass" };
+    let x_title = match by_mass {
+        Some(unit) => format!("Mass ({})", unit.symbol()),
+        None => "Pass".to_owned(),
+    };
     let forecasts = part.forecasts();
-    let id = if by_mass {
+    let id = if by_mass.is_some() {
         "modes by mass"
     } else {
         "modes by pass"
@@ -98,7 +104,7 @@ fn mode_chart(ui: &mut egui::Ui, part: &Part, by_mass: bool) {
         .x_axis_label(x_title)
         .y_axis_label("Frequency (Hz)")
         .allow_scroll(false);
-    if !by_mass {
+    if by_mass.is_none() {
         plot = plot.x_axis_formatter(|mark, _| {
             if (mark.value - mark.value.round()).abs() < 1e-6 && mark.value >= 1.0 {
                 format!("{:.0}", mark.value)
@@ -113,10 +119,9 @@ fn mode_chart(ui: &mut egui::Ui, part: &Part, by_mass: bool) {
             let points: Vec<[f64; 2]> = history
                 .iter()
                 .map(|p| {
-                    let x = if by_mass {
-                        p.mass_g
-                    } else {
-                        f64::from(p.pass_number)
+                    let x = match by_mass {
+                        Some(unit) => unit.from_g(p.mass_g),
+                        None => f64::from(p.pass_number),
                     };
                     [x, p.frequency_hz]
                 })
@@ -139,14 +144,14 @@ fn mode_chart(ui: &mut egui::Ui, part: &Part, by_mass: bool) {
                         .width(1.0),
                 );
             }
-            if by_mass {
+            if let Some(unit) = by_mass {
                 if let Some(f) = forecasts.iter().find(|f| f.label == *label) {
-                    forecast_marks(plot_ui, colour, f);
+                    forecast_marks(plot_ui, colour, f, unit);
                 }
             }
         }
     });
-    if by_mass {
+    if by_mass.is_some() {
         ui.weak(
             "Dashed lines: targets. Hollow marks: where each forecast lands, with its mass band.",
         );
@@ -155,7 +160,12 @@ fn mode_chart(ui: &mut egui::Ui, part: &Part, by_mass: bool) {
     }
 }
 
-fn forecast_marks(plot_ui: &mut egui_plot::PlotUi, colour: Color32, f: &crate::ledger::Forecast) {
+fn forecast_marks(
+    plot_ui: &mut egui_plot::PlotUi,
+    colour: Color32,
+    f: &crate::ledger::Forecast,
+    unit: MassUnit,
+) {
     let (low, high) = f.target_mass_range_g;
     let finite = [f.target_mass_g, f.target_hz, low, high]
         .iter()
@@ -163,10 +173,12 @@ fn forecast_marks(plot_ui: &mut egui_plot::PlotUi, colour: Color32, f: &crate::l
     if !finite {
         return;
     }
+    let mass = |g: f64| unit.from_g(g);
+    let (low, high) = (mass(low), mass(high));
     // No name: the marks stay out of the legend, beside their mode's line.
     let name = String::new();
     plot_ui.points(
-        Points::new(name.clone(), vec![[f.target_mass_g, f.target_hz]])
+        Points::new(name.clone(), vec![[mass(f.target_mass_g), f.target_hz]])
             .color(colour)
             .radius(5.0)
             .filled(false)
@@ -180,7 +192,10 @@ fn forecast_marks(plot_ui: &mut egui_plot::PlotUi, colour: Color32, f: &crate::l
     plot_ui.line(
         Line::new(
             name,
-            vec![[f.now_mass_g, f.now_hz], [f.target_mass_g, f.target_hz]],
+            vec![
+                [mass(f.now_mass_g), f.now_hz],
+                [mass(f.target_mass_g), f.target_hz],
+            ],
         )
         .color(colour.gamma_multiply(0.7))
         .style(LineStyle::dotted_dense())

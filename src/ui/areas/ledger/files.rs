@@ -8,6 +8,7 @@ use std::path::PathBuf;
 
 use crate::ledger::{csv, Build};
 use crate::report::{build_report_html, ReportSettings};
+use crate::text::Units;
 
 use super::Note;
 use crate::ui::commands::AppCommand;
@@ -85,23 +86,30 @@ impl FileJobs {
 
     /// Shows the dialog to choose where the build report goes, then writes
     /// it (made on the job's thread from a copy of the build).
-    pub fn choose_report_path(&mut self, jobs: &Jobs, build: &Build, a4_hz: f64) {
+    pub fn choose_report_path(&mut self, jobs: &Jobs, build: &Build, a4_hz: f64, units: Units) {
         let build = build.clone();
         let suggested = format!("{} report.html", file_stem_for(&build.name));
         self.spawn(jobs, move || FileDone::Exported {
             what: REPORT,
             result: SAVE_REPORT
                 .save(&suggested)
-                .map(|path| write_report(path, &build, a4_hz)),
+                .map(|path| write_report(path, &build, (a4_hz, units))),
         });
     }
 
-    /// Writes the build report of `build` to `path`.
-    pub fn export_report(&mut self, jobs: &Jobs, build: &Build, path: PathBuf, a4_hz: f64) {
+    /// Writes the build report of `build` to `path`, at this reference
+    /// pitch and in these units.
+    pub fn export_report(
+        &mut self,
+        jobs: &Jobs,
+        build: &Build,
+        path: PathBuf,
+        (a4_hz, units): (f64, Units),
+    ) {
         let build = build.clone();
         self.spawn(jobs, move || FileDone::Exported {
             what: REPORT,
-            result: Some(write_report(path, &build, a4_hz)),
+            result: Some(write_report(path, &build, (a4_hz, units))),
         });
     }
 
@@ -155,9 +163,14 @@ const REPORT: &str = "the build report";
 
 /// Makes the build report and writes it atomically; the sentence to show
 /// on failure.
-fn write_report(path: PathBuf, build: &Build, a4_hz: f64) -> Result<PathBuf, String> {
+fn write_report(
+    path: PathBuf,
+    build: &Build,
+    (a4_hz, units): (f64, Units),
+) -> Result<PathBuf, String> {
     let settings = ReportSettings {
         a4_hz,
+        units,
         ..ReportSettings::default()
     };
     let html = build_report_html(build, &settings);

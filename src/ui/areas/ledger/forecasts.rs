@@ -47,7 +47,7 @@ pub fn targets_and_forecasts(
     }
     for forecast in &forecasts {
         ui.add_space(4.0);
-        for (text, is_warning) in forecast_lines(forecast) {
+        for (text, is_warning) in forecast_lines(forecast, ctx.units) {
             let label = if is_warning {
                 egui::Label::new(egui::RichText::new(text).color(ui.visuals().warn_fg_color))
             } else {

@@ -313,7 +313,9 @@ fn build_bar(ui: &mut egui::Ui, state: &mut LedgerAreaState, ctx: &mut AreaConte
                 .clicked()
             {
                 if let Some(build) = ctx.build {
-                    state.files.choose_report_path(ctx.jobs, build, ctx.a4_hz);
+                    state
+                        .files
+                        .choose_report_path(ctx.jobs, build, ctx.a4_hz, ctx.units);
                 }
             }
             if ui.button("Close build").clicked() {
@@ -361,7 +363,8 @@ fn build_bar(ui: &mut egui::Ui, state: &mut LedgerAreaState, ctx: &mut AreaConte
             if ui.button("Save report here").clicked() {
                 match (typed_path(&state.file_path, "html"), ctx.build) {
                     (Ok(path), Some(build)) => {
-                        state.files.export_report(ctx.jobs, build, path, ctx.a4_hz)
+                        let settings = (ctx.a4_hz, ctx.units);
+                        state.files.export_report(ctx.jobs, build, path, settings)
                     }
                     (Err(problem), _) => state.bar_note = Some(Note::error(problem)),
                     _ => {}
@@ -625,7 +628,7 @@ fn central(ui: &mut egui::Ui, state: &mut LedgerAreaState, build: &Build, ctx: &
     };
     ui.horizontal_wrapped(|ui| {
         ui.heading(part.name());
-        ui.label(parts::part_summary(part));
+        ui.label(parts::part_summary(part, ctx.units));
     });
     table::pass_table(ui, state, part, ctx);
     table::pass_details(ui, state, part, ctx);
@@ -635,7 +638,7 @@ fn central(ui: &mut egui::Ui, state: &mut LedgerAreaState, build: &Build, ctx: &
         ui.horizontal_top(|ui| {
             ui.vertical(|ui| {
                 ui.set_width(width * 0.58);
-                charts::charts(ui, state, part);
+                charts::charts(ui, state, part, ctx.units);
             });
             ui.separator();
             ui.vertical(|ui| {
@@ -643,7 +646,7 @@ fn central(ui: &mut egui::Ui, state: &mut LedgerAreaState, build: &Build, ctx: &
             });
         });
     } else {
-        charts::charts(ui, state, part);
+        charts::charts(ui, state, part, ctx.units);
         ui.separator();
         forecasts::targets_and_forecasts(ui, state, part, ctx);
     }

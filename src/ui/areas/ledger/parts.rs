@@ -8,7 +8,8 @@ use crate::ledger::compare::{mode5_interval_semitones, plate_modes, top_and_back
 use crate::ledger::{Build, LedgerError, Part, PartKind};
 
 use super::{try_edit, LedgerAreaState, Note};
-use crate::text::{num, parse_optional_number, signed};
+use crate::text::units::{convert_typed, parse_optional_in};
+use crate::text::{num, signed, LengthUnit, Units};
 use crate::ui::commands::AppCommand;
 use crate::ui::context::AreaContext;
 
@@ -56,8 +57,10 @@ pub struct AddPartForm {
     kind: KindChoice,
     custom_kind: String,
     wood: String,
-    length_mm: String,
-    width_mm: String,
+    /// The outline's length and width as typed, in `unit`.
+    length: String,
+    width: String,
+    unit: LengthUnit,
 }
 
 /// Something to take out of the build, once the maker confirms.
@@ -172,7 +175,7 @@ pub fn part_list(
         );
         if ui
             .selectable_label(chosen, text)
-            .on_hover_text(part_summary(part))
+            .on_hover_text(part_summary(part, ctx.units))
             .clicked()
             && !chosen
         {
@@ -226,6 +229,10 @@ fn add_part_form(
         return;
     }
     ui.strong("Add a part");
+    let unit = ctx.units.length;
+    convert_typed(&mut form.length, form.unit, unit);
+    convert_typed(&mut form.width, form.unit, unit);
+    form.unit = unit;
     let previous_kind = form.kind;
     egui::ComboBox::new("new part kind", "Kind of part")
         .selected_text(form.kind.text())
@@ -245,8 +252,19 @@ fn add_part_form(
                 text_row(ui, "What it is", &mut form.custom_kind, "bass bar");
             }
             text_row(ui, "Wood species", &mut form.wood, "spruce (optional)");
-            text_row(ui, "Outline length (mm)", &mut form.length_mm, "optional");
-            text_row(ui, "Outline width (mm)", &mut form.width_mm, "optional");
+            let symbol = unit.symbol();
+            text_row(
+                ui,
+                &format!("Outline length ({symbol})"),
+                &mut form.length,
+                "optional",
+            );
+            text_row(
+                ui,
+                &format!("Outline width ({symbol})"),
+                &mut form.width,
+                "optional",
+            );
         });
     let mut add = false;
     let mut cancel = false;
@@ -319,8 +337,8 @@ fn add_part_edit(form: &AddPartForm) -> Result<PartEdit, String> {
         }
     };
     let wood = Some(form.wood.trim().to_owned()).filter(|w| !w.is_empty());
-    let length_mm = positive_or_none(&form.length_mm, "The outline length")?;
-    let width_mm = positive_or_none(&form.width_mm, "The outline width")?;
+    let length_mm = positive_or_none(&form.length, "The outline length", form.unit)?;
+    let width_mm = positive_or_none(&form.width, "The outline width", form.unit)?;
     Ok(Box::new(move |build: &mut Build| {
         let part = build.add_part(name.clone(), kind.clone())?;
         part.wood_species = wood.clone();
@@ -330,25 +348,33 @@ fn add_part_edit(form: &AddPartForm) -> Result<PartEdit, String> {
     }))
 }
 
-fn positive_or_none(text: &str, what: &str) -> Result<Option<f64>, String> {
-    match parse_optional_number(what, text)? {
-        Some(value) if value <= 0.0 => Err(format!(
-            "{what} is {value} mm; it must be a positive number."
+/// A size typed in `unit` as mm, None when left empty; a size that is
+/// not above zero is refused, in the unit it was typed in.
+fn positive_or_none(text: &str, what: &str, unit: LengthUnit) -> Result<Option<f64>, String> {
+    match parse_optional_in(unit, what, text)? {
+        Some(mm) if mm <= 0.0 => Err(format!(
+            "{what} is {} {}; it must be a positive number.",
+            crate::text::number_text(unit.from_mm(mm)),
+            unit.symbol()
         )),
         other => Ok(other),
     }
 }
 
-/// "top plate · spruce · 356 × 207 mm · 7 passes · labels: mode 1, mode 2".
-pub fn part_summary(part: &Part) -> String {
+/// "top plate · spruce · 356 × 207 mm · 7 passes · labels: mode 1, mode 2",
+/// the outline in `units`.
+pub fn part_summary(part: &Part, units: Units) -> String {
     let mut bits = vec![part.kind().describe().to_owned()];
     if let Some(wood) = &part.wood_species {
         bits.push(wood.clone());
     }
+    let length = units.length;
+    let size = |mm: f64| num(length.from_mm(mm), length.outline_decimals());
+    let symbol = length.symbol();
     match (part.outline_length_mm, part.outline_width_mm) {
-        (Some(l), Some(w)) => bits.push(format!("{} × {} mm", num(l, 0), num(w, 0))),
-        (Some(l), None) => bits.push(format!("{} mm long", num(l, 0))),
-        (None, Some(w)) => bits.push(format!("{} mm wide", num(w, 0))),
+        (Some(l), Some(w)) => bits.push(length.outline_text(l, w)),
+        (Some(l), None) => bits.push(format!("{} {symbol} long", size(l))),
+        (None, Some(w)) => bits.push(format!("{} {symbol} wide", size(w))),
         (None, None) => {}
     }
     let passes = part.passes().len();
@@ -410,8 +436,16 @@ mod tests {
 
     #[test]
     fn outline_must_be_positive() {
-        assert!(positive_or_none("-3", "The outline length").is_err());
-        assert_eq!(positive_or_none("", "x"), Ok(None));
-        assert_eq!(positive_or_none("356", "x"), Ok(Some(356.0)));
+        let mm = LengthUnit::Millimetre;
+        assert!(positive_or_none("-3", "The outline length", mm).is_err());
+        assert_eq!(positive_or_none("", "x", mm), Ok(None));
+        assert_eq!(positive_or_none("356", "x", mm), Ok(Some(356.0)));
+        // Typed in inches, kept in mm; refused in the unit typed.
+        let mm = positive_or_none("14", "x", LengthUnit::Inch).expect("a size");
+        assert!((mm.expect("typed") - 355.6).abs() < 1e-9);
+        assert_eq!(
+            positive_or_none("-1", "The outline width", LengthUnit::Inch),
+            Err("The outline width is -1 in; it must be a positive number.".to_owned())
+        );
     }
 }

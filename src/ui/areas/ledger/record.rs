@@ -9,15 +9,16 @@ use eframe::egui;
 use crate::ledger::{Part, PassInput, PassOutcome, ThicknessReading};
 
 use super::Note;
-use crate::text::{num, parse_optional_number, sentence};
+use crate::text::units::{convert_typed, parse_optional_in};
+use crate::text::{number_text, parse_optional_number, sentence, Units};
 use crate::ui::commands::{AppCommand, Area};
 use crate::ui::context::AreaContext;
 
-/// One thickness reading being typed.
+/// One thickness reading being typed (in the form's length unit).
 #[derive(Clone, Debug, Default, PartialEq)]
 struct ReadingRow {
     point: String,
-    thickness_mm: String,
+    thickness: String,
 }
 
 /// The record form and what the last recording did.
@@ -25,9 +26,12 @@ struct ReadingRow {
 pub struct RecordForm {
     /// The part the typed point names were taken from.
     part: Option<String>,
-    mass_g: String,
+    /// The units the values are typed in (the maker's, followed when they
+    /// change).
+    units: Units,
+    mass: String,
     readings: Vec<ReadingRow>,
-    air_temp_c: String,
+    air_temp: String,
     relative_humidity_pct: String,
     note: String,
     /// The form's refusal, or the outcome of the last recording.
@@ -65,9 +69,9 @@ pub fn follow_up(form: &mut RecordForm, ctx: &AreaContext) {
             let awaiting = awaiting.clone();
             form.awaiting = None;
             form.message = Some(Note::info(format!(
-                "Recorded pass {number} of \"{}\" ({} g).",
+                "Recorded pass {number} of \"{}\" ({}).",
                 awaiting.part,
-                num(awaiting.mass_g, 2)
+                ctx.units.mass.text(awaiting.mass_g)
             )));
             let labelled: Vec<&str> = pass.modes().iter().filter_map(|m| m.label_name()).collect();
             let to_confirm: Vec<&str> = pass
@@ -159,6 +163,8 @@ pub fn record_form(ui: &mut egui::Ui, form: &mut RecordForm, part: &Part, ctx: &
     if form.part.as_deref() != Some(part.name()) {
         take_points_from(form, part);
     }
+    follow_units(form, ctx.units);
+    let units = form.units;
     match ctx.pass {
         Some(pass) => {
             let labelled = ctx.pass_labels.iter().flatten().count();
@@ -178,11 +184,17 @@ pub fn record_form(ui: &mut egui::Ui, form: &mut RecordForm, part: &Part, ctx: &
     egui::Grid::new("record grid")
         .num_columns(2)
         .show(ui, |ui| {
-            field_row(ui, "Mass (g)", &mut form.mass_g, "required", 90.0);
             field_row(
                 ui,
-                "Air temperature (°C)",
-                &mut form.air_temp_c,
+                &format!("Mass ({})", units.mass.symbol()),
+                &mut form.mass,
+                "required",
+                90.0,
+            );
+            field_row(
+                ui,
+                &format!("Air temperature ({})", units.temperature.symbol()),
+                &mut form.air_temp,
                 "optional",
                 90.0,
             );
@@ -242,7 +254,7 @@ fn take_points_from(form: &mut RecordForm, part: &Part) {
                 .iter()
                 .map(|r| ReadingRow {
                     point: r.point.clone(),
-                    thickness_mm: String::new(),
+                    thickness: String::new(),
                 })
                 .collect()
         })
@@ -251,8 +263,20 @@ fn take_points_from(form: &mut RecordForm, part: &Part) {
     form.outcome_lines.clear();
 }
 
+/// Rewrites what is typed in the form's units into `units`.
+fn follow_units(form: &mut RecordForm, units: Units) {
+    let old = form.units;
+    convert_typed(&mut form.mass, old.mass, units.mass);
+    convert_typed(&mut form.air_temp, old.temperature, units.temperature);
+    for row in &mut form.readings {
+        convert_typed(&mut row.thickness, old.length, units.length);
+    }
+    form.units = units;
+}
+
 fn readings_editor(ui: &mut egui::Ui, form: &mut RecordForm) {
-    ui.label("Thickness readings (mm)");
+    let symbol = form.units.length.symbol();
+    ui.label(format!("Thickness readings ({symbol})"));
     let mut remove = None;
     for (index, row) in form.readings.iter_mut().enumerate() {
         let n = index + 1;
@@ -264,11 +288,11 @@ fn readings_editor(ui: &mut egui::Ui, form: &mut RecordForm) {
             )
             .accessible_name(format!("Point {n}"));
             ui.add(
-                egui::TextEdit::singleline(&mut row.thickness_mm)
-                    .hint_text("mm")
+                egui::TextEdit::singleline(&mut row.thickness)
+                    .hint_text(symbol)
                     .desired_width(60.0),
             )
-            .accessible_name(format!("Thickness at point {n} (mm)"));
+            .accessible_name(format!("Thickness at point {n} ({symbol})"));
             if ui
                 .small_button("Remove")
                 .accessible_name(format!("Remove reading {n}"))
@@ -286,17 +310,27 @@ fn readings_editor(ui: &mut egui::Ui, form: &mut RecordForm) {
     }
 }
 
-/// The typed values as a check-ready pass input (modes left empty).
+/// The typed values (in the form's units) as a check-ready pass input in
+/// the ledger's mm, g and °C (modes left empty).
 fn typed_values(form: &RecordForm) -> Result<(f64, PassInput), String> {
-    let mass_g = parse_optional_number("The mass", &form.mass_g)?
-        .ok_or_else(|| "Type the part's mass in grams first.".to_owned())?;
+    let units = form.units;
+    let mass_g = parse_optional_in(units.mass, "The mass", &form.mass)?.ok_or_else(|| {
+        format!(
+            "Type the part's mass in {} first.",
+            units.mass.plural_name()
+        )
+    })?;
     if mass_g <= 0.0 {
-        return Err(format!("The mass is {mass_g} g; it must be more than 0 g."));
+        let symbol = units.mass.symbol();
+        return Err(format!(
+            "The mass is {} {symbol}; it must be more than 0 {symbol}.",
+            number_text(units.mass.from_g(mass_g))
+        ));
     }
     let mut input = PassInput::new(mass_g, Vec::new());
     for (index, row) in form.readings.iter().enumerate() {
         let point = row.point.trim();
-        let typed = row.thickness_mm.trim();
+        let typed = row.thickness.trim();
         if point.is_empty() && typed.is_empty() {
             continue;
         }
@@ -305,7 +339,7 @@ fn typed_values(form: &RecordForm) -> Result<(f64, PassInput), String> {
         } else {
             format!("The thickness at \"{point}\"")
         };
-        let Some(thickness_mm) = parse_optional_number(&what, typed)? else {
+        let Some(thickness_mm) = parse_optional_in(units.length, &what, typed)? else {
             continue;
         };
         let point = if point.is_empty() {
@@ -318,7 +352,7 @@ fn typed_values(form: &RecordForm) -> Result<(f64, PassInput), String> {
             thickness_mm,
         });
     }
-    input.air_temp_c = parse_optional_number("The air temperature", &form.air_temp_c)?;
+    input.air_temp_c = parse_optional_in(units.temperature, "The air temperature", &form.air_temp)?;
     input.relative_humidity_pct =
         parse_optional_number("The relative humidity", &form.relative_humidity_pct)?;
     input.note = form.note.trim().to_owned();
@@ -360,10 +394,10 @@ fn record(form: &mut RecordForm, part: &Part, ctx: &mut AreaContext) -> Result<(
     });
     form.message = None;
     form.outcome_lines.clear();
-    form.mass_g.clear();
+    form.mass.clear();
     form.note.clear();
     for row in &mut form.readings {
-        row.thickness_mm.clear();
+        row.thickness.clear();
     }
     Ok(())
 }
@@ -374,7 +408,7 @@ mod tests {
 
     fn form(mass: &str) -> RecordForm {
         RecordForm {
-            mass_g: mass.to_owned(),
+            mass: mass.to_owned(),
             ..RecordForm::default()
         }
     }
@@ -393,19 +427,45 @@ mod tests {
         f.readings = vec![
             ReadingRow {
                 point: "centre".into(),
-                thickness_mm: "2.6".into(),
+                thickness: "2.6".into(),
             },
             ReadingRow::default(),
             ReadingRow {
                 point: "upper bout".into(),
-                thickness_mm: String::new(),
+                thickness: String::new(),
             },
         ];
         let (_, input) = typed_values(&f).expect("test value");
         assert_eq!(input.thickness.len(), 1);
         assert_eq!(input.thickness[0].point, "centre");
-        f.readings[0].thickness_mm = "thin".into();
+        f.readings[0].thickness = "thin".into();
         assert!(typed_values(&f).unwrap_err().contains("centre"));
+    }
+
+    #[test]
+    fn values_typed_in_inches_ounces_and_fahrenheit_are_kept_in_mm_g_and_celsius() {
+        let mut f = form("2.5");
+        f.air_temp = "68".into();
+        f.readings = vec![ReadingRow {
+            point: "centre".into(),
+            thickness: "0.118".into(),
+        }];
+        f.units = Units::imperial();
+        let (mass_g, input) = typed_values(&f).expect("test value");
+        // 1 oz = 28.349523125 g, 1 in = 25.4 mm, 68 °F = 20 °C (exact
+        // definitions).
+        assert!((mass_g - 70.873_807_812_5).abs() < 1e-9, "{mass_g}");
+        assert!((input.thickness[0].thickness_mm - 2.9972).abs() < 1e-12);
+        assert!((input.air_temp_c.expect("typed") - 20.0).abs() < 1e-12);
+        // Switching the form to metric rewrites what is typed.
+        follow_units(&mut f, Units::metric());
+        assert_eq!(f.mass, "70.8738");
+        assert_eq!(f.readings[0].thickness, "2.9972");
+        assert_eq!(f.air_temp, "20");
+        assert!(typed_values(&form("0")).unwrap_err().contains("0 g"));
+        let mut zero = form("0");
+        zero.units = Units::imperial();
+        assert!(typed_values(&zero).unwrap_err().contains("0 oz"), "ounces");
     }
 
     #[test]

@@ -9,7 +9,7 @@ use eframe::egui::{self, TextureHandle, TextureOptions};
 
 use crate::ledger::{Part, Pass, StoredModeShape, StoredShapeMap};
 use crate::shapes::{ModeDrawing, Outline};
-use crate::text::{num, Units};
+use crate::text::num;
 use crate::ui::context::AreaContext;
 use crate::ui::widgets::plate_view::{field_image, legend, value_markers, Palette, PlateView};
 
@@ -91,10 +91,6 @@ impl std::fmt::Debug for ShapeCompare {
     }
 }
 
-/// The maker's units (one accessor: see the Shapes area).
-fn units(_ctx: &AreaContext) -> Units {
-    Units::default()
-}
 
 /// The passes of `part` that keep a map, oldest first.
 fn mapped_passes(part: &Part) -> Vec<&Pass> {
@@ -142,7 +138,7 @@ pub fn side_by_side(ui: &mut egui::Ui, compare: &mut ShapeCompare, part: &Part, 
             "Only one pass keeps a map so far; keep one with a later pass (Shapes) to compare.",
         );
     }
-    let unit = units(ctx).length;
+    let unit = ctx.units.length;
     let width = ((ui.available_width() - 30.0) / 2.0).clamp(200.0, 420.0);
     let size = egui::vec2(width, 380.0);
     ui.horizontal_top(|ui| {

@@ -8,7 +8,8 @@ use eframe::egui;
 use crate::ledger::{FrequencyChange, LedgerError, Part, Pass};
 
 use super::{try_edit, LedgerAreaState, Note};
-use crate::text::{date_text, num, parse_optional_number, signed};
+use crate::text::units::{convert_typed, parse_optional_in};
+use crate::text::{date_text, num, signed, MassUnit, Units};
 use crate::ui::context::AreaContext;
 
 /// Tallest the table grows before it scrolls, points.
@@ -106,11 +107,12 @@ fn pass_row(
         ui.add(egui::Label::new(egui::RichText::new(day).monospace()).extend());
         ui.add(egui::Label::new(egui::RichText::new(time).monospace().size(11.5)).extend());
     });
-    ui.monospace(format!("{} g", num(pass.mass_g, 2)));
+    let units = ctx.units;
+    ui.monospace(units.mass.text(pass.mass_g));
     match pass.mean_thickness_mm() {
         Some(mm) => ui
-            .monospace(format!("{} mm", num(mm, 2)))
-            .on_hover_text(readings_text(pass)),
+            .monospace(units.length.thickness_text(mm))
+            .on_hover_text(readings_text(pass, units)),
         None => ui.weak("–"),
     };
     for label in labels {
@@ -124,7 +126,7 @@ fn pass_row(
         pass.note.as_str()
     };
     ui.add(egui::Label::new(note).wrap())
-        .on_hover_text(air_text(pass));
+        .on_hover_text(air_text(pass, units));
 }
 
 fn label_cell(
@@ -197,18 +199,24 @@ fn confirm(
     state.table_note = result.err().map(Note::error);
 }
 
-fn readings_text(pass: &Pass) -> String {
+fn readings_text(pass: &Pass, units: Units) -> String {
     pass.thickness
         .iter()
-        .map(|r| format!("{}: {} mm", r.point, num(r.thickness_mm, 2)))
+        .map(|r| {
+            format!(
+                "{}: {}",
+                r.point,
+                units.length.thickness_text(r.thickness_mm)
+            )
+        })
         .collect::<Vec<_>>()
         .join("\n")
 }
 
-fn air_text(pass: &Pass) -> String {
+fn air_text(pass: &Pass, units: Units) -> String {
     let mut bits = Vec::new();
     if let Some(t) = pass.air_temp_c {
-        bits.push(format!("{} °C", num(t, 1)));
+        bits.push(units.temperature.text(t));
     }
     if let Some(rh) = pass.relative_humidity_pct {
         bits.push(format!("{} % RH", num(rh, 0)));
@@ -228,7 +236,9 @@ fn air_text(pass: &Pass) -> String {
 pub struct PassEdit {
     part: String,
     number: u32,
+    /// The mass as typed, in `mass_unit`.
     mass_text: String,
+    mass_unit: MassUnit,
     note: String,
 }
 
@@ -244,12 +254,14 @@ fn pass_edit_form(
         .pass_edit
         .as_ref()
         .is_some_and(|e| e.part == part.name() && e.number == number);
+    let mass_unit = ctx.units.mass;
     if !editing {
         if ui.small_button("Correct the mass or note").clicked() {
             state.pass_edit = Some(PassEdit {
                 part: part.name().to_owned(),
                 number,
-                mass_text: num(pass.mass_g, 2),
+                mass_text: num(mass_unit.from_g(pass.mass_g), mass_unit.decimals()),
+                mass_unit,
                 note: pass.note.clone(),
             });
         }
@@ -258,9 +270,11 @@ fn pass_edit_form(
     let Some(edit) = state.pass_edit.as_mut() else {
         return;
     };
+    convert_typed(&mut edit.mass_text, edit.mass_unit, mass_unit);
+    edit.mass_unit = mass_unit;
     let mut done = false;
     ui.horizontal(|ui| {
-        let label = ui.label("Corrected mass (g)");
+        let label = ui.label(format!("Corrected mass ({})", mass_unit.symbol()));
         ui.add(egui::TextEdit::singleline(&mut edit.mass_text).desired_width(70.0))
             .labelled_by(label.id);
         let label = ui.label("Corrected note");
@@ -292,9 +306,15 @@ fn pass_edit_form(
 }
 
 fn apply_pass_edit(edit: &PassEdit, ctx: &mut AreaContext) -> Result<(), String> {
-    let mass_g = parse_optional_number("The mass", &edit.mass_text)?
+    let unit = edit.mass_unit;
+    let mass_g = parse_optional_in(unit, "The mass", &edit.mass_text)?
         .filter(|m| *m > 0.0)
-        .ok_or_else(|| "The mass must be a number of grams above 0.".to_owned())?;
+        .ok_or_else(|| {
+            format!(
+                "The mass must be a number of {} above 0.",
+                unit.plural_name()
+            )
+        })?;
     let (part, number, note) = (edit.part.clone(), edit.number, edit.note.trim().to_owned());
     try_edit(ctx, "correcting the pass", move |build| {
         let pass = build
@@ -318,14 +338,15 @@ pub fn pass_details(
         return;
     };
     let number = pass.number();
+    let units = ctx.units;
     ui.add_space(4.0);
     ui.horizontal_wrapped(|ui| {
         ui.strong(format!("Pass {number}: modes and labels"));
         ui.weak(format!(
-            "{} · {} g · {}",
+            "{} · {} · {}",
             date_text(&pass.time.to_string()),
-            num(pass.mass_g, 2),
-            air_text(pass)
+            units.mass.text(pass.mass_g),
+            air_text(pass, units)
         ));
         if ui
             .small_button("Close")
@@ -338,7 +359,7 @@ pub fn pass_details(
     if !pass.thickness.is_empty() {
         ui.weak(format!(
             "Thickness: {}",
-            readings_text(pass).replace('\n', "; ")
+            readings_text(pass, units).replace('\n', "; ")
         ));
     }
     pass_edit_form(ui, state, part, pass, ctx);

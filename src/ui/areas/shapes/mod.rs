@@ -29,7 +29,7 @@ use eframe::egui;
 
 use crate::analysis::Tap;
 use crate::ledger::{labels, Build};
-use crate::text::{sentence, LengthUnit, Units};
+use crate::text::{sentence, LengthUnit};
 use crate::ui::context::{AreaContext, InputView, SourceState};
 use crate::ui::widgets::plate_view::{Marker, MarkerKind, Palette, PlateView};
 
@@ -45,11 +45,6 @@ pub use keep::keep_in_pass;
 /// 151 and 333 Hz), labelled when the demo set is opened.
 const DEMO_SET_LABELS: [(f64, &str); 3] = [(90.0, "mode 1"), (150.7, "mode 2"), (333.4, "mode 5")];
 
-/// The maker's units. One accessor, so the units preference, when it
-/// reaches the area context, changes one line.
-fn units(_ctx: &AreaContext) -> Units {
-    Units::default()
-}
 
 /// What the Shapes area remembers between frames. Owned by the app.
 #[derive(Debug, Default)]
@@ -115,7 +110,7 @@ pub fn show(
 ) {
     take_results(state, ctx);
     map_finished_grid(state, ctx);
-    let unit = units(ctx).length;
+    let unit = ctx.units.length;
     egui::Panel::top("shapes set bar").show(ui, |ui| set_bar(ui, state, ctx));
     egui::Panel::left("shapes side")
         .resizable(true)
@@ -259,7 +254,7 @@ fn open_demo_set(state: &mut ShapesAreaState, ctx: &AreaContext, unit: LengthUni
 // ----- the set bar ---------------------------------------------------------------
 
 fn set_bar(ui: &mut egui::Ui, state: &mut ShapesAreaState, ctx: &mut AreaContext) {
-    let unit = units(ctx).length;
+    let unit = ctx.units.length;
     ui.add_space(4.0);
     ui.horizontal_wrapped(|ui| {
         ui.strong("Recorded set");

@@ -8,7 +8,8 @@ use eframe::egui;
 
 use crate::ledger::{Build, Family, Part};
 use crate::shapes::{tap_grid, BoutWidths, Outline, OutlineShape, TapPoint};
-use crate::text::{num, parse_number, LengthUnit};
+use crate::text::units::{convert_typed, parse_in};
+use crate::text::{num, LengthUnit};
 
 /// Which outline the form describes.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -130,7 +131,7 @@ impl SetupForm {
         let unit = self.unit;
         let symbol = unit.symbol();
         let size = |what: &str, text: &str| -> Result<f64, String> {
-            parse_number(&format!("The {what} ({symbol})"), text).map(|v| unit.to_mm(v))
+            parse_in(unit, &format!("The {what} ({symbol})"), text)
         };
         let shape = match self.kind {
             OutlineKind::Rectangle => OutlineShape::Rectangle {
@@ -181,7 +182,6 @@ impl SetupForm {
         if unit == self.unit {
             return;
         }
-        let old = self.unit;
         for field in [
             &mut self.length,
             &mut self.width,
@@ -189,9 +189,7 @@ impl SetupForm {
             &mut self.waist,
             &mut self.lower_bout,
         ] {
-            if let Ok(value) = crate::text::read_number(field) {
-                *field = num(unit.from_mm(old.to_mm(value)), unit.size_decimals());
-            }
+            convert_typed(field, self.unit, unit);
         }
         self.unit = unit;
     }
@@ -336,9 +334,13 @@ mod tests {
         let outline = form.outline().expect("test value");
         assert_eq!(outline.shape(), OutlineShape::typical_violin());
         form.follow_unit(LengthUnit::Inch);
-        assert_eq!(form.length, "14.02");
-        // 14.02 in is 356.108 mm: the shown rounding, not the stored mm.
-        assert!((form.outline().expect("test value").length_mm() - 356.108).abs() < 1e-9);
+        // 356 mm is 14.015748 in (1 in = 25.4 mm exactly), typed back as
+        // the same 356 mm.
+        assert_eq!(form.length, "14.015748");
+        assert!((form.outline().expect("test value").length_mm() - 356.0).abs() < 1e-4);
+        form.follow_unit(LengthUnit::Millimetre);
+        assert_eq!(form.length, "356");
+        form.follow_unit(LengthUnit::Inch);
         form.waist = "9".to_owned();
         let problem = form.outline().unwrap_err();
         assert!(problem.contains("waist"), "{problem}");

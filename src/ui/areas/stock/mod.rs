@@ -5,39 +5,41 @@
 //! heard), how to hold and tap each bar mode, a frequency taken from a
 //! Listen mode with one click, and the figures worked out by
 //! [`crate::acoustics::stock`]. Right: the build's stock list as a sorted
-//! table and a scatter plot.
+//! table and a scatter plot (`list`). Sizes and masses are typed and shown
+//! in the maker's units; the figures stay SI with their units shown.
 //!
 //! Everything is recomputed every frame from the text; a value that is not
 //! a number or that the acoustics layer refuses shows as one sentence in
 //! place of the figures. The build changes only through
 //! [`AppCommand::EditBuild`].
 
+mod list;
+
 use eframe::egui;
-use egui_plot::{Legend, MarkerShape, Plot, Points};
 
 use crate::acoustics::stock::{bar_figures, BarFigures, BarMode, BarSample, WOOD_POISSON_RATIO};
 use crate::ledger::StockSample;
 
-use crate::text::{capitalised, num, parse_number, sentence};
+use crate::text::units::{convert_typed, field_text, parse_in};
+use crate::text::{capitalised, num, parse_number, sentence, Units};
 use crate::ui::commands::AppCommand;
 use crate::ui::context::AreaContext;
+use list::{stock_list, PlotAxes, SortBy};
 
 /// Width of a number field, points.
 const FIELD_WIDTH: f32 = 64.0;
-/// Height of the scatter plot, points.
-const PLOT_HEIGHT: f32 = 300.0;
 
-/// One bar as typed.
+/// One bar as typed: sizes and mass in the area's units, frequencies in Hz.
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct BarDraft {
-    /// Length, mm.
-    pub length_mm: String,
-    /// Width, mm.
-    pub width_mm: String,
-    /// Thickness, mm.
-    pub thickness_mm: String,
-    /// Mass, g.
-    pub mass_g: String,
+    /// Length.
+    pub length: String,
+    /// Width.
+    pub width: String,
+    /// Thickness.
+    pub thickness: String,
+    /// Mass.
+    pub mass: String,
     /// First flexural frequency, Hz.
     pub flexural_hz: String,
     /// Second flexural frequency, Hz.
@@ -49,10 +51,10 @@ pub struct BarDraft {
 impl BarDraft {
     fn fields(&self) -> [&String; 7] {
         [
-            &self.length_mm,
-            &self.width_mm,
-            &self.thickness_mm,
-            &self.mass_g,
+            &self.length,
+            &self.width,
+            &self.thickness,
+            &self.mass,
             &self.flexural_hz,
             &self.second_flexural_hz,
             &self.longitudinal_hz,
@@ -71,8 +73,17 @@ impl BarDraft {
         }
     }
 
-    /// The bar, None when nothing is typed, or one sentence.
-    fn to_bar(&self, which: &str) -> Result<Option<BarSample>, String> {
+    /// Rewrites the sizes and mass typed in `from` into `to`.
+    fn follow_units(&mut self, from: Units, to: Units) {
+        for size in [&mut self.length, &mut self.width, &mut self.thickness] {
+            convert_typed(size, from.length, to.length);
+        }
+        convert_typed(&mut self.mass, from.mass, to.mass);
+    }
+
+    /// The bar in mm and g (typed in `units`), None when nothing is typed,
+    /// or one sentence.
+    fn to_bar(&self, which: &str, units: Units) -> Result<Option<BarSample>, String> {
         if self.is_empty() {
             return Ok(None);
         }
@@ -83,79 +94,45 @@ impl BarDraft {
                 parse_number(&format!("the {which} {what}"), text).map(Some)
             }
         };
+        let size =
+            |what: &str, text: &str| parse_in(units.length, &format!("the {which} {what}"), text);
         Ok(Some(BarSample {
-            length_mm: parse_number(&format!("the {which} length"), &self.length_mm)?,
-            width_mm: parse_number(&format!("the {which} width"), &self.width_mm)?,
-            thickness_mm: parse_number(&format!("the {which} thickness"), &self.thickness_mm)?,
-            mass_g: parse_number(&format!("the {which} mass"), &self.mass_g)?,
+            length_mm: size("length", &self.length)?,
+            width_mm: size("width", &self.width)?,
+            thickness_mm: size("thickness", &self.thickness)?,
+            mass_g: parse_in(units.mass, &format!("the {which} mass"), &self.mass)?,
             flexural_hz: optional("first flexural frequency", &self.flexural_hz)?,
             second_flexural_hz: optional("second flexural frequency", &self.second_flexural_hz)?,
             longitudinal_hz: optional("longitudinal frequency", &self.longitudinal_hz)?,
         }))
     }
 
-    fn from_bar(bar: Option<&BarSample>) -> Self {
+    /// A kept bar, its sizes and mass written in `units`.
+    fn from_bar(bar: Option<&BarSample>, units: Units) -> Self {
         let Some(bar) = bar else {
             return Self::default();
         };
         let number = |v: f64| format!("{v}");
         let optional = |v: Option<f64>| v.map(number).unwrap_or_default();
+        // In the units it was typed in, a kept value is written exactly.
+        let size = |mm: f64| match units.length {
+            crate::text::LengthUnit::Millimetre => number(mm),
+            inch => field_text(inch, mm),
+        };
+        let mass = match units.mass {
+            crate::text::MassUnit::Gram => number(bar.mass_g),
+            ounce => field_text(ounce, bar.mass_g),
+        };
         Self {
-            length_mm: number(bar.length_mm),
-            width_mm: number(bar.width_mm),
-            thickness_mm: number(bar.thickness_mm),
-            mass_g: number(bar.mass_g),
+            length: size(bar.length_mm),
+            width: size(bar.width_mm),
+            thickness: size(bar.thickness_mm),
+            mass,
             flexural_hz: optional(bar.flexural_hz),
             second_flexural_hz: optional(bar.second_flexural_hz),
             longitudinal_hz: optional(bar.longitudinal_hz),
         }
     }
-}
-
-/// How the stock table is sorted.
-#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
-pub enum SortBy {
-    /// Highest radiation ratio first.
-    #[default]
-    RadiationRatio,
-    /// Lightest first.
-    Density,
-    /// Stiffest along the grain first.
-    Modulus,
-    /// Fastest first.
-    SpeedOfSound,
-    /// By name.
-    Name,
-}
-
-impl SortBy {
-    const ALL: [SortBy; 5] = [
-        SortBy::RadiationRatio,
-        SortBy::Density,
-        SortBy::Modulus,
-        SortBy::SpeedOfSound,
-        SortBy::Name,
-    ];
-
-    fn title(self) -> &'static str {
-        match self {
-            SortBy::RadiationRatio => "radiation ratio, highest first",
-            SortBy::Density => "density, lightest first",
-            SortBy::Modulus => "E along the grain, stiffest first",
-            SortBy::SpeedOfSound => "speed of sound, fastest first",
-            SortBy::Name => "name",
-        }
-    }
-}
-
-/// What the scatter plot shows.
-#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
-pub enum PlotAxes {
-    /// Speed of sound against density.
-    #[default]
-    SpeedAgainstDensity,
-    /// Young's modulus against density.
-    ModulusAgainstDensity,
 }
 
 /// What the Stock area remembers between frames. Owned by the app.
@@ -177,13 +154,16 @@ pub struct StockAreaState {
     pub sort: SortBy,
     /// Scatter plot axes.
     pub axes: PlotAxes,
+    /// The units the bars' sizes and masses are typed in (the maker's,
+    /// followed when they change).
+    pub units: Units,
 }
 
 /// The figures of one typed bar: nothing typed, figures, or a sentence.
 type Worked = Result<Option<BarFigures>, String>;
 
-fn work_out(draft: &BarDraft, which: &str) -> Worked {
-    match draft.to_bar(which)? {
+fn work_out(draft: &BarDraft, which: &str, units: Units) -> Worked {
+    match draft.to_bar(which, units)? {
         None => Ok(None),
         Some(bar) => bar_figures(&bar)
             .map(Some)
@@ -193,6 +173,11 @@ fn work_out(draft: &BarDraft, which: &str) -> Worked {
 
 /// Draws the Stock area.
 pub fn show(ui: &mut egui::Ui, state: &mut StockAreaState, ctx: &mut AreaContext) {
+    if state.units != ctx.units {
+        state.along.follow_units(state.units, ctx.units);
+        state.across.follow_units(state.units, ctx.units);
+        state.units = ctx.units;
+    }
     egui::ScrollArea::both()
         .id_salt("stock scroll")
         .auto_shrink([false, false])
@@ -243,9 +228,10 @@ fn sample_form(ui: &mut egui::Ui, state: &mut StockAreaState, ctx: &mut AreaCont
     ui.add_space(4.0);
     let listen_hz = listen_mode_picker(ui, state, ctx);
     ui.add_space(4.0);
-    let along = bar_section(ui, "Along-grain", &mut state.along, listen_hz);
+    let units = state.units;
+    let along = bar_section(ui, ("Along-grain", units), &mut state.along, listen_hz);
     ui.add_space(6.0);
-    let across = bar_section(ui, "Cross-grain", &mut state.across, listen_hz);
+    let across = bar_section(ui, ("Cross-grain", units), &mut state.across, listen_hz);
     if let (Ok(Some(along)), Ok(Some(across))) = (&along, &across) {
         ui.add_space(4.0);
         ui.label(
@@ -320,20 +306,21 @@ fn listen_mode_picker(
 /// One bar's fields and figures; returns the figures (or the problem).
 fn bar_section(
     ui: &mut egui::Ui,
-    which: &str,
+    (which, units): (&str, Units),
     draft: &mut BarDraft,
     listen_hz: Option<f64>,
 ) -> Worked {
+    let (length, mass) = (units.length.symbol(), units.mass.symbol());
     ui.strong(format!("{which} bar"));
     egui::Grid::new(("stock bar grid", which))
         .num_columns(4)
         .spacing([6.0, 4.0])
         .show(ui, |ui| {
             let sizes = [
-                ("length", "mm", &mut draft.length_mm),
-                ("width", "mm", &mut draft.width_mm),
-                ("thickness", "mm", &mut draft.thickness_mm),
-                ("mass", "g", &mut draft.mass_g),
+                ("length", length, &mut draft.length),
+                ("width", length, &mut draft.width),
+                ("thickness", length, &mut draft.thickness),
+                ("mass", mass, &mut draft.mass),
             ];
             for (pair_index, (name, unit, text)) in sizes.into_iter().enumerate() {
                 number_field(ui, which, name, unit, text);
@@ -363,7 +350,7 @@ fn bar_section(
             }
         });
     }
-    let worked = work_out(draft, which);
+    let worked = work_out(draft, which, units);
     match &worked {
         Ok(None) => {
             ui.weak(format!(
@@ -490,6 +477,7 @@ fn keep_in_build(
                 listen_mode: keep_mode,
                 sort: state.sort,
                 axes: state.axes,
+                units: state.units,
                 ..StockAreaState::default()
             };
         }
@@ -505,8 +493,8 @@ fn draft_sample(state: &StockAreaState) -> Result<StockSample, String> {
     if state.name.trim().is_empty() {
         return Err("Give the sample a name to keep it in the build.".to_owned());
     }
-    let along_grain = state.along.to_bar("along-grain")?;
-    let cross_grain = state.across.to_bar("cross-grain")?;
+    let along_grain = state.along.to_bar("along-grain", state.units)?;
+    let cross_grain = state.across.to_bar("cross-grain", state.units)?;
     if along_grain.is_none() && cross_grain.is_none() {
         return Err("Type at least one bar to keep the sample.".to_owned());
     }
@@ -519,265 +507,10 @@ fn draft_sample(state: &StockAreaState) -> Result<StockSample, String> {
     })
 }
 
-// ----- the build's stock list ------------------------------------------------
-
-/// A stock sample with the figures the table and plot need.
-struct Row<'a> {
-    sample: &'a StockSample,
-    along: Option<BarFigures>,
-    across: Option<BarFigures>,
-}
-
-impl Row<'_> {
-    /// The figures to compare samples by: along-grain, else cross-grain.
-    fn main(&self) -> Option<&BarFigures> {
-        self.along.as_ref().or(self.across.as_ref())
-    }
-}
-
-fn rows(stock: &[StockSample], sort: SortBy) -> Vec<Row<'_>> {
-    let mut rows: Vec<Row> = stock
-        .iter()
-        .map(|sample| Row {
-            sample,
-            along: sample.along_figures().and_then(Result::ok),
-            across: sample.cross_figures().and_then(Result::ok),
-        })
-        .collect();
-    let key = |row: &Row| -> f64 {
-        let Some(f) = row.main() else {
-            return f64::NEG_INFINITY;
-        };
-        match sort {
-            SortBy::RadiationRatio => f.radiation_ratio,
-            SortBy::Density => -f.density_kg_m3,
-            SortBy::Modulus => row
-                .along
-                .as_ref()
-                .map_or(f64::NEG_INFINITY, |a| a.youngs_modulus_pa),
-            SortBy::SpeedOfSound => f.speed_of_sound_m_s,
-            SortBy::Name => 0.0,
-        }
-    };
-    if sort == SortBy::Name {
-        rows.sort_by(|a, b| a.sample.name.cmp(&b.sample.name));
-    } else {
-        rows.sort_by(|a, b| key(b).total_cmp(&key(a)));
-    }
-    rows
-}
-
-fn stock_list(ui: &mut egui::Ui, state: &mut StockAreaState, ctx: &mut AreaContext) {
-    ui.strong("Stock list");
-    let Some(build) = ctx.build else {
-        ui.weak("No build is open: the stock list belongs to a build (open or start one in the Ledger area).");
-        return;
-    };
-    if build.stock().is_empty() {
-        ui.weak(format!(
-            "Build \"{}\" has no stock samples yet: type one on the left and keep it.",
-            build.name
-        ));
-        return;
-    }
-    ui.horizontal(|ui| {
-        let label = ui.label("Sort by");
-        egui::ComboBox::from_id_salt("stock sort")
-            .selected_text(state.sort.title())
-            .show_ui(ui, |ui| {
-                for sort in SortBy::ALL {
-                    ui.selectable_value(&mut state.sort, sort, sort.title());
-                }
-            })
-            .response
-            .labelled_by(label.id);
-    });
-    let rows = rows(build.stock(), state.sort);
-    let mut edit: Option<StockSample> = None;
-    let mut remove: Option<String> = None;
-    stock_table(ui, &rows, &mut edit, &mut remove);
-    ui.weak("Figures from the along-grain bar (the cross-grain bar where there is no other); E across and the ratio need both bars.");
-    ui.add_space(6.0);
-    ui.horizontal(|ui| {
-        ui.radio_value(
-            &mut state.axes,
-            PlotAxes::SpeedAgainstDensity,
-            "Speed of sound against density",
-        );
-        ui.radio_value(
-            &mut state.axes,
-            PlotAxes::ModulusAgainstDensity,
-            "E against density",
-        );
-    });
-    scatter(ui, &rows, state.axes);
-    if let Some(sample) = edit {
-        load_sample(state, &sample);
-    }
-    if let Some(name) = remove {
-        ctx.push(AppCommand::EditBuild {
-            description: "removing the stock sample".to_owned(),
-            edit: Box::new(move |build| {
-                build.remove_stock_sample(&name)?;
-                Ok(format!("Removed stock sample \"{name}\" from the build."))
-            }),
-        });
-    }
-}
-
-fn stock_table(
-    ui: &mut egui::Ui,
-    rows: &[Row],
-    edit: &mut Option<StockSample>,
-    remove: &mut Option<String>,
-) {
-    egui::Grid::new("stock table")
-        .num_columns(10)
-        .striped(true)
-        .spacing([8.0, 3.0])
-        .show(ui, |ui| {
-            for (title, hover) in [
-                ("Sample", "Hover a name for its source note"),
-                ("Species", ""),
-                ("ρ kg/m³", "Density"),
-                ("E GPa", "Young's modulus along the grain"),
-                ("c m/s", "Speed of sound, √(E/ρ)"),
-                ("c/ρ", "Radiation ratio, m⁴/(kg·s)"),
-                ("E/ρ", "Specific modulus, GPa per g/cm³"),
-                ("E across", "Young's modulus across the grain, GPa"),
-                ("ratio", "E along / E across"),
-                ("", ""),
-            ] {
-                let response = ui.strong(title);
-                if !hover.is_empty() {
-                    response.on_hover_text(hover);
-                }
-            }
-            ui.end_row();
-            let dash = || "–".to_owned();
-            for row in rows {
-                ui.label(&row.sample.name)
-                    .on_hover_text(&row.sample.source_note);
-                ui.label(&row.sample.species);
-                let main = row.main();
-                ui.monospace(main.map_or_else(dash, |f| num(f.density_kg_m3, 0)));
-                ui.monospace(
-                    row.along
-                        .as_ref()
-                        .map_or_else(dash, |f| num(f.youngs_modulus_gpa(), 2)),
-                );
-                ui.monospace(main.map_or_else(dash, |f| num(f.speed_of_sound_m_s, 0)));
-                ui.monospace(main.map_or_else(dash, |f| num(f.radiation_ratio, 2)));
-                ui.monospace(main.map_or_else(dash, |f| num(f.specific_modulus, 1)));
-                ui.monospace(
-                    row.across
-                        .as_ref()
-                        .map_or_else(dash, |f| num(f.youngs_modulus_gpa(), 3)),
-                );
-                ui.monospace(row.sample.grain_ratio().map_or_else(dash, |r| num(r, 1)));
-                ui.horizontal(|ui| {
-                    if ui
-                        .small_button("Edit")
-                        .on_hover_text("Load this sample into the form on the left")
-                        .clicked()
-                    {
-                        *edit = Some(row.sample.clone());
-                    }
-                    if ui
-                        .small_button("Remove")
-                        .on_hover_text("Take this sample out of the build's stock list")
-                        .clicked()
-                    {
-                        *remove = Some(row.sample.name.clone());
-                    }
-                });
-                ui.end_row();
-            }
-        });
-}
-
-/// The plotted point of a row: density and the chosen figure.
-fn point_of(row: &Row, axes: PlotAxes) -> Option<[f64; 2]> {
-    let f = row.main()?;
-    let y = match axes {
-        PlotAxes::SpeedAgainstDensity => f.speed_of_sound_m_s,
-        PlotAxes::ModulusAgainstDensity => f.youngs_modulus_gpa(),
-    };
-    Some([f.density_kg_m3, y])
-}
-
-/// Bounds that hold every point with a margin, so none sits on the edge.
-fn padded_bounds(points: &[[f64; 2]]) -> Option<([f64; 2], [f64; 2])> {
-    let first = points.first()?;
-    let (mut low, mut high) = (*first, *first);
-    for p in points {
-        for axis in 0..2 {
-            low[axis] = low[axis].min(p[axis]);
-            high[axis] = high[axis].max(p[axis]);
-        }
-    }
-    for axis in 0..2 {
-        let span = (high[axis] - low[axis])
-            .max(0.1 * high[axis].abs())
-            .max(1e-9);
-        low[axis] -= 0.2 * span;
-        high[axis] += 0.2 * span;
-    }
-    Some((low, high))
-}
-
-fn scatter(ui: &mut egui::Ui, rows: &[Row], axes: PlotAxes) {
-    let (x_title, y_title) = match axes {
-        PlotAxes::SpeedAgainstDensity => ("Density (kg/m³)", "Speed of sound (m/s)"),
-        PlotAxes::ModulusAgainstDensity => ("Density (kg/m³)", "Young's modulus (GPa)"),
-    };
-    let plot = Plot::new("stock scatter")
-        .height(PLOT_HEIGHT)
-        .legend(Legend::default().position(egui_plot::Corner::RightTop))
-        .x_axis_label(x_title)
-        .y_axis_label(y_title)
-        .allow_scroll(false);
-    let points: Vec<[f64; 2]> = rows.iter().filter_map(|r| point_of(r, axes)).collect();
-    let plot = match padded_bounds(&points) {
-        Some((low, high)) => plot
-            .include_x(low[0])
-            .include_x(high[0])
-            .include_y(low[1])
-            .include_y(high[1]),
-        None => plot,
-    };
-    plot.show(ui, |plot_ui| {
-        for (index, row) in rows.iter().enumerate() {
-            let Some(point) = point_of(row, axes) else {
-                continue;
-            };
-            plot_ui.points(
-                Points::new(row.sample.name.clone(), vec![point])
-                    .color(colour(index))
-                    .radius(5.0)
-                    .filled(true)
-                    .shape(MarkerShape::Circle),
-            );
-        }
-    });
-}
-
-fn colour(index: usize) -> egui::Color32 {
-    const PALETTE: [egui::Color32; 6] = [
-        egui::Color32::from_rgb(86, 170, 255),
-        egui::Color32::from_rgb(255, 160, 60),
-        egui::Color32::from_rgb(90, 200, 120),
-        egui::Color32::from_rgb(230, 90, 120),
-        egui::Color32::from_rgb(180, 130, 250),
-        egui::Color32::from_rgb(200, 190, 70),
-    ];
-    PALETTE[index % PALETTE.len()]
-}
-
 fn load_sample(state: &mut StockAreaState, sample: &StockSample) {
     state.name = sample.name.clone();
     state.species = sample.species.clone();
     state.source_note = sample.source_note.clone();
-    state.along = BarDraft::from_bar(sample.along_grain.as_ref());
-    state.across = BarDraft::from_bar(sample.cross_grain.as_ref());
+    state.along = BarDraft::from_bar(sample.along_grain.as_ref(), state.units);
+    state.across = BarDraft::from_bar(sample.cross_grain.as_ref(), state.units);
 }
