@@ -16,6 +16,7 @@ use tapwright::shapes::synthetic::{synthesize_roving_taps, HeardMode, RovingTapS
 use tapwright::shapes::{
     modal_assurance, tap_grid, ModeShape, Outline, OutlineShape, CARVING_CAUTION,
 };
+use tapwright::text::Units;
 use tapwright::ui::{AppCommand, AppOptions, ListenCommand, SourcePick, StartSource, TapwrightApp};
 use tapwright::wav_io::MonoRecording;
 
@@ -184,7 +185,7 @@ fn a_bad_outline_is_one_sentence_and_no_grid_starts() {
     click(&mut harness, "Shapes");
     harness.get_by_label("Start tapping the grid");
     set_field(&mut harness, "Waist (mm)", "250");
-    harness.get_by_label_contains("waist (250 mm) must be narrower than both bouts");
+    harness.get_by_label_contains("waist (250.0 mm) must be narrower than both bouts");
     assert!(harness.query_by_label("Start tapping the grid").is_none());
     set_field(&mut harness, "Waist (mm)", "111");
     set_field(&mut harness, "Rows along", "0");
@@ -330,4 +331,28 @@ fn a_grid_tapped_live_point_by_point_gives_its_shapes() {
             mode.values
         );
     }
+}
+
+#[test]
+fn the_outline_is_typed_and_told_in_the_maker_s_units() {
+    let mut harness = harness_with(demo_options());
+    demo_finished(&mut harness);
+    harness
+        .state_mut()
+        .queue(AppCommand::SetUnits(Units::imperial()));
+    harness.run_ok();
+    step_until(&mut harness, "the units to apply", |app| !app.is_busy());
+    click(&mut harness, "Shapes");
+    assert!(harness.query_by_label("Waist (mm)").is_none());
+    // The typical violin's 356 mm is 14.015748 in (1 in = 25.4 mm
+    // exactly), shown with the fewest decimals that give 356 mm back.
+    assert_eq!(field_value(&harness, "Length (in)"), "14.01575");
+    // 9 in is 228.6 mm, wider than the typical violin's bouts: the
+    // sentence gives the sizes in inches too.
+    set_field(&mut harness, "Waist (in)", "9");
+    harness.get_by_label_contains("The waist (9.00 in) must be narrower than both bouts");
+    assert!(harness.query_by_label("Start tapping the grid").is_none());
+    // 4.37 in (111.0 mm, the typical waist) draws the grid again.
+    set_field(&mut harness, "Waist (in)", "4.37");
+    harness.get_by_label("Start tapping the grid");
 }

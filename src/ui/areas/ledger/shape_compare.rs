@@ -91,7 +91,6 @@ impl std::fmt::Debug for ShapeCompare {
     }
 }
 
-
 /// The passes of `part` that keep a map, oldest first.
 fn mapped_passes(part: &Part) -> Vec<&Pass> {
     part.passes()

@@ -45,7 +45,6 @@ pub use keep::keep_in_pass;
 /// 151 and 333 Hz), labelled when the demo set is opened.
 const DEMO_SET_LABELS: [(f64, &str); 3] = [(90.0, "mode 1"), (150.7, "mode 2"), (333.4, "mode 5")];
 
-
 /// What the Shapes area remembers between frames. Owned by the app.
 #[derive(Debug, Default)]
 pub struct ShapesAreaState {

@@ -7,9 +7,39 @@
 use eframe::egui;
 
 use crate::ledger::{Build, Family, Part};
-use crate::shapes::{tap_grid, BoutWidths, Outline, OutlineShape, TapPoint};
-use crate::text::units::{convert_typed, parse_in};
-use crate::text::{num, LengthUnit};
+use crate::shapes::{tap_grid, BoutWidths, Outline, OutlineError, OutlineShape, TapPoint};
+use crate::text::units::{convert_typed, field_text, parse_in};
+use crate::text::LengthUnit;
+
+/// Why the outline cannot be drawn, in one sentence with its sizes in the
+/// maker's unit (the core's own message gives them in mm).
+fn outline_problem(problem: &OutlineError, unit: LengthUnit) -> String {
+    let size = |mm: f64| unit.size_text(mm);
+    match problem {
+        OutlineError::NotPositive { what, value } => format!(
+            "The outline's {what} is {}; it must be a positive number.",
+            size(*value)
+        ),
+        OutlineError::WaistTooWide {
+            waist_mm,
+            upper_mm,
+            lower_mm,
+        } => format!(
+            "The waist ({}) must be narrower than both bouts ({} and {}).",
+            size(*waist_mm),
+            size(*upper_mm),
+            size(*lower_mm)
+        ),
+        OutlineError::TooWide {
+            width_mm,
+            length_mm,
+        } => format!(
+            "A bout of {} is wider than the plate is long ({}).",
+            size(*width_mm),
+            size(*length_mm)
+        ),
+    }
+}
 
 /// Which outline the form describes.
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
@@ -100,7 +130,7 @@ impl Default for SetupForm {
 impl SetupForm {
     /// Fills the size fields from an outline, in `unit`.
     pub fn set_outline(&mut self, shape: OutlineShape, unit: LengthUnit) {
-        let text = |mm: f64| num(unit.from_mm(mm), unit.size_decimals());
+        let text = |mm: f64| field_text(unit, mm);
         self.unit = unit;
         match shape {
             OutlineShape::Rectangle {
@@ -152,7 +182,7 @@ impl SetupForm {
                 }
             }
         };
-        Outline::new(shape).map_err(|e| crate::text::sentence(&e.to_string()))
+        Outline::new(shape).map_err(|e| outline_problem(&e, unit))
     }
 
     /// The grid's columns and rows, or one sentence on what is wrong.
@@ -334,16 +364,21 @@ mod tests {
         let outline = form.outline().expect("test value");
         assert_eq!(outline.shape(), OutlineShape::typical_violin());
         form.follow_unit(LengthUnit::Inch);
-        // 356 mm is 14.015748 in (1 in = 25.4 mm exactly), typed back as
-        // the same 356 mm.
-        assert_eq!(form.length, "14.015748");
+        // 356 mm is 14.015748 in (1 in = 25.4 mm exactly): the fewest
+        // decimals that turn back into the same 356 mm.
+        assert_eq!(form.length, "14.01575");
         assert!((form.outline().expect("test value").length_mm() - 356.0).abs() < 1e-4);
         form.follow_unit(LengthUnit::Millimetre);
         assert_eq!(form.length, "356");
         form.follow_unit(LengthUnit::Inch);
+        // 9 in is 228.6 mm, wider than the bouts: said in inches.
         form.waist = "9".to_owned();
         let problem = form.outline().unwrap_err();
-        assert!(problem.contains("waist"), "{problem}");
+        assert!(
+            problem.starts_with("The waist (9.00 in) must be narrower than both bouts ("),
+            "{problem}"
+        );
+        assert!(!problem.contains("mm"), "{problem}");
         form.waist = "four".to_owned();
         assert_eq!(
             form.outline().unwrap_err(),
