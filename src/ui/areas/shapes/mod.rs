@@ -246,7 +246,7 @@ fn open_demo_set(state: &mut ShapesAreaState, ctx: &AreaContext, unit: LengthUni
     state
         .setup
         .set_outline(crate::shapes::OutlineShape::typical_violin(), unit);
-    state.path = path.display().to_string();
+    // The typed path stays the maker's own: the note names the demo set.
     open_set(state, ctx, MapSource::DemoSet, path);
 }
 

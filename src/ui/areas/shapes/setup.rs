@@ -8,8 +8,8 @@ use eframe::egui;
 
 use crate::ledger::{Build, Family, Part};
 use crate::shapes::{tap_grid, BoutWidths, Outline, OutlineError, OutlineShape, TapPoint};
-use crate::text::units::{convert_typed, field_text, parse_in};
-use crate::text::LengthUnit;
+use crate::text::units::{convert_typed, parse_in};
+use crate::text::{number_text, LengthUnit};
 
 /// Why the outline cannot be drawn, in one sentence with its sizes in the
 /// maker's unit (the core's own message gives them in mm).
@@ -130,7 +130,12 @@ impl Default for SetupForm {
 impl SetupForm {
     /// Fills the size fields from an outline, in `unit`.
     pub fn set_outline(&mut self, shape: OutlineShape, unit: LengthUnit) {
-        let text = |mm: f64| field_text(unit, mm);
+        // Rounded as sizes are shown (0.1 mm, 0.01 in): scaled widths
+        // would otherwise fill the fields with digits nobody measured.
+        let text = |mm: f64| {
+            let scale = 10f64.powi(unit.size_decimals() as i32);
+            number_text((unit.from_mm(mm) * scale).round() / scale)
+        };
         self.unit = unit;
         match shape {
             OutlineShape::Rectangle {
