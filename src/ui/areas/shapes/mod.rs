@@ -455,7 +455,8 @@ fn tapping_section(
             ui.label(&news.text);
         }
     }
-    tapping::grid_drawing(ui, tapping, unit, size);
+    // The controls above the drawing, so they stay in sight on a low
+    // window.
     tapping::point_controls(ui, tapping);
     ui.horizontal_wrapped(|ui| {
         let (text, hover) = if tapping.listening {
@@ -482,6 +483,7 @@ fn tapping_section(
             *stop = true;
         }
     });
+    tapping::grid_drawing(ui, tapping, unit, size);
 }
 
 // ----- the middle ------------------------------------------------------------------
