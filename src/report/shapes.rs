@@ -116,9 +116,13 @@ pub fn shape_section(part: &Part) -> Markup {
     }
 }
 
-/// One mode of a map as SVG; the problem as a sentence if it cannot be
-/// drawn.
-pub fn shape_svg(map: &StoredShapeMap, mode: &StoredModeShape) -> Result<String, String> {
+/// A mode of a kept map fitted over its outline, about `STEPS_ALONG`
+/// raster steps along the plate (the report's drawings and the Ledger's
+/// side-by-side view); the core's words if it cannot be.
+pub fn stored_mode_drawing(
+    map: &StoredShapeMap,
+    mode: &StoredModeShape,
+) -> Result<(Outline, ModeDrawing), String> {
     let outline = Outline::new(map.outline).map_err(|e| e.to_string())?;
     let step_mm = (outline.length_mm() / STEPS_ALONG).max(0.5);
     let drawing = ModeDrawing::new(
@@ -128,7 +132,14 @@ pub fn shape_svg(map: &StoredShapeMap, mode: &StoredModeShape) -> Result<String,
         &mode.uncertainties,
         step_mm,
     )
-    .map_err(|e| {
+    .map_err(|e| e.to_string())?;
+    Ok((outline, drawing))
+}
+
+/// One mode of a map as SVG; the problem as a sentence if it cannot be
+/// drawn.
+pub fn shape_svg(map: &StoredShapeMap, mode: &StoredModeShape) -> Result<String, String> {
+    let (outline, drawing) = stored_mode_drawing(map, mode).map_err(|e| {
         format!(
             "the shape at {} Hz cannot be drawn: {e}",
             num(mode.frequency_hz, 1)

@@ -125,6 +125,19 @@ pub struct Marker {
     pub hover: String,
 }
 
+impl Marker {
+    /// A marker of `kind` at `point`, named after it.
+    pub fn at(point: &TapPoint, kind: MarkerKind, hover: String) -> Self {
+        Self {
+            x_mm: point.x_mm,
+            y_mm: point.y_mm,
+            kind,
+            name: point.name.clone(),
+            hover,
+        }
+    }
+}
+
 /// A map's values at its tap points as markers: the dot's size is the
 /// value's size, a ring around it adds the spread over the point's taps,
 /// and a point whose sign is not certain (within
@@ -155,25 +168,21 @@ pub fn value_markers(
                 .and_then(|t| t.get(i))
                 .map(|n| format!(" over {n} tap{}", if *n == 1 { "" } else { "s" }))
                 .unwrap_or_default();
-            Marker {
-                x_mm: p.x_mm,
-                y_mm: p.y_mm,
-                kind: MarkerKind::Value {
-                    value: if value.is_finite() { value } else { 0.0 },
-                    spread,
-                    certain,
-                },
-                name: p.name.clone(),
-                hover: format!(
-                    "{}: {} (spread {}{taps_note}; uncertainty {}), {sign_note}. Across {}, along {}.",
-                    p.name,
-                    signed(value, 2),
-                    num(spread, 2),
-                    num(uncertainty, 2),
-                    unit.size_text(p.x_mm),
-                    unit.size_text(p.y_mm)
-                ),
-            }
+            let kind = MarkerKind::Value {
+                value: if value.is_finite() { value } else { 0.0 },
+                spread,
+                certain,
+            };
+            let hover = format!(
+                "{}: {} (spread {}{taps_note}; uncertainty {}), {sign_note}. Across {}, along {}.",
+                p.name,
+                signed(value, 2),
+                num(spread, 2),
+                num(uncertainty, 2),
+                unit.size_text(p.x_mm),
+                unit.size_text(p.y_mm)
+            );
+            Marker::at(p, kind, hover)
         })
         .collect()
 }

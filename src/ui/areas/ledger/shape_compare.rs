@@ -8,6 +8,7 @@ use std::collections::HashMap;
 use eframe::egui::{self, TextureHandle, TextureOptions};
 
 use crate::ledger::{Part, Pass, StoredModeShape, StoredShapeMap};
+use crate::report::shapes::stored_mode_drawing;
 use crate::shapes::{ModeDrawing, Outline};
 use crate::text::num;
 use crate::ui::context::AreaContext;
@@ -16,8 +17,6 @@ use crate::ui::widgets::plate_view::{field_image, legend, value_markers, Palette
 /// A map's mode counts as the same as one chosen by frequency within this
 /// relative distance (a pass of thinning moves a mode by a few per cent).
 const SAME_MODE_REACH: f64 = 0.15;
-/// Raster steps along the plate for these drawings.
-const STEPS_ALONG: f64 = 120.0;
 
 /// Which mode to show in both maps.
 #[derive(Clone, Debug, PartialEq)]
@@ -294,16 +293,8 @@ fn draw(
     pass: u32,
     index: usize,
 ) -> Result<(ModeDrawing, TextureHandle), String> {
-    let outline = Outline::new(map.outline).map_err(|e| crate::text::sentence(&e.to_string()))?;
-    let step_mm = (outline.length_mm() / STEPS_ALONG).max(0.5);
-    let drawing = ModeDrawing::new(
-        &outline,
-        &map.tap_points(),
-        &mode.values,
-        &mode.uncertainties,
-        step_mm,
-    )
-    .map_err(|e| crate::text::sentence(&format!("pass {pass}'s map cannot be drawn: {e}")))?;
+    let (outline, drawing) = stored_mode_drawing(map, mode)
+        .map_err(|e| crate::text::sentence(&format!("pass {pass}'s map cannot be drawn: {e}")))?;
     let image = field_image(
         &outline,
         &drawing.raster,

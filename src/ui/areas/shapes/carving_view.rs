@@ -110,13 +110,7 @@ pub fn carving_panel(ui: &mut egui::Ui, shown: &mut MapShown, max_size: egui::Ve
         .map
         .points
         .iter()
-        .map(|p| Marker {
-            x_mm: p.x_mm,
-            y_mm: p.y_mm,
-            kind: MarkerKind::Plain,
-            name: p.name.clone(),
-            hover: p.name.clone(),
-        })
+        .map(|p| Marker::at(p, MarkerKind::Plain, p.name.clone()))
         .collect();
     let description = match (&spare_name, shown.guide) {
         (None, _) => format!("Carving guide for {name}"),

@@ -392,17 +392,14 @@ fn grid_preview(
 ) {
     let markers: Vec<Marker> = grid
         .iter()
-        .map(|p| Marker {
-            x_mm: p.x_mm,
-            y_mm: p.y_mm,
-            kind: MarkerKind::Plain,
-            name: p.name.clone(),
-            hover: format!(
+        .map(|p| {
+            let hover = format!(
                 "{}: across {}, along {}",
                 p.name,
                 unit.size_text(p.x_mm),
                 unit.size_text(p.y_mm)
-            ),
+            );
+            Marker::at(p, MarkerKind::Plain, hover)
         })
         .collect();
     ui.weak(format!(

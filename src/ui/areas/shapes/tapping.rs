@@ -174,22 +174,18 @@ pub fn grid_drawing(
         .enumerate()
         .map(|(i, p)| {
             let taps = tapping.survey.taps_at(i).len();
-            Marker {
-                x_mm: p.x_mm,
-                y_mm: p.y_mm,
-                kind: MarkerKind::Survey {
-                    taps,
-                    wanted,
-                    current: i == current,
-                },
-                name: p.name.clone(),
-                hover: format!(
-                    "{}: {taps} of {wanted} good taps (across {}, along {}); click to tap it next",
-                    p.name,
-                    unit.size_text(p.x_mm),
-                    unit.size_text(p.y_mm)
-                ),
-            }
+            let kind = MarkerKind::Survey {
+                taps,
+                wanted,
+                current: i == current,
+            };
+            let hover = format!(
+                "{}: {taps} of {wanted} good taps (across {}, along {}); click to tap it next",
+                p.name,
+                unit.size_text(p.x_mm),
+                unit.size_text(p.y_mm)
+            );
+            Marker::at(p, kind, hover)
         })
         .collect();
     let view = PlateView {
