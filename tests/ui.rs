@@ -388,11 +388,6 @@ fn a_new_band_measures_the_taps_already_heard_again() {
     );
 }
 
-fn click(harness: &mut egui_kittest::Harness<'_, TapwrightApp>, label: &str) {
-    harness.get_by_label(label).click();
-    harness.run_ok();
-}
-
 /// The app started on an input device that cannot be opened, so it falls
 /// back to the demo recording (as it does without a sound card), in a
 /// window of `size` points.

@@ -15,18 +15,6 @@ use tapwright::demo::SAMPLE_BUILDS;
 use tapwright::ledger::{store, Build};
 use tapwright::ui::{AppCommand, AppOptions, TapwrightApp};
 
-fn click(harness: &mut Harness<'_, TapwrightApp>, label: &str) {
-    harness.get_by_label(label).click();
-    harness.run_ok();
-}
-
-fn type_into(harness: &mut Harness<'_, TapwrightApp>, label: &str, text: &str) {
-    let field = harness.get_by_label(label);
-    field.focus();
-    field.type_text(text);
-    harness.run_ok();
-}
-
 fn build(harness: &Harness<'_, TapwrightApp>) -> Build {
     harness.state().build().cloned().expect("an open build")
 }

@@ -23,18 +23,6 @@ use tapwright::ui::{AppCommand, AppOptions, TapwrightApp};
 const MM_PER_INCH: f64 = 25.4;
 const GRAMS_PER_OUNCE: f64 = 28.349_523_125;
 
-fn click(harness: &mut Harness<'_, TapwrightApp>, label: &str) {
-    harness.get_by_label(label).click();
-    harness.run_ok();
-}
-
-fn type_into(harness: &mut Harness<'_, TapwrightApp>, label: &str, text: &str) {
-    let field = harness.get_by_label(label);
-    field.focus();
-    field.type_text(text);
-    harness.run_ok();
-}
-
 /// The top bar's units button.
 fn units_button(harness: &Harness<'_, TapwrightApp>) -> String {
     format!("Units: {}", harness.state().units().name())

@@ -305,7 +305,7 @@ pub trait Unit: Copy + PartialEq {
     /// A value in this unit as the stored value.
     fn to_stored(self, value: f64) -> f64;
     /// A stored value in this unit.
-    fn from_stored(self, stored: f64) -> f64;
+    fn shown_from_stored(self, stored: f64) -> f64;
 }
 
 impl Unit for LengthUnit {
@@ -315,7 +315,7 @@ impl Unit for LengthUnit {
     fn to_stored(self, value: f64) -> f64 {
         self.to_mm(value)
     }
-    fn from_stored(self, stored: f64) -> f64 {
+    fn shown_from_stored(self, stored: f64) -> f64 {
         self.from_mm(stored)
     }
 }
@@ -327,7 +327,7 @@ impl Unit for MassUnit {
     fn to_stored(self, value: f64) -> f64 {
         self.to_g(value)
     }
-    fn from_stored(self, stored: f64) -> f64 {
+    fn shown_from_stored(self, stored: f64) -> f64 {
         self.from_g(stored)
     }
 }
@@ -339,7 +339,7 @@ impl Unit for TemperatureUnit {
     fn to_stored(self, value: f64) -> f64 {
         self.to_c(value)
     }
-    fn from_stored(self, stored: f64) -> f64 {
+    fn shown_from_stored(self, stored: f64) -> f64 {
         self.from_c(stored)
     }
 }
@@ -351,7 +351,7 @@ impl Unit for VolumeUnit {
     fn to_stored(self, value: f64) -> f64 {
         self.to_m3(value)
     }
-    fn from_stored(self, stored: f64) -> f64 {
+    fn shown_from_stored(self, stored: f64) -> f64 {
         self.from_m3(stored)
     }
 }
@@ -386,7 +386,7 @@ fn without_trailing_zeros(text: String) -> String {
 /// is filled with. Read back, it is the stored value to six significant
 /// digits.
 pub fn field_text<U: Unit>(unit: U, stored: f64) -> String {
-    number_text(unit.from_stored(stored))
+    number_text(unit.shown_from_stored(stored))
 }
 
 /// A number typed in `unit` into the field `what`, by the one rule of
@@ -424,11 +424,14 @@ pub fn convert_typed<U: Unit>(text: &mut String, from: U, to: U) {
     let digits = significant_digits(text).max(6);
     let as_typed = significant_text(value, digits);
     let comes_back = |candidate: &String| {
-        read_number(candidate)
-            .is_ok_and(|v| significant_text(from.from_stored(to.to_stored(v)), digits) == as_typed)
+        read_number(candidate).is_ok_and(|v| {
+            significant_text(from.shown_from_stored(to.to_stored(v)), digits) == as_typed
+        })
     };
     *text = (0..=9)
-        .map(|decimals| without_trailing_zeros(format!("{:.decimals$}", to.from_stored(stored))))
+        .map(|decimals| {
+            without_trailing_zeros(format!("{:.decimals$}", to.shown_from_stored(stored)))
+        })
         .find(comes_back)
         .unwrap_or_else(|| field_text(to, stored));
 }

@@ -69,6 +69,21 @@ pub fn demo_finished(harness: &mut Harness<'_, TapwrightApp>) {
     });
 }
 
+/// Clicks the widget labelled `label` and lets the frame settle.
+pub fn click(harness: &mut Harness<'_, TapwrightApp>, label: &str) {
+    harness.get_by_label(label).click();
+    harness.run_ok();
+}
+
+/// Types `text` into the field labelled `label`, key by key (as a maker
+/// would; [`set_field`] replaces the value at once).
+pub fn type_into(harness: &mut Harness<'_, TapwrightApp>, label: &str, text: &str) {
+    let field = harness.get_by_label(label);
+    field.focus();
+    field.type_text(text);
+    harness.run_ok();
+}
+
 /// Replaces the text of the field labelled `label`.
 pub fn set_field(harness: &mut Harness<'_, TapwrightApp>, label: &str, text: &str) {
     harness.get_by_label(label).set_text_value_accesskit(text);

@@ -87,7 +87,7 @@ impl Unit for VolumeUnit {
     fn to_stored(self, value: f64) -> f64 {
         self.to_m3(value)
     }
-    fn from_stored(self, stored: f64) -> f64 {
+    fn shown_from_stored(self, stored: f64) -> f64 {
         stored / self.m3_per_unit()
     }
 }
