@@ -20,11 +20,6 @@ use tapwright::text::Units;
 use tapwright::ui::{AppCommand, AppOptions, ListenCommand, SourcePick, StartSource, TapwrightApp};
 use tapwright::wav_io::MonoRecording;
 
-fn click(harness: &mut Harness<'_, TapwrightApp>, label: &str) {
-    harness.get_by_label(label).click();
-    harness.run_ok();
-}
-
 /// Scrolls the widget into view first (for the Ledger's lower part).
 fn scroll_and_click(harness: &mut Harness<'_, TapwrightApp>, label: &str) {
     harness.get_by_label(label).scroll_to_me();
