@@ -60,7 +60,28 @@ fn the_demo_set_is_mapped_looked_at_kept_in_a_pass_and_compared_in_the_ledger() 
         !app.shapes().map_shapes().is_empty() && !app.is_busy()
     });
     harness.get_by_label_contains("Map of the demo set");
-    harness.get_by_label_contains("left out by the trigger: 7B (double strike)");
+    // Every one of the set's 90 taps (45 points, two each) is either used
+    // or named as left out by the trigger, with its point and reason (7B's
+    // first tap as a double strike while the trigger refuses it).
+    let summary = harness
+        .get_by_label_contains("taps used")
+        // A label's text is its AccessKit value.
+        .value()
+        .expect("the map's summary");
+    let used: usize = summary
+        .split(" taps used")
+        .next()
+        .and_then(|head| head.rsplit(' ').next())
+        .and_then(|n| n.parse().ok())
+        .unwrap_or_else(|| panic!("a count of taps used in {summary:?}"));
+    let left_out = summary
+        .split("left out by the trigger: ")
+        .nth(1)
+        .map_or(0, |list| list.split(", ").count());
+    assert_eq!(used + left_out, 90, "{summary}");
+    if left_out > 0 {
+        assert!(summary.contains("7B (double strike)"), "{summary}");
+    }
 
     // Modes 1, 2 and 5 of the invented plate are in the list, labelled.
     let shapes = map_shapes(&harness);
