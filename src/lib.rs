@@ -4,7 +4,8 @@
 //! pure; `ledger` holds the build model and its files; `audio` is the only
 //! code that touches audio devices (input and output); `text` words
 //! messages and numbers for people; `report` writes the build report; `ui`
-//! is the eframe window; `cli` holds the subcommands. `wav_io` reads and
+//! is the eframe window; `cli` holds the subcommands. `roving_set` reads a
+//! recorded roving-tap set (points file and recordings). `wav_io` reads and
 //! writes recordings and `atomic_file` writes every file whole or not at
 //! all.
 
@@ -16,6 +17,7 @@ pub mod cli;
 pub mod demo;
 pub mod ledger;
 pub mod report;
+pub mod roving_set;
 pub mod shapes;
 pub mod text;
 pub mod ui;

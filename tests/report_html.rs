@@ -1,16 +1,21 @@
 //! The build report: the report of each sample build is valid HTML (parsed
 //! with html5ever through scraper, no parse errors), holds every pass and
-//! one SVG chart per labelled mode of each part; user text is escaped; the
-//! `report` command writes the file whole and answers bad input with one
-//! sentence and exit code 2.
+//! one SVG chart per labelled mode of each part, and one drawing per
+//! labelled mode of each pass that keeps a shape map; user text is
+//! escaped; the `report` command writes the file whole and answers bad
+//! input with one sentence and exit code 2.
 
 use std::path::Path;
 use std::process::{Command, Output};
 
 use scraper::{Html, Selector};
 use tapwright::acoustics::{CavityGeometry, Opening};
-use tapwright::ledger::{store, Build, Family, MeasuredMode, PartKind, PassInput, Timestamp};
+use tapwright::ledger::{
+    store, Build, Family, MeasuredMode, PartKind, PassInput, StoredModeShape, StoredShapeMap,
+    StoredTapPoint, Timestamp,
+};
 use tapwright::report::{build_report_html, ReportSettings};
+use tapwright::shapes::{tap_grid, Outline, OutlineShape};
 use tapwright::text::Units;
 
 const SAMPLES: [&str; 2] = [
@@ -299,6 +304,124 @@ fn the_stock_samples_are_in_the_report() {
             sample.name
         );
     }
+}
+
+/// A map of three modes over a 5 × 9 grid on a violin outline: a ring
+/// (labelled mode 5), a twist (labelled mode 2) and one without a label.
+/// Shapes written here from simple functions (not measured).
+fn ring_and_twist_map() -> StoredShapeMap {
+    let shape = OutlineShape::typical_violin();
+    let outline = Outline::new(shape).expect("typical violin");
+    let grid = tap_grid(&outline, 5, 9).expect("a 5 × 9 grid");
+    let ring = |x: f64, y: f64| {
+        let r = ((x / 90.0).powi(2) + ((y - 178.0) / 150.0).powi(2)).sqrt();
+        (std::f64::consts::PI * r).cos()
+    };
+    let twist = |x: f64, y: f64| x * (y - 178.0);
+    let bend = |_: f64, y: f64| ((y - 178.0) / 178.0).powi(2) - 0.3;
+    let mode = |f: &dyn Fn(f64, f64) -> f64, hz: f64, label: Option<&str>| {
+        let raw: Vec<f64> = grid.iter().map(|p| f(p.x_mm, p.y_mm)).collect();
+        let peak = raw.iter().fold(0.0f64, |m, v| m.max(v.abs()));
+        let values: Vec<f64> = raw.iter().map(|v| v / peak).collect();
+        // Points near zero get a larger uncertainty: their sign is not
+        // certain there.
+        let uncertainties = values
+            .iter()
+            .map(|v| if v.abs() < 0.05 { 0.05 } else { 0.01 })
+            .collect();
+        StoredModeShape {
+            frequency_hz: hz,
+            q: 50.0,
+            label: label.map(str::to_owned),
+            spreads: vec![0.01; values.len()],
+            values,
+            uncertainties,
+            quality: 0.98,
+        }
+    };
+    StoredShapeMap {
+        outline: shape,
+        points: grid
+            .iter()
+            .map(|p| StoredTapPoint {
+                name: p.name.clone(),
+                x_mm: p.x_mm,
+                y_mm: p.y_mm,
+                taps: 2,
+            })
+            .collect(),
+        modes: vec![
+            mode(&twist, 150.0, Some("mode 2")),
+            mode(&bend, 240.0, None),
+            mode(&ring, 333.0, Some("mode 5")),
+        ],
+    }
+}
+
+#[test]
+fn a_pass_with_a_shape_map_gets_a_drawing_of_each_labelled_mode() {
+    let mut build = sample(SAMPLES[0]);
+    let map = ring_and_twist_map();
+    let points = map.points.len();
+    let top = build.part_mut("Top").expect("sample has a top");
+    let latest = top.latest_pass().expect("passes").number();
+    top.pass_mut(latest).expect("latest pass").shape_map = Some(map);
+    build.validate().expect("the map fits the build");
+    let html = build_report_html(&build, &settings());
+    let document = parse_without_errors(&html);
+    assert!(only_svg_namespace(&html));
+    let passes: Vec<_> = document.select(&select("div.shape-pass")).collect();
+    assert_eq!(passes.len(), 1, "one pass keeps a map");
+    assert_eq!(
+        passes[0].value().attr("data-pass"),
+        Some(latest.to_string().as_str())
+    );
+    // The two labelled modes are drawn, the unlabelled one is not.
+    let figures: Vec<_> = document.select(&select("figure.shape-map")).collect();
+    let labels: Vec<&str> = figures
+        .iter()
+        .filter_map(|f| f.value().attr("data-label"))
+        .collect();
+    assert_eq!(labels, ["mode 2", "mode 5"]);
+    for figure in &figures {
+        let svg = figure.select(&select("svg")).next().expect("an SVG");
+        let markup = svg.html();
+        // Outline and at least one nodal line; a dot and its ring at every
+        // tap point; colour bands.
+        assert!(
+            markup.matches("<polyline").count() >= 2,
+            "{}",
+            &markup[..200]
+        );
+        assert_eq!(markup.matches("<circle").count(), 2 * points);
+        assert!(markup.matches("<rect").count() > 100);
+        // Small enough to print many (bands are merged along each row).
+        assert!(markup.len() < 150_000, "{} bytes", markup.len());
+    }
+    let caption: String = figures[1]
+        .select(&select("figcaption"))
+        .next()
+        .expect("caption")
+        .text()
+        .collect();
+    assert_eq!(caption, "mode 5 · 333.0 Hz · quality 0.98");
+    // The ring's sign changes across its nodal line: both colour ends are
+    // used for the dots (blue and orange of the shape scale).
+    let ring = figures[1].html();
+    assert!(
+        ring.contains("#1C4E96") && ring.contains("#A84A0C"),
+        "dot colours"
+    );
+    // Points near the nodal line are drawn hollow grey.
+    assert!(ring.contains("#EBEBEB"));
+}
+
+#[test]
+fn a_build_without_shape_maps_has_no_shape_section() {
+    let html = build_report_html(&sample(SAMPLES[0]), &settings());
+    let document = parse_without_errors(&html);
+    assert_eq!(document.select(&select("div.shape-pass")).count(), 0);
+    assert!(!html.contains("Mode shapes"));
 }
 
 /// The violin sample's report in inches, ounces and °F: the pass heads,

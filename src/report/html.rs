@@ -11,6 +11,7 @@ use crate::ledger::compare::{mode5_interval_semitones, plate_modes, top_and_back
 use crate::ledger::{Build, Forecast, FrequencyChange, Part, PartKind, Pass};
 
 use super::charts::{mode_chart_svg, series_colour, ModeChart};
+use super::shapes::shape_section;
 use super::ReportSettings;
 use crate::text::forecast::{caution_text, method_text};
 use crate::text::{capitalised, date_text, note_text, num, signed, MassUnit, Units};
@@ -43,6 +44,10 @@ table.facts td { border-bottom: 0.4pt solid #ddd; }
 figure.mode-chart { margin: 2mm 0 4mm; break-inside: avoid; page-break-inside: avoid; }
 figure.mode-chart svg { width: 100%; height: auto; display: block; }
 figcaption { font-size: 8.5pt; color: #555; }
+h4 { font-size: 10pt; margin: 3mm 0 1mm; }
+div.shape-pass { break-inside: avoid; page-break-inside: avoid; }
+figure.shape-map { display: inline-block; vertical-align: top; width: 30%; margin: 1mm 2% 3mm 0; }
+figure.shape-map svg { width: 100%; height: auto; display: block; }
 section.part { break-before: page; page-break-before: always; }
 section.cautions { border: 0.8pt solid #c9a13b; background: #fffaf0; padding: 1mm 4mm; margin: 4mm 0; }
 section.cautions li { margin: 1mm 0; }
@@ -311,7 +316,8 @@ fn latest_body_a0(build: &Build) -> Option<(String, u32, f64)> {
         .last()
 }
 
-/// One part: its passes, its charts, its targets and forecasts.
+/// One part: its passes, its charts, its mode shapes, its targets and
+/// forecasts.
 pub fn part_section(part: &Part, settings: &ReportSettings) -> Markup {
     html! {
         section.part data-part=(part.name()) {
@@ -319,6 +325,7 @@ pub fn part_section(part: &Part, settings: &ReportSettings) -> Markup {
             p.meta { (part_about(part, settings.units)) }
             (pass_table(part, settings))
             (mode_charts(part, settings.units.mass))
+            (shape_section(part))
             (targets_and_forecasts(part, settings.units))
         }
     }

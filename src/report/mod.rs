@@ -7,10 +7,12 @@
 //! It sits beside `cli` and `ui`, above `ledger` and `acoustics`, and only
 //! presents what those compute (pass changes, forecasts, the top/back
 //! comparison, the cavity estimate). `html` has one function per section;
-//! `charts` draws the SVG with plotters.
+//! `charts` draws the SVG with plotters; `shapes` draws each labelled
+//! mode's shape of the passes that keep a shape map, the same way.
 
 pub mod charts;
 pub mod html;
+pub mod shapes;
 
 use std::path::{Path, PathBuf};
 

@@ -23,13 +23,16 @@ pub enum Area {
     Stock,
     /// A tone at a mode's frequency for Chladni patterns.
     Drive,
+    /// Roving taps over a grid: shape maps and the carving guide.
+    Shapes,
 }
 
 impl Area {
     /// Every area, in the order of the top bar.
-    pub const ALL: [Area; 5] = [
+    pub const ALL: [Area; 6] = [
         Area::Listen,
         Area::Ledger,
+        Area::Shapes,
         Area::Air,
         Area::Stock,
         Area::Drive,
@@ -43,6 +46,7 @@ impl Area {
             Area::Air => "Air",
             Area::Stock => "Stock",
             Area::Drive => "Drive",
+            Area::Shapes => "Shapes",
         }
     }
 }
@@ -91,6 +95,17 @@ pub enum AppCommand {
         input: PassInput,
         /// One optional label per mode of `input.modes`.
         labels: Vec<Option<String>>,
+    },
+    /// Keep a shape map with a pass of a part (replacing any map kept
+    /// there); labels on its modes that the part lacks join its label set.
+    /// The build is saved when it has a file.
+    KeepShapeMap {
+        /// The part's name.
+        part: String,
+        /// The pass's number.
+        pass: u32,
+        /// The map.
+        map: Box<crate::ledger::StoredShapeMap>,
     },
     /// Make Listen offer the labels of this part of the open build (None:
     /// the trade's preset labels).
@@ -173,6 +188,9 @@ impl std::fmt::Debug for AppCommand {
             Self::EditBuild { description, .. } => write!(f, "EditBuild({description:?})"),
             Self::RecordPass { part, labels, .. } => {
                 write!(f, "RecordPass({part:?}, {labels:?})")
+            }
+            Self::KeepShapeMap { part, pass, .. } => {
+                write!(f, "KeepShapeMap({part:?}, pass {pass})")
             }
             Self::SetListenPart(part) => write!(f, "SetListenPart({part:?})"),
             Self::SetUnits(units) => write!(f, "SetUnits({units:?})"),

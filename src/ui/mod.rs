@@ -1,5 +1,5 @@
-//! The workbench window: eframe (glow renderer) with five areas, Listen,
-//! Ledger, Air, Stock and Drive.
+//! The workbench window: eframe (glow renderer) with six areas, Listen,
+//! Ledger, Shapes, Air, Stock and Drive.
 //!
 //! - `shell/`: the frame loop and command dispatch, the open document, the
 //!   input, the window's own background jobs; it owns all the state.

@@ -1,4 +1,5 @@
-//! The areas of the window, one module each. An area draws from what it is
+//! The areas of the window, one module each (Listen, Ledger, Shapes, Air,
+//! Stock, Drive). An area draws from what it is
 //! given (its own view state and an [`AreaContext`](crate::ui::context::AreaContext))
 //! and asks for changes by pushing commands; no area imports another area
 //! or the shell.
@@ -7,4 +8,5 @@ pub mod air;
 pub mod drive;
 pub mod ledger;
 pub mod listen;
+pub mod shapes;
 pub mod stock;

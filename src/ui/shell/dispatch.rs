@@ -28,6 +28,7 @@ impl TapwrightApp {
                 input,
                 labels,
             } => self.record_pass(&part, input, &labels),
+            AppCommand::KeepShapeMap { part, pass, map } => self.keep_shape_map(&part, pass, *map),
             AppCommand::SetListenPart(part) => self.pass.listen_part = part,
             AppCommand::SetUnits(units) => self.set_units(units),
             AppCommand::ShowMessage(text) => self.set_message(text),

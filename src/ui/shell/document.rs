@@ -9,8 +9,9 @@ use super::saver::{BuildSaver, SaveCheck, SaveDone, SaveProblem, SaveStamp};
 use super::work::{self, FilePurpose};
 use super::TapwrightApp;
 use crate::ledger::store::DiskFingerprint;
-use crate::ledger::{Build, Family, PassInput};
+use crate::ledger::{Build, Family, PassInput, StoredShapeMap};
 use crate::text::sentence;
+use crate::ui::areas::shapes::keep_in_pass;
 use crate::ui::commands::BuildEdit;
 
 /// The open build and everything about its file.
@@ -214,6 +215,28 @@ impl TapwrightApp {
                 "While {description}: {}",
                 sentence(&error.to_string())
             )),
+        }
+    }
+
+    /// Keeps a shape map with a pass (see `areas::shapes::keep_in_pass`)
+    /// and saves the build when it has a file, as after recording a pass.
+    pub(super) fn keep_shape_map(&mut self, part_name: &str, pass: u32, map: StoredShapeMap) {
+        let Some(build) = self.document.build.as_mut() else {
+            self.set_error("Open or start a build first.".to_owned());
+            return;
+        };
+        match keep_in_pass(build, part_name, pass, map) {
+            Ok(text) => {
+                self.document.mark_changed();
+                match self.document.path.clone() {
+                    Some(path) => {
+                        self.set_message(format!("{text} Saving the build."));
+                        self.document.queue_save(path, SaveCheck::IfUnchanged);
+                    }
+                    None => self.set_message(format!("{text} Save the build to keep it.")),
+                }
+            }
+            Err(problem) => self.set_error(problem),
         }
     }
 

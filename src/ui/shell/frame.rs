@@ -15,6 +15,7 @@ use crate::ui::areas::air::{self, AirAreaState};
 use crate::ui::areas::drive::{self, DriveAreaState};
 use crate::ui::areas::ledger::{self, LedgerAreaState};
 use crate::ui::areas::listen::{self, ListenFacts, ListenView};
+use crate::ui::areas::shapes::{self, ShapesAreaState, ShapesFacts};
 use crate::ui::areas::stock::{self, StockAreaState};
 use crate::ui::commands::{AppCommand, Area, ListenCommand};
 use crate::ui::context::AreaContext;
@@ -34,6 +35,7 @@ pub(super) struct AreaStates {
     pub air: AirAreaState,
     pub stock: StockAreaState,
     pub drive: DriveAreaState,
+    pub shapes: ShapesAreaState,
 }
 
 impl AreaStates {
@@ -45,6 +47,7 @@ impl AreaStates {
             air: AirAreaState::default(),
             stock: StockAreaState::default(),
             drive: DriveAreaState::new(drive_output),
+            shapes: ShapesAreaState::default(),
         }
     }
 }
@@ -179,6 +182,12 @@ impl TapwrightApp {
                 };
                 listen::show(ui, &mut areas.listen, &facts, &mut ctx);
             }
+            Area::Shapes => {
+                let facts = ShapesFacts { input: &input.view };
+                egui::CentralPanel::default().show(ui, |ui| {
+                    shapes::show(ui, &mut areas.shapes, &facts, &mut ctx);
+                });
+            }
             area => {
                 let AreaStates {
                     ledger: ledger_state,
@@ -191,7 +200,7 @@ impl TapwrightApp {
                     Area::Ledger => ledger::show(ui, ledger_state, &mut ctx),
                     Area::Stock => stock::show(ui, stock_state, &mut ctx),
                     Area::Drive => drive::show(ui, drive_state, &mut ctx, ledger_state.selection()),
-                    Area::Air | Area::Listen => air::show(ui, air_state, &mut ctx),
+                    Area::Air | Area::Listen | Area::Shapes => air::show(ui, air_state, &mut ctx),
                 });
             }
         }

@@ -95,7 +95,12 @@ impl TapwrightApp {
         self.input.view.state = SourceState::Starting;
         self.input.view.sample_rate_hz = None;
         let source = match &pick {
-            SourcePick::Demo => match crate::demo::demo_recording() {
+            SourcePick::Demo => match self
+                .options
+                .demo_recording
+                .clone()
+                .map_or_else(crate::demo::demo_recording, Ok)
+            {
                 Ok(recording) => {
                     for (frequency_hz, label) in DEMO_LABELS {
                         self.pass.session.remember_label(frequency_hz, label);
@@ -230,9 +235,14 @@ impl TapwrightApp {
         }
     }
 
-    /// A tap joins the pass; the plot shows the whole band again at the
-    /// first kept one.
+    /// A tap joins the pass (or the grid being tapped in Shapes); the plot
+    /// shows the whole band again at the first kept one.
     fn add_tap(&mut self, tap: Tap) {
+        // A grid being tapped in Shapes takes the taps while it listens.
+        if self.areas.shapes.wants_taps() {
+            self.areas.shapes.take_live_tap(tap);
+            return;
+        }
         let first = tap.is_accepted() && self.pass.session.pass().is_none();
         self.pass.session.add_tap(tap);
         if first {

@@ -77,6 +77,9 @@ pub struct AppOptions {
     pub started_at: Option<Instant>,
     /// Where the Drive area plays its tone.
     pub drive_output: OutputChoice,
+    /// What the demo source replays (None: the bundled demo recording);
+    /// tests give their own taps here, to play them as if live.
+    pub demo_recording: Option<crate::wav_io::MonoRecording>,
     /// The folder whose `preferences.ron` holds the maker's units between
     /// runs (the window passes the user's configuration folder, see
     /// `ui::preferences`); None: nothing is read or written and the window
@@ -93,6 +96,7 @@ impl Default for AppOptions {
             sample_build_with_demo: false,
             started_at: None,
             drive_output: OutputChoice::default(),
+            demo_recording: None,
             preferences_folder: None,
         }
     }
@@ -262,6 +266,11 @@ impl TapwrightApp {
     /// The Drive area's state (its tone).
     pub fn drive(&self) -> &DriveAreaState {
         &self.areas.drive
+    }
+
+    /// The Shapes area's state (the grid being tapped, the map shown).
+    pub fn shapes(&self) -> &crate::ui::areas::shapes::ShapesAreaState {
+        &self.areas.shapes
     }
 
     /// The open build.

@@ -6,7 +6,8 @@
 //! details, its parts, the form that records the Listen result as a new pass,
 //! and the top-against-back comparison; in the middle the chosen part's pass
 //! table, the chosen pass's modes (labels to confirm or change), the charts,
-//! and the targets with their forecasts.
+//! the targets with their forecasts, and two passes' shape maps side by
+//! side when the part has any.
 //!
 //! Nothing here changes the build: every change is an [`AppCommand`]
 //! (`NewBuild`, `OpenBuild`, `SaveBuild`, `EditBuild`, `RecordPass` …)
@@ -21,6 +22,7 @@ mod files;
 mod forecasts;
 mod parts;
 mod record;
+mod shape_compare;
 mod table;
 
 use std::collections::{BTreeSet, HashMap};
@@ -73,6 +75,8 @@ pub struct LedgerAreaState {
     target_note: Option<Note>,
     /// Dialogs and CSV writes running on other threads.
     files: files::FileJobs,
+    /// Two passes' shape maps side by side.
+    shape_compare: shape_compare::ShapeCompare,
 }
 
 impl LedgerAreaState {
@@ -646,6 +650,7 @@ fn central(ui: &mut egui::Ui, state: &mut LedgerAreaState, build: &Build, ctx: &
         ui.separator();
         forecasts::targets_and_forecasts(ui, state, part, ctx);
     }
+    shape_compare::side_by_side(ui, &mut state.shape_compare, part, ctx);
 }
 
 // ----- helpers shared by the submodules ------------------------------------
