@@ -199,6 +199,9 @@ const NEW_SOUND_RATIO: f64 = 10.0;
 /// memory) stays below; a mallet that bounces back at a third of its first
 /// strength is above.
 const SECOND_STRIKE_ENERGY_RATIO: f64 = 0.1;
+/// The strike's excitation is over once the decay envelope has made no new
+/// maximum for this long (see `look_for_second_strike`).
+const EXCITATION_GAP_MS: f64 = 2.0;
 /// Averaging time of the slow envelope used to follow the decay: 10 ms
 /// averages the power of any mode above 40 Hz to within about 1 dB
 /// (sin² repeats every half period), where the 1 ms trigger envelope of a
@@ -229,6 +232,11 @@ struct Recording {
     floor_db: f64,
     peak_db: f64,
     blocks_since_peak: usize,
+    /// Loudest decay envelope so far (never frozen, unlike `peak_db`) and
+    /// the envelope blocks since it: while the sound still rises to new
+    /// maxima, the strike's own excitation is going on.
+    loudest_db: f64,
+    blocks_since_loudest: usize,
     /// Block index (since onset) at which the envelope first fell back to
     /// the floor, if it has.
     died_after_blocks: Option<usize>,
@@ -470,11 +478,14 @@ impl TapTrigger {
             rec.samples.push(sample);
             rec.clipped |= self.clip_run >= 2;
             if rec.samples.len() > rec.onset_index + self.new_sound_guard {
+                let block_ms = self.block_len as f64 * 1000.0 / self.sample_rate_hz;
+                let still_rising = rec.blocks_since_loudest as f64 * block_ms < EXCITATION_GAP_MS;
                 look_for_second_strike(
                     &mut self.novelty,
                     rec,
                     &self.settings,
                     self.new_sound_guard,
+                    still_rising,
                 );
             }
         }
@@ -585,6 +596,8 @@ impl TapTrigger {
             floor_db,
             peak_db: slow_db,
             blocks_since_peak: 0,
+            loudest_db: slow_db,
+            blocks_since_loudest: 0,
             died_after_blocks: None,
             blocks: 1,
             clipped,
@@ -604,6 +617,12 @@ impl TapTrigger {
         events: &mut Vec<TriggerEvent>,
     ) -> State {
         rec.blocks += 1;
+        if slow_db > rec.loudest_db {
+            rec.loudest_db = slow_db;
+            rec.blocks_since_loudest = 0;
+        } else {
+            rec.blocks_since_loudest += 1;
+        }
         if slow_db > rec.peak_db && !self.past_contact(rec.blocks_since_peak, rec.blocks) {
             rec.peak_db = slow_db;
             rec.blocks_since_peak = 0;
@@ -702,11 +721,23 @@ impl TapTrigger {
 /// the decay's first predictor is fitted it measures the strike with it,
 /// and from then on marks the record when a block brings new sound, clearly
 /// above the noise, with a good part of the strike's energy.
+///
+/// While the sound is `still_rising` (its envelope reached a new maximum
+/// within the last [`EXCITATION_GAP_MS`]), the strike's own excitation is
+/// going on: a soft mallet on a bar, or a bar whose resonator takes up the
+/// sound, keeps feeding in energy for tens of milliseconds, and no
+/// predictor fitted to the first milliseconds foretells it. What arrives
+/// then is counted into the strike's energy, not against it; a second
+/// strike comes once the sound has begun to fall. (A second strike lifts
+/// the 10 ms envelope by a tenth of its own power in its first block, which
+/// does not make a new maximum over a decay that fell for a few ms: it is
+/// judged, and found.)
 fn look_for_second_strike(
     novelty: &mut NoveltyDetector,
     rec: &mut Recording,
     settings: &TriggerSettings,
     guard: usize,
+    still_rising: bool,
 ) {
     let Some(&sample) = rec.samples.last() else {
         return;
@@ -721,6 +752,11 @@ fn look_for_second_strike(
         return;
     };
     let energy = block.unforetold_power * novelty.block_len() as f64;
+    if still_rising {
+        rec.strike_energy = Some(strike_energy + energy);
+        rec.previous_block_energy = 0.0;
+        return;
+    }
     let burst = energy + rec.previous_block_energy;
     rec.previous_block_energy = energy;
     let noise_power = 10f64.powf(rec.floor_db / 10.0);
