@@ -1,6 +1,11 @@
 //! Speed of the tap analysis: one 1 s tap at 48 kHz, a 5-tap file, and a
 //! bare real FFT of the same length for comparison (the target is one tap
-//! within a small multiple, ≤ 10×, of that FFT). The ratio is printed.
+//! within a small multiple, ≤ 10×, of that FFT). The ratio is printed, and
+//! so is the worst tap of the real-strike corpus (`tests/data/real`) as a
+//! ratio to one real FFT of its own record (target ≤ 20×).
+
+#[path = "../tests/real/mod.rs"]
+mod real;
 
 use std::hint::black_box;
 use std::time::Instant;
@@ -8,7 +13,9 @@ use std::time::Instant;
 use criterion::{criterion_group, Criterion};
 use realfft::RealFftPlanner;
 use tapwright::analysis::synth::{add_modes, contact_pulse, NoiseGenerator};
-use tapwright::analysis::{analyze_recording, AnalysisSettings, TapAnalyzer, TriggerSettings};
+use tapwright::analysis::{
+    analyze_recording, find_taps, AnalysisSettings, TapAnalyzer, TriggerSettings,
+};
 use tapwright::demo::demo_plate_modes;
 
 const FS: f64 = 48_000.0;
@@ -84,6 +91,44 @@ fn print_ratio() {
     }
 }
 
+/// Every accepted tap of every corpus file, timed (median of `REPEATS`)
+/// in alternation with a real FFT of its record's length; prints the
+/// worst ratio and the median one.
+fn print_corpus_ratio() {
+    const REPEATS: usize = 9;
+    let mut ratios: Vec<(f64, String, f64)> = Vec::new();
+    for sample in real::load_corpus() {
+        let fs = sample.sample_rate_hz;
+        let file = real::three_strikes(&sample, 1);
+        let taps = find_taps(&file, fs, &real::trigger_settings());
+        let mut analyzer = TapAnalyzer::new(real::analysis_settings(), fs);
+        for tap in taps.iter().filter(|t| t.rejected.is_none()) {
+            let len = tap.samples.len();
+            let fft = RealFftPlanner::<f32>::new().plan_fft_forward(len);
+            let mut input = tap.samples.clone();
+            let mut output = fft.make_output_vec();
+            let (mut tap_s, mut fft_s) = (Vec::new(), Vec::new());
+            for _ in 0..REPEATS {
+                tap_s.push(seconds_of(&mut || drop(black_box(analyzer.analyze(tap)))));
+                fft_s.push(seconds_of(&mut || {
+                    let _ = fft.process(&mut input, &mut output);
+                }));
+            }
+            let tap_s = median(tap_s);
+            ratios.push((tap_s / median(fft_s), sample.file.clone(), tap_s));
+        }
+    }
+    ratios.sort_by(|a, b| a.0.total_cmp(&b.0));
+    if let Some((worst, file, tap_s)) = ratios.last() {
+        let (middle, ..) = &ratios[ratios.len() / 2];
+        println!(
+            "real corpus, {} taps: worst tap {:.3} ms ({file}), {worst:.1}x one real FFT of its record; median tap {middle:.1}x",
+            ratios.len(),
+            tap_s * 1e3
+        );
+    }
+}
+
 fn benches(c: &mut Criterion) {
     let record = one_tap_record();
     let mut analyzer = TapAnalyzer::new(AnalysisSettings::default(), FS);
@@ -118,6 +163,7 @@ fn main() {
     // criterion only checks that each benchmark runs, and so do we.
     if std::env::args().any(|a| a == "--bench") {
         print_ratio();
+        print_corpus_ratio();
     }
     analysis();
     Criterion::default().configure_from_args().final_summary();

@@ -166,8 +166,9 @@ impl BandSignal {
             let rho_k = Complex64::from_polar(1.0, -2.0 * std::f64::consts::PI * k as f64 / n);
             let rho_k_len = Complex64::from_polar(
                 1.0,
-                -2.0 * std::f64::consts::PI * ((k as i128 * self.level_len as i128)
-                    .rem_euclid(self.fft_len as i128)) as f64
+                -2.0 * std::f64::consts::PI
+                    * ((k as i128 * self.level_len as i128).rem_euclid(self.fft_len as i128))
+                        as f64
                     / n,
             );
             let bin = (one - z_len * rho_k_len) / (one - z * rho_k);
@@ -220,7 +221,8 @@ impl DecaySpectra {
             level.len = len;
             level.fft_len = fft_len;
             level.bins.resize(fft_len / 2 + 1, Complex32::new(0.0, 0.0));
-            self.scratch.resize(plan.get_scratch_len(), Complex32::new(0.0, 0.0));
+            self.scratch
+                .resize(plan.get_scratch_len(), Complex32::new(0.0, 0.0));
             // The lengths match by construction, so the FFT cannot fail.
             let _ = plan.process_with_scratch(&mut self.input, &mut level.bins, &mut self.scratch);
             count += 1;
@@ -419,7 +421,10 @@ mod tests {
     fn band_of_one_mode_is_one_exponential() {
         let c = Complex64::from_polar(0.25, 0.7);
         let (f, decay) = (1234.5, 14.0);
-        let x = damped(30_000, &[(f, decay, c), (1900.0, 30.0, Complex64::new(0.3, 0.0))]);
+        let x = damped(
+            30_000,
+            &[(f, decay, c), (1900.0, 30.0, Complex64::new(0.3, 0.0))],
+        );
         let mut spectra = DecaySpectra::new(FS);
         spectra.transform(&x);
         let band = spectra

@@ -114,4 +114,3 @@ fn interpolated_peak_bin(power: &[f32], k: usize) -> f64 {
     };
     k as f64 + offset.clamp(-0.5, 0.5)
 }
-

@@ -221,7 +221,8 @@ impl TapAnalyzer {
         let start = decay_start(record, onset_index, fs).min(record.len());
         let offset = pre_trigger_mean(record, onset_index) as f32;
         self.decay.clear();
-        self.decay.extend(record[start..].iter().map(|&x| x - offset));
+        self.decay
+            .extend(record[start..].iter().map(|&x| x - offset));
         let mut modes = if self.decay.len() < MIN_DECAY_SAMPLES {
             Vec::new()
         } else {
@@ -274,14 +275,12 @@ impl TapAnalyzer {
         let mut kept: Vec<Found> = Vec::new();
         for candidate in candidates {
             if kept.iter().any(|f| explains(f, candidate, fs)) {
-                if std::env::var_os("TW_DEBUG").is_some() { eprintln!("skip cand {:.1}", candidate.frequency_hz); }
                 continue;
             }
             for found in self.fit_candidate(candidate) {
                 merge(&mut kept, found);
             }
         }
-        if std::env::var_os("TW_DEBUG").is_some() { for c in candidates { eprintln!("cand {:.1} w {:.2} p {:.2e}", c.frequency_hz, c.half_power_width_hz, c.power); } eprintln!("----"); }
         kept.retain(|f| {
             candidates.iter().any(|c| explains(f, c, fs))
                 || f.peak_height(len) >= f.band_peak * RESOLVED_WITHIN
@@ -305,9 +304,7 @@ impl TapAnalyzer {
     /// asks for a span far from the one it had.
     fn fit_candidate(&mut self, candidate: &Candidate) -> Vec<Found> {
         let fs = self.sample_rate_hz;
-        let width_hz = candidate
-            .half_power_width_hz
-            .max(2.0 * candidate.bin_hz);
+        let width_hz = candidate.half_power_width_hz.max(2.0 * candidate.bin_hz);
         let span = self.span_for(PI * width_hz / fs);
         let mut found = self.fit_band(candidate, span).unwrap_or_default();
         let main = found
@@ -356,13 +353,7 @@ impl TapAnalyzer {
             taper_fill: band.taper_fill,
             observations: self.decay.len(),
         };
-        let before = fit.clone();
         let fit = prune(&band.samples, fit, &noise);
-        if std::env::var_os("TW_DEBUG").is_some() {
-            let fs = self.sample_rate_hz;
-            let show = |f: &super::varpro::Fit| f.poles.iter().zip(&f.amplitudes).map(|(w, b)| { let z = band.to_full_rate(*w); format!("{:.1}Hz/tau{:.1}/|b|{:.2e}", z.arg()*fs/(2.0*PI), 1.0/(-w.norm().ln()), b.norm()) }).collect::<Vec<_>>().join(" ");
-            eprintln!("band {:.1} Hz D {} K {} nv {:.2e} rss {:.2e} init {} | full [{}] -> [{}]", candidate.frequency_hz, band.factor, band.samples.len(), band.noise_var, before.residual_energy, initial.len(), show(&before), show(&fit));
-        }
         let len = self.decay.len();
         let owned: Vec<Found> = fit
             .poles
@@ -383,10 +374,7 @@ impl TapAnalyzer {
             })
             .collect();
         let owned = merge_unresolved(owned, len);
-        let band_peak = owned
-            .iter()
-            .map(|f| f.peak_height(len))
-            .fold(0.0, f64::max);
+        let band_peak = owned.iter().map(|f| f.peak_height(len)).fold(0.0, f64::max);
         Some(
             owned
                 .into_iter()
@@ -462,12 +450,9 @@ impl TapAnalyzer {
 }
 
 /// A pole explains a candidate peak when it lies within the peak's half
-/// width, within one and a half bins, or within its own half-power
-/// bandwidth of it.
+/// width (or one and a half bins) of it.
 fn explains(found: &Found, candidate: &Candidate, fs: f64) -> bool {
-    let reach_hz = (0.5 * candidate.half_power_width_hz)
-        .max(1.5 * candidate.bin_hz)
-        .max(found.decay() * fs / (2.0 * PI));
+    let reach_hz = (0.5 * candidate.half_power_width_hz).max(1.5 * candidate.bin_hz);
     (found.frequency_hz(fs) - candidate.frequency_hz).abs() <= reach_hz
 }
 
@@ -480,9 +465,9 @@ fn merge_unresolved(mut poles: Vec<Found>, len: usize) -> Vec<Found> {
     poles.sort_by(|a, b| b.peak_height(len).total_cmp(&a.peak_height(len)));
     let mut merged: Vec<Found> = Vec::with_capacity(poles.len());
     for pole in poles {
-        let twin = merged.iter_mut().find(|m| {
-            (m.z.arg() - pole.z.arg()).abs() < m.decay().min(pole.decay())
-        });
+        let twin = merged
+            .iter_mut()
+            .find(|m| (m.z.arg() - pole.z.arg()).abs() < m.decay().min(pole.decay()));
         match twin {
             Some(stronger) => stronger.c += pole.c,
             None => merged.push(pole),
@@ -491,14 +476,14 @@ fn merge_unresolved(mut poles: Vec<Found>, len: usize) -> Vec<Found> {
     merged
 }
 
-/// Adds a pole to the kept ones; a pole already there (closer than either
-/// one's decay rate, or than the finer band's resolution) is kept from the
-/// band where it lies nearer the centre.
+/// Adds a pole to the kept ones; a pole already there (closer than both
+/// one's half-power half-width, or than the finer band's resolution) is
+/// kept from the band where it lies nearer the centre.
 fn merge(kept: &mut Vec<Found>, new: Found) {
     let same = kept.iter().position(|k| {
         let reach = k
             .decay()
-            .max(new.decay())
+            .min(new.decay())
             .max(PI / k.span.min(new.span).max(1) as f64);
         (k.z.arg() - new.z.arg()).abs() < reach
     });

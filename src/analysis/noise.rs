@@ -99,7 +99,9 @@ mod tests {
     fn white_noise_reads_its_variance() {
         let mut random = NoiseGenerator::new(5);
         let sigma = 0.01;
-        let quiet: Vec<f32> = (0..4800).map(|_| (sigma * random.gaussian()) as f32).collect();
+        let quiet: Vec<f32> = (0..4800)
+            .map(|_| (sigma * random.gaussian()) as f32)
+            .collect();
         let mut profile = NoiseProfile::default();
         profile.measure(&quiet, 48_000.0);
         for centre in [300.0, 2000.0, 9000.0] {

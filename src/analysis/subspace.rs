@@ -30,7 +30,7 @@ const SIGNAL_OVER_NOISE: f64 = 2.0;
 /// the band's own model error (see the module notes), not new poles.
 const DYNAMIC_RANGE_DB: f64 = 40.0;
 /// Largest model order of one band.
-pub(super) const MAX_ORDER: usize = 8;
+pub(super) const MAX_ORDER: usize = 6;
 
 /// Poles (decimated) of the sequence `y`, whose noise has variance
 /// `noise_var` per sample. Empty when nothing stands above the noise.
@@ -98,7 +98,12 @@ mod tests {
     use super::*;
     use crate::analysis::synth::NoiseGenerator;
 
-    fn sequence(poles: &[(Complex64, Complex64)], len: usize, noise: f64, seed: u64) -> Vec<Complex64> {
+    fn sequence(
+        poles: &[(Complex64, Complex64)],
+        len: usize,
+        noise: f64,
+        seed: u64,
+    ) -> Vec<Complex64> {
         let mut random = NoiseGenerator::new(seed);
         (0..len)
             .map(|k| {

@@ -124,7 +124,7 @@ pub(super) fn refine(y: &[Complex64], initial: &[Complex64]) -> Option<Fit> {
 /// Backward elimination: drops, one at a time, the pole whose removal
 /// costs the fit least, while that cost is under the information
 /// criterion's price of a pole (4·ln(N)·σ² for `observations` = N),
-/// refitting after each. σ² is the larger of the room noise (`noise`) and
+/// refitting the amplitudes after each and the poles once at the end. σ² is the larger of the room noise (`noise`) and
 /// what the largest model, `fit` as given, leaves per degree of freedom
 /// (the variance of the full model's residual, as Mallows' Cp takes it:
 /// C. L. Mallows, Technometrics 15(4), 1973): on a real strike the
@@ -134,6 +134,7 @@ pub(super) fn prune(y: &[Complex64], mut fit: Fit, noise: &BandNoise) -> Fit {
     let dof = y.len().saturating_sub(2 * fit.poles.len()).max(1) as f64;
     let left = fit.residual_energy / dof / noise.taper_fill.max(1e-9);
     let price = 4.0 * (noise.observations.max(2) as f64).ln() * noise.variance.max(left);
+    let mut removed = false;
     while fit.poles.len() > 1 {
         let cheapest = (0..fit.poles.len())
             .filter_map(|i| {
@@ -145,10 +146,16 @@ pub(super) fn prune(y: &[Complex64], mut fit: Fit, noise: &BandNoise) -> Fit {
             .min_by(|a, b| a.0.total_cmp(&b.0));
         match cheapest {
             Some((cost, rest)) if cost < price => {
-                fit = refine(y, &rest).unwrap_or(fit);
+                fit = fit_amplitudes(y, &rest).unwrap_or(fit);
+                removed = true;
             }
             _ => break,
         }
+    }
+    if removed {
+        // One joint refit of the poles that stayed (they were fitted with
+        // the others beside them).
+        fit = refine(y, &fit.poles.clone()).unwrap_or(fit);
     }
     if fit.poles.len() == 1 {
         let energy: f64 = y.iter().map(|v| v.norm_sqr()).sum();
@@ -177,7 +184,11 @@ fn vandermonde(poles: &[Complex64], len: usize) -> Vec<Complex64> {
 }
 
 /// ΦᴴΦ (with a whisper of ridge for nearly equal poles) and Φᴴy.
-fn normal_equations(basis: &[Complex64], y: &[Complex64], p: usize) -> (Vec<Complex64>, Vec<Complex64>) {
+fn normal_equations(
+    basis: &[Complex64],
+    y: &[Complex64],
+    p: usize,
+) -> (Vec<Complex64>, Vec<Complex64>) {
     let len = y.len();
     let column = |i: usize| &basis[i * len..(i + 1) * len];
     let mut gram = vec![Complex64::new(0.0, 0.0); p * p];
@@ -253,7 +264,12 @@ fn projected_normal_equations(y: &[Complex64], fit: &Fit) -> (Vec<f64>, Vec<f64>
         project_out(&mut derivative, &basis, &gram, p);
         // ∂model/∂a = −k·wᵏ·b, ∂model/∂θ = j·k·wᵏ·b.
         columns.push(derivative.iter().map(|d| -d).collect());
-        columns.push(derivative.iter().map(|d| d * Complex64::new(0.0, 1.0)).collect());
+        columns.push(
+            derivative
+                .iter()
+                .map(|d| d * Complex64::new(0.0, 1.0))
+                .collect(),
+        );
     }
     let n = 2 * p;
     let mut jtj = vec![0.0; n * n];
@@ -282,7 +298,12 @@ mod tests {
     use super::*;
     use crate::analysis::synth::NoiseGenerator;
 
-    fn sequence(poles: &[(Complex64, Complex64)], len: usize, noise: f64, seed: u64) -> Vec<Complex64> {
+    fn sequence(
+        poles: &[(Complex64, Complex64)],
+        len: usize,
+        noise: f64,
+        seed: u64,
+    ) -> Vec<Complex64> {
         let mut random = NoiseGenerator::new(seed);
         (0..len)
             .map(|k| {

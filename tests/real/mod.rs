@@ -158,9 +158,7 @@ pub fn three_strikes(sample: &RealSample, seed: u64) -> Vec<f32> {
 
 /// Where each copy of the strike starts in [`three_strikes`], seconds.
 pub fn strike_times_s() -> Vec<f64> {
-    (0..STRIKES)
-        .map(|i| i as f64 * SLOT_S + QUIET_S)
-        .collect()
+    (0..STRIKES).map(|i| i as f64 * SLOT_S + QUIET_S).collect()
 }
 
 pub fn analysis_settings() -> AnalysisSettings {
@@ -240,7 +238,9 @@ pub fn long_fft_peaks(sample: &RealSample) -> Vec<SpectrumPeak> {
                 0.0
             };
             let half = power[k] / 2.0;
-            let right = (k + 1..power.len()).take_while(|&i| power[i] > half).count();
+            let right = (k + 1..power.len())
+                .take_while(|&i| power[i] > half)
+                .count();
             let left = (0..k).rev().take_while(|&i| power[i] > half).count();
             SpectrumPeak {
                 frequency_hz: (k as f64 + offset) * bin_hz,
