@@ -104,8 +104,6 @@ pub(super) struct BandSignal {
     pub samples: Vec<Complex64>,
     /// Decimation factor D (a power of two).
     pub factor: usize,
-    /// Full-rate index (from the decay's start) of `samples[0]`.
-    pub first_index: usize,
     /// Band centre ω₀ in rad/sample at the full rate.
     pub centre_rad: f64,
     /// Poles within this distance of the centre (rad/sample, full rate)
@@ -332,7 +330,6 @@ impl DecaySpectra {
         Some(BandSignal {
             samples,
             factor,
-            first_index: SKIP * factor,
             centre_rad,
             owned_half_width_rad: std::f64::consts::PI / (4.0 * factor as f64),
             noise_var,

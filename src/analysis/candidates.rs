@@ -1,11 +1,11 @@
-//! Candidate peaks: local maxima of the tap's display spectrum that stand
+//! Candidate peaks: local maxima of a spectrum of the tap that stand
 //! clear of the band's floor and of their neighbours. Each one is the
 //! centre of a band for the subspace stage; their number is bounded.
 
 use super::modal::AnalysisSettings;
 use super::spectrum::DisplaySpectrum;
 
-/// A peak of the display spectrum.
+/// A peak of the spectrum searched.
 #[derive(Clone, Copy, Debug)]
 pub(super) struct Candidate {
     pub frequency_hz: f64,
