@@ -99,22 +99,7 @@ fn shifted_eigenvalues(v_h: &DMatrix<Complex64>, columns: usize) -> Vec<Complex6
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::analysis::synth::NoiseGenerator;
-
-    fn sequence(
-        poles: &[(Complex64, Complex64)],
-        len: usize,
-        noise: f64,
-        seed: u64,
-    ) -> Vec<Complex64> {
-        let mut random = NoiseGenerator::new(seed);
-        (0..len)
-            .map(|k| {
-                let clean: Complex64 = poles.iter().map(|(w, b)| b * w.powu(k as u32)).sum();
-                clean + Complex64::new(random.gaussian(), random.gaussian()) * (noise / 2f64.sqrt())
-            })
-            .collect()
-    }
+    use crate::analysis::varpro::test_sequence as sequence;
 
     #[test]
     fn finds_two_close_poles_and_no_more() {

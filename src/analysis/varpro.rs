@@ -293,25 +293,28 @@ fn projected_normal_equations(y: &[Complex64], fit: &Fit) -> (Vec<f64>, Vec<f64>
     (jtj, jtr)
 }
 
+/// A decimated test sequence: Σ b·wᵏ plus complex white noise of
+/// standard deviation `noise` (deterministic).
+#[cfg(test)]
+pub(super) fn test_sequence(
+    poles: &[(Complex64, Complex64)],
+    len: usize,
+    noise: f64,
+    seed: u64,
+) -> Vec<Complex64> {
+    let mut random = crate::analysis::synth::NoiseGenerator::new(seed);
+    (0..len)
+        .map(|k| {
+            let clean: Complex64 = poles.iter().map(|(w, b)| b * w.powu(k as u32)).sum();
+            clean + Complex64::new(random.gaussian(), random.gaussian()) * (noise / 2f64.sqrt())
+        })
+        .collect()
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::analysis::synth::NoiseGenerator;
-
-    fn sequence(
-        poles: &[(Complex64, Complex64)],
-        len: usize,
-        noise: f64,
-        seed: u64,
-    ) -> Vec<Complex64> {
-        let mut random = NoiseGenerator::new(seed);
-        (0..len)
-            .map(|k| {
-                let clean: Complex64 = poles.iter().map(|(w, b)| b * w.powu(k as u32)).sum();
-                clean + Complex64::new(random.gaussian(), random.gaussian()) * (noise / 2f64.sqrt())
-            })
-            .collect()
-    }
+    use test_sequence as sequence;
 
     #[test]
     fn refit_reaches_the_true_poles_from_rough_ones() {
