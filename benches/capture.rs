@@ -20,15 +20,15 @@ use std::time::{Duration, Instant};
 
 use criterion::Criterion;
 use tapwright::analysis::synth::SynthMode;
-use tapwright::analysis::{FoundTap, TapAnalyzer};
-use tapwright::capture::{
+use tapwright::analysis::{FoundTap, Tap, TapAnalyzer};
+use tapwright::audio::{
     CaptureEvent, CaptureHandle, CaptureSettings, Pacing, SampleGenerator, SourceChoice,
     SyntheticGenerator, SyntheticStrike, SyntheticTaps, TapPipeline,
 };
 
 const FS: u32 = 48_000;
 const QUIET_SECONDS: f64 = 60.0;
-/// The worker's block size (READ_CHUNK in src/capture/worker.rs).
+/// The worker's block size (READ_CHUNK in src/audio/input/worker.rs).
 const BLOCK: usize = 2048;
 
 fn generate(taps: SyntheticTaps) -> Vec<f32> {
@@ -132,16 +132,11 @@ fn end_to_end_latencies(tap_count: usize) -> Vec<(Duration, Duration)> {
         let received = Instant::now();
         match event {
             CaptureEvent::SourceStarted { .. } => announced = Some(received),
-            CaptureEvent::TapAccepted {
-                tap,
+            CaptureEvent::Tap(Tap {
+                record: Some(tap),
                 sample_rate_hz,
                 ..
-            }
-            | CaptureEvent::TapRejected {
-                tap,
-                sample_rate_hz,
-                ..
-            } => {
+            }) => {
                 let record_end = tap.start_sample + tap.samples.len() as u64;
                 let after = Duration::from_secs_f64(record_end as f64 / f64::from(sample_rate_hz));
                 let upper = received.saturating_duration_since(started + after);

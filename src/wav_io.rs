@@ -1,30 +1,49 @@
-//! WAV files in and out. Reading: 8-, 16-, 24- and 32-bit integer (also
-//! fewer valid bits in a wider container, e.g. 24 bits in 32) and 32- and
-//! 64-bit float, plain or `WAVE_FORMAT_EXTENSIBLE`, any number of channels
-//! (mixed to mono), 8–192 kHz, read block by block so a long recording
-//! never has to fit in memory ([`WavStream`]). Writing (with `hound`) goes
-//! through a temporary file in the same folder, so a failed save never
-//! leaves half a file behind.
+//! Recordings in and out. Reading, with `symphonia`: WAV (8-, 16-, 24- and
+//! 32-bit integer, also fewer valid bits in a wider word; 32- and 64-bit
+//! float; A-law and µ-law; plain or `WAVE_FORMAT_EXTENSIBLE`), AIFF and
+//! AIFC, CAF, FLAC, MP3, AAC-LC and ALAC in MP4/M4A (and raw ADTS `.aac`),
+//! and Ogg Vorbis; any number of channels (mixed to mono), 8–192 kHz,
+//! decoded packet by packet so a long recording never has to fit in memory
+//! ([`WavStream`]). Writing (with `hound`) goes through a temporary file in
+//! the same folder, so a failed save never leaves half a file behind.
 //!
-//! The reader is our own because `hound` 3.5 reads three kinds of valid
-//! file wrongly: it takes the low 24 bits of a 32-bit container (the
-//! standard puts the valid bits at the top), it does not skip the pad byte
-//! after a chunk of odd length, and it refuses 64-bit float.
+//! The names keep "wav" from the days when only WAV was read; [`AudioStream`]
+//! and [`AudioError`] are the same types under format-neutral names.
+
+mod describe;
+mod mp4_edit;
 
 use std::fs::File;
-use std::io::{BufReader, Read};
 use std::path::{Path, PathBuf};
 
+use symphonia::core::codecs::audio::{AudioDecoder, AudioDecoderOptions};
+use symphonia::core::errors::Error as DecodeFailure;
+use symphonia::core::formats::probe::Hint;
+use symphonia::core::formats::well_known::{
+    FORMAT_ID_ADTS, FORMAT_ID_MP1, FORMAT_ID_MP2, FORMAT_ID_MP3,
+};
+use symphonia::core::formats::{FormatOptions, FormatReader};
+use symphonia::core::io::{MediaSource, MediaSourceStream, MediaSourceStreamOptions};
+use symphonia::core::meta::MetadataOptions;
 use thiserror::Error;
+
+pub use describe::READABLE_FORMATS;
 
 /// Sample rates tapwright accepts.
 pub const MIN_SAMPLE_RATE_HZ: u32 = 8_000;
 pub const MAX_SAMPLE_RATE_HZ: u32 = 192_000;
 
+/// File-name extensions of the recordings tapwright reads (lower case; a
+/// file dialog or a drop target should also accept them in upper case).
+/// The reader looks at the content, not the name: these are for choosing.
+pub const READABLE_EXTENSIONS: &[&str] = &[
+    "wav", "wave", "aif", "aiff", "aifc", "caf", "flac", "mp3", "m4a", "mp4", "aac", "ogg", "oga",
+];
+
 /// Frames read at a time by [`read_mono`].
 const READ_BLOCK_FRAMES: usize = 65_536;
 /// `read_mono` reserves room for at most this many samples up front, so a
-/// header that claims a huge data chunk cannot make it allocate at once.
+/// header that claims a huge length cannot make it allocate at once.
 const MAX_UP_FRONT_SAMPLES: u64 = 48_000 * 600;
 
 /// A mono recording in full-scale f32.
@@ -40,7 +59,7 @@ impl MonoRecording {
     }
 }
 
-/// What can go wrong with a WAV file. Each message is one sentence that
+/// What can go wrong with a recording. Each message is one sentence that
 /// names the file.
 #[derive(Debug, Error)]
 pub enum WavError {
@@ -55,138 +74,78 @@ pub enum WavError {
     NotRegularFile { path: PathBuf, kind: &'static str },
     #[error("{path} is empty")]
     Empty { path: PathBuf },
-    #[error("{path} is not a WAV file ({detail})")]
-    NotWav { path: PathBuf, detail: String },
-    #[error("{path} uses an encoding tapwright cannot read ({detail}); use 8-, 16-, 24- or 32-bit integer or 32- or 64-bit float PCM")]
+    #[error(
+        "{path} is not a recording tapwright can read ({detail}); it reads {READABLE_FORMATS}"
+    )]
+    UnknownFormat { path: PathBuf, detail: String },
+    #[error("{path} holds {detail}, which tapwright cannot decode; export the recording as WAV, FLAC or AAC-LC instead")]
     Unsupported { path: PathBuf, detail: String },
+    #[error("{path} has no sound track tapwright can read ({detail})")]
+    NoAudioTrack { path: PathBuf, detail: String },
     #[error("{path} has a sample rate of {rate_hz} Hz; tapwright reads 8 000 to 192 000 Hz")]
     SampleRate { path: PathBuf, rate_hz: u32 },
-    #[error("{path} is cut short or damaged after {frames_read} frames ({detail})")]
+    #[error("{path} is cut short or damaged {} ({detail})", describe::position(*frames_read))]
     Truncated {
         path: PathBuf,
         frames_read: u64,
         detail: String,
     },
+    #[error("cannot read {path}: {detail}")]
+    Read { path: PathBuf, detail: String },
     #[error("{path} holds no samples")]
     NoSamples { path: PathBuf },
     #[error("cannot write {path}: {detail}")]
     Write { path: PathBuf, detail: String },
 }
 
-/// How the samples of a WAV file are stored.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub enum SampleEncoding {
-    /// Integer PCM: `valid_bits` significant bits at the top of a
-    /// `container_bytes`-byte little-endian word (8-bit is unsigned).
-    Int {
-        container_bytes: u8,
-        valid_bits: u16,
-    },
-    /// IEEE float, 32 bits.
-    Float32,
-    /// IEEE float, 64 bits.
-    Float64,
-}
+/// The stream under a name that does not suggest WAV only.
+pub type AudioStream = WavStream;
+/// The error under a name that does not suggest WAV only.
+pub type AudioError = WavError;
 
-impl SampleEncoding {
-    fn container_bytes(self) -> usize {
-        match self {
-            Self::Int {
-                container_bytes, ..
-            } => usize::from(container_bytes),
-            Self::Float32 => 4,
-            Self::Float64 => 8,
-        }
-    }
-
-    /// Plain words: "24-bit integer in 32-bit words", "64-bit float".
-    pub fn describe(self) -> String {
-        match self {
-            Self::Int {
-                container_bytes,
-                valid_bits,
-            } if u16::from(container_bytes) * 8 != valid_bits => format!(
-                "{valid_bits}-bit integer in {}-bit words",
-                u16::from(container_bytes) * 8
-            ),
-            Self::Int { valid_bits, .. } => format!("{valid_bits}-bit integer"),
-            Self::Float32 => "32-bit float".to_owned(),
-            Self::Float64 => "64-bit float".to_owned(),
-        }
-    }
-
-    /// One sample from its little-endian bytes, in full scale.
-    fn decode(self, bytes: &[u8]) -> f32 {
-        match self {
-            Self::Int {
-                container_bytes: 1, ..
-            } => (f32::from(bytes[0]) - 128.0) / 128.0,
-            Self::Int { .. } => {
-                // Put the word at the top of an i32: the valid bits are the
-                // most significant ones, the rest are zero padding.
-                let mut word = [0u8; 4];
-                word[4 - bytes.len()..].copy_from_slice(bytes);
-                (f64::from(i32::from_le_bytes(word)) / 2_147_483_648.0) as f32
-            }
-            Self::Float32 => {
-                let value = f32::from_le_bytes([bytes[0], bytes[1], bytes[2], bytes[3]]);
-                if value.is_finite() {
-                    value
-                } else {
-                    0.0
-                }
-            }
-            Self::Float64 => {
-                let mut word = [0u8; 8];
-                word.copy_from_slice(bytes);
-                let value = f64::from_le_bytes(word);
-                if value.is_finite() {
-                    value as f32
-                } else {
-                    0.0
-                }
-            }
-        }
-    }
-}
-
-/// What the `fmt ` chunk says.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub struct WavFormat {
-    pub sample_rate_hz: u32,
-    pub channels: u16,
-    pub encoding: SampleEncoding,
-}
-
-impl WavFormat {
-    fn frame_bytes(&self) -> usize {
-        usize::from(self.channels) * self.encoding.container_bytes()
-    }
-}
-
-/// A WAV file being read block by block, mixed to mono.
-pub struct WavStream<R> {
-    reader: R,
+/// A recording being decoded packet by packet, mixed to mono. Memory holds
+/// one decoded packet at a time (at most a few thousand frames for the
+/// compressed formats, about 1 s for PCM), however long the file.
+pub struct WavStream {
     path: PathBuf,
-    format: WavFormat,
-    frames_total: u64,
+    reader: Box<dyn FormatReader>,
+    decoder: Box<dyn AudioDecoder>,
+    track_id: u32,
+    sample_rate_hz: u32,
+    channels: usize,
+    frames_total: Option<u64>,
+    /// Whether `frames_total` is only an estimate, so that a shorter
+    /// recording is not a sign of a cut.
+    length_is_guessed: bool,
+    /// Decoded frames still to drop in front (the MP4 edit list's start).
+    skip_frames: u64,
+    /// Frames the MP4 edit list plays, when it gives them.
+    play_frames: Option<u64>,
     frames_read: u64,
-    bytes: Vec<u8>,
+    /// Frames decoded so far (read or pending).
+    frames_decoded: u64,
+    /// Mono samples decoded but not handed out yet, from `pending_at` on.
+    pending: Vec<f32>,
+    pending_at: usize,
+    /// Scratch: the last packet's samples, interleaved.
+    interleaved: Vec<f32>,
+    finished: bool,
 }
 
-impl<R> std::fmt::Debug for WavStream<R> {
+impl std::fmt::Debug for WavStream {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         f.debug_struct("WavStream")
             .field("path", &self.path)
-            .field("format", &self.format)
+            .field("sample_rate_hz", &self.sample_rate_hz)
+            .field("channels", &self.channels)
             .field("frames_total", &self.frames_total)
             .field("frames_read", &self.frames_read)
             .finish_non_exhaustive()
     }
 }
 
-impl WavStream<BufReader<File>> {
-    /// Opens a WAV file and reads its header. Refuses anything that is not
+impl WavStream {
+    /// Opens a recording and reads its header. Refuses anything that is not
     /// a regular file (a named pipe would block in `open`, a folder reads
     /// as nothing) before opening it.
     pub fn open(path: &Path) -> Result<Self, WavError> {
@@ -209,8 +168,268 @@ impl WavStream<BufReader<File>> {
             path: path.to_owned(),
             source,
         })?;
-        Self::new(BufReader::with_capacity(1 << 16, file), path)
+        Self::new(Box::new(file), path).map_err(|error| describe::name_wave_encoding(error, path))
     }
+
+    /// A recording held in memory (e.g. one bundled in the program), named
+    /// `name` in errors.
+    pub fn from_bytes(bytes: Vec<u8>, name: &Path) -> Result<Self, WavError> {
+        if bytes.is_empty() {
+            return Err(WavError::Empty {
+                path: name.to_owned(),
+            });
+        }
+        let header = bytes[..bytes.len().min(describe::SNIFF_BYTES)].to_vec();
+        Self::new(Box::new(std::io::Cursor::new(bytes)), name)
+            .map_err(|error| describe::name_wave_encoding_in(error, &header))
+    }
+
+    /// Finds the format, picks the sound track and makes its decoder.
+    fn new(mut source: Box<dyn MediaSource>, path: &Path) -> Result<Self, WavError> {
+        let edits = mp4_edit::track_edits(&mut source);
+        let stream = MediaSourceStream::new(source, MediaSourceStreamOptions::default());
+        let mut hint = Hint::new();
+        if let Some(extension) = path.extension().and_then(|e| e.to_str()) {
+            hint.with_extension(extension);
+        }
+        let reader = symphonia::default::get_probe()
+            .probe(
+                &hint,
+                stream,
+                FormatOptions::default(),
+                MetadataOptions::default(),
+            )
+            .map_err(|failure| describe::header_error(failure, path))?;
+        let track = describe::sound_track(reader.as_ref(), path)?;
+        let params = track
+            .codec_params
+            .as_ref()
+            .and_then(|p| p.audio())
+            .cloned()
+            .ok_or_else(|| describe::no_sound_track(reader.as_ref(), path))?;
+        let track_id = track.id;
+        let edit = edits.iter().find(|e| e.track_id == track_id).copied();
+        // MPEG audio without a Xing header and ADTS AAC give a length
+        // guessed from the file's size and first bit rate.
+        let format = reader.format_info().format;
+        let length_is_guessed =
+            [FORMAT_ID_MP1, FORMAT_ID_MP2, FORMAT_ID_MP3, FORMAT_ID_ADTS].contains(&format);
+        let frames_total = match (edit, params.sample_rate) {
+            (Some(edit), Some(rate_hz)) => Some(edit.play_frames(rate_hz)),
+            _ => track.num_frames,
+        };
+        if frames_total == Some(0) {
+            return Err(WavError::NoSamples {
+                path: path.to_owned(),
+            });
+        }
+        // Gapless on (the default) drops the encoder's delay and padding
+        // where the file gives them (MP3 with a LAME header, Ogg). Off for
+        // MPEG audio without them: symphonia 0.6.1 then trims the packets
+        // past its length guessed from the file's size, which for a VBR
+        // file without a Xing header cut a fifth of the recording off.
+        let gapless = !length_is_guessed || track.delay.is_some() || track.padding.is_some();
+        let decoder = symphonia::default::get_codecs()
+            .make_audio_decoder(&params, &AudioDecoderOptions::default().gapless(gapless))
+            .map_err(|failure| describe::codec_error(failure, &params, path))?;
+        let sample_rate_hz = params.sample_rate.ok_or_else(|| WavError::Truncated {
+            path: path.to_owned(),
+            frames_read: 0,
+            detail: "its header gives no sample rate".to_owned(),
+        })?;
+        check_sample_rate(sample_rate_hz, path)?;
+        Ok(Self {
+            path: path.to_owned(),
+            reader,
+            decoder,
+            track_id,
+            sample_rate_hz,
+            channels: params.channels.as_ref().map_or(1, |c| c.count().max(1)),
+            frames_total,
+            length_is_guessed,
+            skip_frames: edit.map_or(0, |e| e.skip_frames(sample_rate_hz)),
+            play_frames: edit.map(|e| e.play_frames(sample_rate_hz)),
+            frames_read: 0,
+            frames_decoded: 0,
+            pending: Vec::new(),
+            pending_at: 0,
+            interleaved: Vec::new(),
+            finished: false,
+        })
+    }
+
+    pub fn sample_rate_hz(&self) -> u32 {
+        self.sample_rate_hz
+    }
+
+    /// Channels in the file (they are mixed to mono).
+    pub fn channels(&self) -> usize {
+        self.channels
+    }
+
+    /// Frames the header promises, when it says (for MP3 without a Xing
+    /// header and for ADTS AAC, an estimate from the file's size).
+    pub fn frames_total(&self) -> Option<u64> {
+        self.frames_total
+    }
+
+    /// Frames read so far.
+    pub fn frames_read(&self) -> u64 {
+        self.frames_read
+    }
+
+    /// Length in seconds, when the header says.
+    pub fn duration_s(&self) -> Option<f64> {
+        self.frames_total
+            .map(|frames| frames as f64 / f64::from(self.sample_rate_hz))
+    }
+
+    /// Replaces `out` with up to `max_frames` mono samples (the mean of the
+    /// channels). Returns how many; 0 at the end of the recording.
+    pub fn read_block(&mut self, out: &mut Vec<f32>, max_frames: usize) -> Result<usize, WavError> {
+        out.clear();
+        while out.len() < max_frames {
+            if self.pending_at == self.pending.len() && !self.decode_next_packet()? {
+                break;
+            }
+            let take = (max_frames - out.len()).min(self.pending.len() - self.pending_at);
+            out.extend_from_slice(&self.pending[self.pending_at..self.pending_at + take]);
+            self.pending_at += take;
+        }
+        self.frames_read += out.len() as u64;
+        Ok(out.len())
+    }
+
+    /// Decodes the next packet of the sound track into `pending`. False at
+    /// the end of the recording.
+    fn decode_next_packet(&mut self) -> Result<bool, WavError> {
+        self.pending.clear();
+        self.pending_at = 0;
+        if self.finished {
+            return Ok(false);
+        }
+        loop {
+            let packet = match self.reader.next_packet() {
+                Ok(Some(packet)) => packet,
+                Ok(None) => return self.at_end(),
+                Err(failure) => return Err(self.damaged(failure)),
+            };
+            if packet.track_id != self.track_id {
+                continue;
+            }
+            let decoded = match self.decoder.decode(&packet) {
+                Ok(decoded) => decoded,
+                Err(failure) => return Err(self.damaged(failure)),
+            };
+            if decoded.frames() == 0 {
+                continue;
+            }
+            let rate_hz = decoded.spec().rate();
+            let channels = decoded.spec().channels().count().max(1);
+            decoded.copy_to_vec_interleaved(&mut self.interleaved);
+            if rate_hz != self.sample_rate_hz {
+                return Err(WavError::Unsupported {
+                    path: self.path.clone(),
+                    detail: format!(
+                        "audio whose sample rate changes from {} to {rate_hz} Hz partway",
+                        self.sample_rate_hz
+                    ),
+                });
+            }
+            mix_to_mono(&self.interleaved, channels, &mut self.pending);
+            self.apply_edit();
+            if self.pending.is_empty() {
+                continue;
+            }
+            self.frames_decoded += self.pending.len() as u64;
+            return Ok(true);
+        }
+    }
+
+    /// Drops from `pending` the frames before the MP4 edit and after it.
+    fn apply_edit(&mut self) {
+        let skip = self.skip_frames.min(self.pending.len() as u64) as usize;
+        self.pending.drain(..skip);
+        self.skip_frames -= skip as u64;
+        if let Some(play) = self.play_frames {
+            let left = play.saturating_sub(self.frames_decoded);
+            self.pending
+                .truncate(left.min(self.pending.len() as u64) as usize);
+        }
+    }
+
+    /// The end of the packets: fewer frames than the header promised means
+    /// the file was cut short.
+    fn at_end(&mut self) -> Result<bool, WavError> {
+        self.finished = true;
+        let decoded = self.frames_decoded;
+        if let Some(total) = self.frames_total.filter(|_| !self.length_is_guessed) {
+            if decoded < total {
+                return Err(self.truncated(format!(
+                    "the sound ends {} frames before the length its header gives",
+                    total - decoded
+                )));
+            }
+        }
+        if decoded == 0 {
+            return Err(WavError::NoSamples {
+                path: self.path.clone(),
+            });
+        }
+        Ok(false)
+    }
+
+    fn damaged(&mut self, failure: DecodeFailure) -> WavError {
+        self.finished = true;
+        match failure {
+            DecodeFailure::ResetRequired => WavError::Unsupported {
+                path: self.path.clone(),
+                detail: "several streams chained one after another".to_owned(),
+            },
+            DecodeFailure::IoError(error) if error.kind() != std::io::ErrorKind::UnexpectedEof => {
+                WavError::Read {
+                    path: self.path.clone(),
+                    detail: describe::plain(&error.to_string()),
+                }
+            }
+            other => self.truncated(describe::failure_detail(&other)),
+        }
+    }
+
+    fn truncated(&self, detail: String) -> WavError {
+        WavError::Truncated {
+            path: self.path.clone(),
+            frames_read: self.frames_read,
+            detail,
+        }
+    }
+}
+
+fn check_sample_rate(rate_hz: u32, path: &Path) -> Result<(), WavError> {
+    if (MIN_SAMPLE_RATE_HZ..=MAX_SAMPLE_RATE_HZ).contains(&rate_hz) {
+        Ok(())
+    } else {
+        Err(WavError::SampleRate {
+            path: path.to_owned(),
+            rate_hz,
+        })
+    }
+}
+
+/// Appends the mean of each frame's channels to `out`; a sample that is not
+/// finite (a float file can hold NaN or infinity) counts as silence.
+fn mix_to_mono(interleaved: &[f32], channels: usize, out: &mut Vec<f32>) {
+    let finite = |s: f32| if s.is_finite() { s } else { 0.0 };
+    if channels == 1 {
+        out.extend(interleaved.iter().map(|&s| finite(s)));
+        return;
+    }
+    let scale = 1.0 / channels as f32;
+    out.extend(
+        interleaved
+            .chunks_exact(channels)
+            .map(|frame| frame.iter().map(|&s| finite(s)).sum::<f32>() * scale),
+    );
 }
 
 /// What a non-regular file is, in words; None for a regular file.
@@ -237,129 +456,19 @@ fn not_regular_kind(file_type: &std::fs::FileType) -> Option<&'static str> {
     Some("not a plain file")
 }
 
-impl<R: Read> WavStream<R> {
-    /// Reads the header from `reader` (named `path` in errors) up to the
-    /// first sample.
-    pub fn new(mut reader: R, path: &Path) -> Result<Self, WavError> {
-        let header = read_header(&mut reader).map_err(|problem| problem.into_error(path))?;
-        Ok(Self {
-            reader,
-            path: path.to_owned(),
-            format: header.format,
-            frames_total: header.frames,
-            frames_read: 0,
-            bytes: Vec::new(),
-        })
-    }
-
-    pub fn format(&self) -> WavFormat {
-        self.format
-    }
-
-    pub fn sample_rate_hz(&self) -> u32 {
-        self.format.sample_rate_hz
-    }
-
-    /// Frames the header promises.
-    pub fn frames_total(&self) -> u64 {
-        self.frames_total
-    }
-
-    /// Frames read so far.
-    pub fn frames_read(&self) -> u64 {
-        self.frames_read
-    }
-
-    pub fn duration_s(&self) -> f64 {
-        self.frames_total as f64 / f64::from(self.format.sample_rate_hz)
-    }
-
-    /// Replaces `out` with up to `max_frames` mono samples (the mean of the
-    /// channels). Returns how many; 0 at the end of the data.
-    pub fn read_block(&mut self, out: &mut Vec<f32>, max_frames: usize) -> Result<usize, WavError> {
-        out.clear();
-        let left = self.frames_total - self.frames_read;
-        let frames = (max_frames as u64).min(left) as usize;
-        if frames == 0 {
-            return Ok(0);
-        }
-        let frame_bytes = self.format.frame_bytes();
-        self.bytes.resize(frames * frame_bytes, 0);
-        let filled = fill(&mut self.reader, &mut self.bytes);
-        let whole_frames = filled.as_ref().map_or_else(|(n, _)| *n, |n| *n) / frame_bytes;
-        self.mix_to_mono(whole_frames, out);
-        self.frames_read += whole_frames as u64;
-        match filled {
-            Ok(n) if n == self.bytes.len() => Ok(whole_frames),
-            Ok(_) => Err(self.truncated("the data ends before the length its header gives".into())),
-            Err((_, error)) => Err(self.truncated(plain(&error.to_string()))),
-        }
-    }
-
-    fn mix_to_mono(&self, frames: usize, out: &mut Vec<f32>) {
-        let encoding = self.format.encoding;
-        let width = encoding.container_bytes();
-        let channels = usize::from(self.format.channels);
-        let scale = 1.0 / channels as f32;
-        let frame_bytes = width * channels;
-        out.extend(
-            self.bytes[..frames * frame_bytes]
-                .chunks_exact(frame_bytes)
-                .map(|frame| {
-                    if channels == 1 {
-                        encoding.decode(frame)
-                    } else {
-                        frame
-                            .chunks_exact(width)
-                            .map(|s| encoding.decode(s))
-                            .sum::<f32>()
-                            * scale
-                    }
-                }),
-        );
-    }
-
-    fn truncated(&self, detail: String) -> WavError {
-        WavError::Truncated {
-            path: self.path.clone(),
-            frames_read: self.frames_read,
-            detail,
-        }
-    }
-}
-
-/// Fills `buffer` from `reader`; Ok(bytes read) stops short only at the
-/// end of the input, Err carries the bytes read before the failure.
-fn fill(reader: &mut impl Read, buffer: &mut [u8]) -> Result<usize, (usize, std::io::Error)> {
-    let mut filled = 0;
-    while filled < buffer.len() {
-        match reader.read(&mut buffer[filled..]) {
-            Ok(0) => break,
-            Ok(n) => filled += n,
-            Err(e) if e.kind() == std::io::ErrorKind::Interrupted => {}
-            Err(e) => return Err((filled, e)),
-        }
-    }
-    Ok(filled)
-}
-
-/// Reads a WAV file and mixes it to mono.
+/// Reads a recording and mixes it to mono.
 pub fn read_mono(path: &Path) -> Result<MonoRecording, WavError> {
     collect_mono(WavStream::open(path)?)
 }
 
-/// Reads WAV bytes (e.g. a recording bundled in the program).
+/// Reads a recording held in memory (e.g. one bundled in the program).
 pub fn read_mono_bytes(bytes: &[u8], name: &Path) -> Result<MonoRecording, WavError> {
-    if bytes.is_empty() {
-        return Err(WavError::Empty {
-            path: name.to_owned(),
-        });
-    }
-    collect_mono(WavStream::new(bytes, name)?)
+    collect_mono(WavStream::from_bytes(bytes.to_vec(), name)?)
 }
 
-fn collect_mono<R: Read>(mut stream: WavStream<R>) -> Result<MonoRecording, WavError> {
-    let mut samples = Vec::with_capacity(stream.frames_total().min(MAX_UP_FRONT_SAMPLES) as usize);
+fn collect_mono(mut stream: WavStream) -> Result<MonoRecording, WavError> {
+    let up_front = stream.frames_total().unwrap_or(0).min(MAX_UP_FRONT_SAMPLES);
+    let mut samples = Vec::with_capacity(up_front as usize);
     let mut block = Vec::new();
     while stream.read_block(&mut block, READ_BLOCK_FRAMES)? > 0 {
         samples.extend_from_slice(&block);
@@ -370,246 +479,14 @@ fn collect_mono<R: Read>(mut stream: WavStream<R>) -> Result<MonoRecording, WavE
     })
 }
 
-/// The header's findings.
-struct Header {
-    format: WavFormat,
-    frames: u64,
-}
-
-/// A header problem, before the file's name is attached.
-enum HeaderProblem {
-    NotWav(String),
-    Unsupported(String),
-    SampleRate(u32),
-    NoSamples,
-}
-
-impl HeaderProblem {
-    fn into_error(self, path: &Path) -> WavError {
-        let path = path.to_owned();
-        match self {
-            Self::NotWav(detail) => WavError::NotWav { path, detail },
-            Self::Unsupported(detail) => WavError::Unsupported { path, detail },
-            Self::SampleRate(rate_hz) => WavError::SampleRate { path, rate_hz },
-            Self::NoSamples => WavError::NoSamples { path },
-        }
-    }
-}
-
-const WAVE_FORMAT_PCM: u16 = 0x0001;
-const WAVE_FORMAT_IEEE_FLOAT: u16 = 0x0003;
-const WAVE_FORMAT_EXTENSIBLE: u16 = 0xFFFE;
-/// The last 12 bytes of every `KSDATAFORMAT_SUBTYPE_*` GUID
-/// (xxxxxxxx-0000-0010-8000-00aa00389b71), as stored in the file.
-const KSDATAFORMAT_GUID_TAIL: [u8; 12] = [
-    0x00, 0x00, 0x10, 0x00, 0x80, 0x00, 0x00, 0xAA, 0x00, 0x38, 0x9B, 0x71,
-];
-
-/// Walks the RIFF chunks up to `data`, skipping unknown chunks and the pad
-/// byte after any chunk of odd length.
-fn read_header(reader: &mut impl Read) -> Result<Header, HeaderProblem> {
-    let mut riff = [0u8; 12];
-    read_header_bytes(reader, &mut riff)?;
-    match &riff[0..4] {
-        b"RIFF" => {}
-        b"RIFX" => return Err(HeaderProblem::Unsupported("big-endian RIFX".into())),
-        b"RF64" => return Err(HeaderProblem::Unsupported("64-bit RF64 container".into())),
-        _ => return Err(HeaderProblem::NotWav("it does not start with RIFF".into())),
-    }
-    if &riff[8..12] != b"WAVE" {
-        return Err(HeaderProblem::NotWav(
-            "it is a RIFF file but not WAVE".into(),
-        ));
-    }
-    let mut format = None;
-    loop {
-        let mut chunk = [0u8; 8];
-        read_header_bytes(reader, &mut chunk)?;
-        let length = u64::from(u32::from_le_bytes([chunk[4], chunk[5], chunk[6], chunk[7]]));
-        match &chunk[0..4] {
-            b"fmt " => {
-                let mut body = vec![0u8; length.min(1 << 16) as usize];
-                read_header_bytes(reader, &mut body)?;
-                skip(reader, length - body.len() as u64 + (length & 1))?;
-                format = Some(parse_fmt(&body)?);
-            }
-            b"data" => {
-                let format = format.ok_or_else(|| {
-                    HeaderProblem::NotWav("its data chunk comes before its fmt chunk".into())
-                })?;
-                let frames = length / format.frame_bytes() as u64;
-                if frames == 0 {
-                    return Err(HeaderProblem::NoSamples);
-                }
-                return Ok(Header { format, frames });
-            }
-            _ => skip(reader, length + (length & 1))?,
-        }
-    }
-}
-
-fn read_header_bytes(reader: &mut impl Read, buffer: &mut [u8]) -> Result<(), HeaderProblem> {
-    match fill(reader, buffer) {
-        Ok(n) if n == buffer.len() => Ok(()),
-        Ok(_) => Err(HeaderProblem::NotWav("it ends inside the header".into())),
-        Err((_, e)) => Err(HeaderProblem::NotWav(plain(&e.to_string()))),
-    }
-}
-
-fn skip(reader: &mut impl Read, bytes: u64) -> Result<(), HeaderProblem> {
-    match std::io::copy(&mut reader.take(bytes), &mut std::io::sink()) {
-        Ok(n) if n == bytes => Ok(()),
-        Ok(_) => Err(HeaderProblem::NotWav("it ends inside the header".into())),
-        Err(e) => Err(HeaderProblem::NotWav(plain(&e.to_string()))),
-    }
-}
-
-fn le_u16(bytes: &[u8], at: usize) -> u16 {
-    u16::from_le_bytes([bytes[at], bytes[at + 1]])
-}
-
-fn le_u32(bytes: &[u8], at: usize) -> u32 {
-    u32::from_le_bytes([bytes[at], bytes[at + 1], bytes[at + 2], bytes[at + 3]])
-}
-
-/// The `fmt ` chunk: WAVEFORMAT, WAVEFORMATEX or WAVEFORMATEXTENSIBLE.
-fn parse_fmt(body: &[u8]) -> Result<WavFormat, HeaderProblem> {
-    if body.len() < 16 {
-        return Err(HeaderProblem::NotWav(format!(
-            "its fmt chunk is {} bytes long, shorter than the 16 a WAV file needs",
-            body.len()
-        )));
-    }
-    let mut tag = le_u16(body, 0);
-    let channels = le_u16(body, 2);
-    let sample_rate_hz = le_u32(body, 4);
-    let block_align = le_u16(body, 12);
-    let bits = le_u16(body, 14);
-    let mut valid_bits = bits;
-    if tag == WAVE_FORMAT_EXTENSIBLE {
-        if body.len() < 40 || le_u16(body, 16) < 22 {
-            return Err(HeaderProblem::NotWav(
-                "its extensible fmt chunk is too short".into(),
-            ));
-        }
-        if le_u16(body, 18) != 0 {
-            valid_bits = le_u16(body, 18);
-        }
-        if body[28..40] != KSDATAFORMAT_GUID_TAIL {
-            return Err(HeaderProblem::Unsupported(
-                "an extensible format with an unknown sub-format".into(),
-            ));
-        }
-        tag = le_u16(body, 24);
-    }
-    if tag != WAVE_FORMAT_PCM && tag != WAVE_FORMAT_IEEE_FLOAT {
-        return Err(HeaderProblem::Unsupported(format_tag_name(tag)));
-    }
-    if channels == 0 {
-        return Err(HeaderProblem::NotWav(
-            "its fmt chunk says 0 channels".into(),
-        ));
-    }
-    if block_align == 0 || block_align % channels != 0 {
-        return Err(HeaderProblem::NotWav(format!(
-            "its fmt chunk gives {block_align} bytes per frame for {channels} channels"
-        )));
-    }
-    let container_bytes = block_align / channels;
-    let encoding = sample_encoding(tag, bits, valid_bits, container_bytes)?;
-    if !(MIN_SAMPLE_RATE_HZ..=MAX_SAMPLE_RATE_HZ).contains(&sample_rate_hz) {
-        return Err(HeaderProblem::SampleRate(sample_rate_hz));
-    }
-    Ok(WavFormat {
-        sample_rate_hz,
-        channels,
-        encoding,
-    })
-}
-
-/// The encoding from the format tag, the bit depths and the bytes each
-/// sample takes, or why it cannot be read.
-fn sample_encoding(
-    tag: u16,
-    bits: u16,
-    valid_bits: u16,
-    container_bytes: u16,
-) -> Result<SampleEncoding, HeaderProblem> {
-    let container_bits = container_bytes * 8;
-    let inconsistent = || {
-        HeaderProblem::NotWav(format!(
-            "its fmt chunk gives {bits}-bit samples ({valid_bits} valid bits) in {container_bytes}-byte words"
-        ))
-    };
-    match tag {
-        WAVE_FORMAT_PCM => {
-            if bits == 0 || valid_bits == 0 || valid_bits > bits || bits > container_bits {
-                return Err(inconsistent());
-            }
-            if container_bytes > 4 {
-                return Err(HeaderProblem::Unsupported(format!("{bits}-bit integer")));
-            }
-            Ok(SampleEncoding::Int {
-                container_bytes: container_bytes as u8,
-                valid_bits,
-            })
-        }
-        WAVE_FORMAT_IEEE_FLOAT => match (bits, container_bytes) {
-            (32, 4) => Ok(SampleEncoding::Float32),
-            (64, 8) => Ok(SampleEncoding::Float64),
-            (32 | 64, _) => Err(inconsistent()),
-            _ => Err(HeaderProblem::Unsupported(format!("{bits}-bit float"))),
-        },
-        other => Err(HeaderProblem::Unsupported(format_tag_name(other))),
-    }
-}
-
-/// Names the compressed encodings met in practice (format tags from the
-/// registered list in Microsoft's mmreg.h, from memory).
-fn format_tag_name(tag: u16) -> String {
-    let name = match tag {
-        0x0002 => "Microsoft ADPCM",
-        0x0006 => "A-law",
-        0x0007 => "µ-law",
-        0x0011 => "IMA ADPCM",
-        0x0031 => "GSM 6.10",
-        0x0050 => "MPEG audio",
-        0x0055 => "MP3",
-        0x0160..=0x0162 => "Windows Media Audio",
-        0x2000 => "AC-3",
-        0xF1AC => "FLAC",
-        _ => return format!("format tag 0x{tag:04X}"),
-    };
-    name.to_owned()
-}
-
-/// A library message as a clause: no trailing full stop, lower-case start.
-fn plain(message: &str) -> String {
-    let trimmed = message.trim().trim_end_matches('.');
-    let mut chars = trimmed.chars();
-    match chars.next() {
-        Some(first) => first.to_lowercase().chain(chars).collect(),
-        None => String::new(),
-    }
-}
-
 /// Writes mono 32-bit float samples (or 16-bit integer when `pcm16` is set)
-/// atomically: a temporary file in the same folder, synced, then renamed.
+/// atomically (see [`crate::atomic_file`]).
 pub fn write_mono(
     path: &Path,
     sample_rate_hz: u32,
     samples: &[f32],
     pcm16: bool,
 ) -> Result<(), WavError> {
-    let fail = |detail: String| WavError::Write {
-        path: path.to_owned(),
-        detail,
-    };
-    let folder = match path.parent() {
-        Some(p) if !p.as_os_str().is_empty() => p.to_owned(),
-        _ => PathBuf::from("."),
-    };
-    let temp = tempfile::NamedTempFile::new_in(&folder).map_err(|e| fail(e.to_string()))?;
     let spec = hound::WavSpec {
         channels: 1,
         sample_rate: sample_rate_hz,
@@ -620,26 +497,27 @@ pub fn write_mono(
             hound::SampleFormat::Float
         },
     };
-    {
-        let file = temp
-            .as_file()
-            .try_clone()
-            .map_err(|e| fail(e.to_string()))?;
-        let mut writer = hound::WavWriter::new(std::io::BufWriter::new(file), spec)
-            .map_err(|e| fail(e.to_string()))?;
+    let as_io = |e: hound::Error| match e {
+        hound::Error::IoError(e) => e,
+        other => std::io::Error::other(other.to_string()),
+    };
+    crate::atomic_file::write_atomically(path, |file| {
+        let mut writer =
+            hound::WavWriter::new(std::io::BufWriter::new(file), spec).map_err(as_io)?;
         for &s in samples {
             let result = if pcm16 {
                 writer.write_sample((f64::from(s).clamp(-1.0, 1.0) * 32767.0).round() as i16)
             } else {
                 writer.write_sample(s)
             };
-            result.map_err(|e| fail(e.to_string()))?;
+            result.map_err(as_io)?;
         }
-        writer.finalize().map_err(|e| fail(e.to_string()))?;
-    }
-    temp.as_file().sync_all().map_err(|e| fail(e.to_string()))?;
-    temp.persist(path).map_err(|e| fail(e.error.to_string()))?;
-    Ok(())
+        writer.finalize().map_err(as_io)
+    })
+    .map_err(|e| WavError::Write {
+        path: path.to_owned(),
+        detail: e.to_string(),
+    })
 }
 
 #[cfg(test)]
@@ -664,17 +542,47 @@ mod tests {
     }
 
     #[test]
-    fn data_cut_short_is_truncated_after_the_whole_frames() {
+    fn data_cut_short_is_truncated_after_what_was_whole() {
         let dir = tempfile::tempdir().expect("temp dir");
         let path = dir.path().join("cut.wav");
-        write_mono(&path, 48_000, &[0.25; 1000], true).expect("write");
+        let samples: Vec<f32> = (0..100_000)
+            .map(|i| ((i % 200) as f32 - 100.0) / 400.0)
+            .collect();
+        write_mono(&path, 48_000, &samples, true).expect("write");
         let bytes = std::fs::read(&path).expect("read back");
-        // Keep the header and 100.5 frames of 16-bit mono.
-        let header_len = bytes.len() - 2000;
-        std::fs::write(&path, &bytes[..header_len + 201]).expect("cut");
-        match read_mono(&path) {
-            Err(WavError::Truncated { frames_read, .. }) => assert_eq!(frames_read, 100),
+        // Keep the header and 60 000.5 frames of 16-bit mono.
+        let header_len = bytes.len() - 200_000;
+        std::fs::write(&path, &bytes[..header_len + 120_001]).expect("cut");
+        let mut stream = WavStream::open(&path).expect("the header is whole");
+        let mut block = Vec::new();
+        let mut read = Vec::new();
+        let error = loop {
+            match stream.read_block(&mut block, 10_000) {
+                Ok(0) => panic!("the cut went unnoticed after {} frames", read.len()),
+                Ok(_) => read.extend_from_slice(&block),
+                Err(error) => break error,
+            }
+        };
+        match error {
+            WavError::Truncated { frames_read, .. } => {
+                assert_eq!(frames_read, read.len() as u64);
+                assert!(frames_read <= 60_000, "{frames_read}");
+            }
             other => panic!("{other:?}"),
         }
+        // What came before the cut is the recording itself.
+        for (a, b) in read.iter().zip(&samples) {
+            assert!((a - b).abs() <= 1.0 / 32767.0);
+        }
+    }
+
+    #[test]
+    fn mono_is_the_mean_of_the_channels_and_not_finite_is_silence() {
+        let mut out = Vec::new();
+        mix_to_mono(&[0.5, -0.1, f32::NAN, 0.4, 1.0, 1.0], 2, &mut out);
+        assert_eq!(out, vec![0.2, 0.2, 1.0]);
+        out.clear();
+        mix_to_mono(&[0.25, f32::INFINITY], 1, &mut out);
+        assert_eq!(out, vec![0.25, 0.0]);
     }
 }

@@ -1,5 +1,5 @@
 //! The acoustics layer against outside references (sources named beside
-//! each check; see shared/design/references.md).
+//! each check; see DEVELOPERS.md, "Sources").
 
 use std::f64::consts::PI;
 
@@ -24,7 +24,7 @@ fn air(temp_c: f64, relative_humidity_pct: f64) -> AirConditions {
 #[test]
 fn cramer_1993_check_values() {
     // O. Cramer, J. Acoust. Soc. Am. 93(5):2510, 1993; check values computed
-    // at 101 325 Pa and 400 ppm CO2 as listed in references.md.
+    // at 101 325 Pa and 400 ppm CO2 as listed in DEVELOPERS.md, "Sources".
     for (temp_c, rh, expected_m_s) in [
         (0.0, 0.0, 331.45),
         (20.0, 0.0, 343.36),
@@ -52,7 +52,7 @@ fn iso_9613_1_at_20_c() {
 #[test]
 fn round_hole_in_thin_wall_is_rayleigh_2a() {
     // Lord Rayleigh, The Theory of Sound II: K = 2a for a circular hole in a
-    // very thin wall; references.md: πa²/(t + πa/2) returns 2a as t → 0.
+    // very thin wall; DEVELOPERS.md, "Sources": πa²/(t + πa/2) returns 2a as t → 0.
     for diameter_mm in [5.0, 40.0, 86.0, 120.0] {
         let hole = Opening::Round { diameter_mm };
         let a_m = diameter_mm * 0.5e-3;
@@ -60,7 +60,7 @@ fn round_hole_in_thin_wall_is_rayleigh_2a() {
         assert!((k - 2.0 * a_m).abs() < 1e-14, "{diameter_mm}: {k}");
         let k_thin = opening_conductance_m(&hole, 1e-9, EndCorrection::ThinPlate);
         assert!((k_thin - 2.0 * a_m).abs() < 1e-9 * a_m);
-        // With thickness: exactly πa²/(t + πa/2) (references.md).
+        // With thickness: exactly πa²/(t + πa/2) (DEVELOPERS.md, "Sources").
         let k_thick = opening_conductance_m(&hole, 3.0, EndCorrection::ThinPlate);
         let expected = PI * a_m * a_m / (3e-3 + PI * a_m / 2.0);
         assert!((k_thick - expected).abs() < 1e-12 * expected);
@@ -69,7 +69,7 @@ fn round_hole_in_thin_wall_is_rayleigh_2a() {
 
 #[test]
 fn oval_with_equal_axes_equals_round_hole() {
-    // K(0) = π/2, so πa/K(e) = 2a for a circle (references.md; Rayleigh).
+    // K(0) = π/2, so πa/K(e) = 2a for a circle (DEVELOPERS.md, "Sources"; Rayleigh).
     for end_correction in ALL_END_CORRECTIONS {
         for thickness_mm in [0.0, 2.5, 10.0] {
             let round = Opening::Round { diameter_mm: 86.0 };
@@ -100,7 +100,7 @@ fn elliptic_k_by_quadrature(e_squared: f64) -> f64 {
 
 #[test]
 fn oval_matches_rayleigh_elliptic_formula() {
-    // references.md: elliptical hole, thin wall, K = πa/K(e), e² = 1 − b²/a².
+    // DEVELOPERS.md, "Sources": elliptical hole, thin wall, K = πa/K(e), e² = 1 − b²/a².
     for (length_mm, width_mm) in [(90.0, 60.0), (100.0, 20.0), (60.0, 90.0)] {
         let a_m = 0.5e-3 * f64::max(length_mm, width_mm);
         let b_m = 0.5e-3 * f64::min(length_mm, width_mm);
@@ -119,7 +119,7 @@ fn oval_matches_rayleigh_elliptic_formula() {
 
 #[test]
 fn slender_oval_approaches_slot_formula() {
-    // references.md: for a slender slot K ≈ πa/ln(4a/b), the b/a → 0 limit
+    // DEVELOPERS.md, "Sources": for a slender slot K ≈ πa/ln(4a/b), the b/a → 0 limit
     // of πa/K(e). The gap must shrink as the oval gets more slender.
     let mut previous_gap = f64::INFINITY;
     for ratio in [0.3, 0.1, 0.03, 0.01, 0.003] {
@@ -147,7 +147,7 @@ fn slender_oval_approaches_slot_formula() {
 
 #[test]
 fn conductances_add() {
-    // references.md (Rayleigh): well-separated openings' conductances add.
+    // DEVELOPERS.md, "Sources" (Rayleigh): well-separated openings' conductances add.
     let openings = vec![
         Opening::Round { diameter_mm: 40.0 },
         Opening::Oval {
@@ -212,7 +212,7 @@ fn helmholtz_hand_calculation() {
 
 #[test]
 fn guitar_case_is_plausible() {
-    // references.md, computed example: 13 L, one round hole Ø 86 mm in a
+    // DEVELOPERS.md, "Sources", computed example: 13 L, one round hole Ø 86 mm in a
     // 2.5 mm top, Cramer c at 20 °C 50 % RH: 133–141 Hz depending on the
     // end-correction model.
     for end_correction in [EndCorrection::Flanged, EndCorrection::ThinPlate] {
@@ -233,7 +233,7 @@ fn guitar_case_is_plausible() {
 
 #[test]
 fn violin_case_is_plausible() {
-    // references.md, computed example: 2.0 L, two slender slots 70 × 8 mm,
+    // DEVELOPERS.md, "Sources", computed example: 2.0 L, two slender slots 70 × 8 mm,
     // thin wall, Cramer c at 20 °C 50 % RH: about 304 Hz.
     let slot = Opening::Slot {
         length_mm: 70.0,
@@ -243,7 +243,7 @@ fn violin_case_is_plausible() {
     geometry.end_correction = EndCorrection::ThinPlate;
     let f = estimate_cavity(&geometry).unwrap().helmholtz_hz;
     assert!((f - 304.0).abs() < 1.5, "{f}");
-    // A real violin's A0 is about 270–290 Hz (references.md, from memory):
+    // A real violin's A0 is about 270–290 Hz (DEVELOPERS.md, "Sources", from memory):
     // the rigid-wall estimate must lie above it.
     assert!(f > 290.0);
 }
@@ -251,7 +251,7 @@ fn violin_case_is_plausible() {
 #[test]
 fn two_oscillator_worked_example() {
     // Christensen & Vistisen, JASA 68(3):758, 1980; worked example in
-    // references.md: f− = 100, f+ = 200, f_c = 180 → f_h ≈ 132.7, f_t ≈ 150.8.
+    // DEVELOPERS.md, "Sources": f− = 100, f+ = 200, f_c = 180 → f_h ≈ 132.7, f_t ≈ 150.8.
     let c = coupled_correction(100.0, 200.0, 180.0).unwrap();
     assert!((c.helmholtz_hz - 132.7).abs() < 0.05, "{}", c.helmholtz_hz);
     assert!((c.plate_hz - 150.8).abs() < 0.05, "{}", c.plate_hz);

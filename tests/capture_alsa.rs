@@ -21,10 +21,11 @@
 //! with quiet so that the repeated period is quiet too.
 #![cfg(target_os = "linux")]
 
-use std::io::Read;
+mod common;
+use common::alsa::{self, run_tapwright};
+
 use std::path::Path;
-use std::process::{Command, Stdio};
-use std::time::{Duration, Instant};
+use std::time::Duration;
 
 use tapwright::analysis::synth::{add_modes, contact_pulse, NoiseGenerator, SynthMode};
 
@@ -80,7 +81,7 @@ fn write_raw(path: &Path, samples: &[i16]) {
 /// `plug` it is read through mmap and the samples come out wrong. So there
 /// is no conversion: the program must ask for exactly the file's format.
 /// tapwright asks a device that offers everything for 16-bit mono at
-/// 48 kHz (see `choose_config` in src/capture/device.rs), which is the
+/// 48 kHz (see `choose_config` in src/audio/device.rs), which is the
 /// file's format.
 fn asoundrc(raw: &Path) -> String {
     format!(
@@ -97,60 +98,18 @@ fn asoundrc(raw: &Path) -> String {
 }
 
 fn check_alsa_installed() {
-    let candidates = ["/usr/share/alsa/alsa.conf", "/etc/alsa/alsa.conf"];
-    assert!(
-        candidates.iter().any(|p| Path::new(p).exists()),
-        "the ALSA configuration (alsa.conf) is not installed: install libasound2 and alsa-utils \
-         (bash .ci/setup does) to run the end-to-end capture test"
-    );
+    alsa::check_alsa_installed("capture");
 }
 
-struct Run {
-    code: Option<i32>,
-    stdout: String,
-    stderr: String,
+/// Runs `tapwright listen` with `args` under `home` (at most a minute).
+fn listen(home: &Path, args: &[&str]) -> alsa::Run {
+    alsa::run_subcommand(home, "listen", args)
 }
 
-/// Runs tapwright with HOME set to `home`, killing it after `limit`.
-fn run_tapwright(home: &Path, args: &[&str], limit: Duration) -> Run {
-    let mut child = Command::new(env!("CARGO_BIN_EXE_tapwright"))
-        .args(args)
-        .env("HOME", home)
-        .env("XDG_CONFIG_HOME", home.join(".config"))
-        .env_remove("ALSA_CONFIG_PATH")
-        .stdout(Stdio::piped())
-        .stderr(Stdio::piped())
-        .spawn()
-        .expect("start tapwright");
-    let started = Instant::now();
-    let status = loop {
-        if let Some(status) = child.try_wait().expect("wait for tapwright") {
-            break Some(status);
-        }
-        if started.elapsed() > limit {
-            let _ = child.kill();
-            let _ = child.wait();
-            break None;
-        }
-        std::thread::sleep(Duration::from_millis(20));
-    };
-    let mut stdout = String::new();
-    let mut stderr = String::new();
-    if let Some(mut out) = child.stdout.take() {
-        out.read_to_string(&mut stdout).expect("read stdout");
-    }
-    if let Some(mut err) = child.stderr.take() {
-        err.read_to_string(&mut stderr).expect("read stderr");
-    }
-    assert!(
-        status.is_some(),
-        "tapwright {args:?} did not finish within {limit:?}; stderr:\n{stderr}"
-    );
-    Run {
-        code: status.and_then(|s| s.code()),
-        stdout,
-        stderr,
-    }
+/// A HOME whose default capture device points at a card that does not
+/// exist.
+fn home_without_a_sound_card() -> tempfile::TempDir {
+    alsa::home_with("pcm.!default { type hw card 97 }\n")
 }
 
 #[test]
@@ -265,18 +224,9 @@ fn devices_lists_the_alsa_default() {
 #[test]
 fn listen_without_an_input_device_says_so() {
     check_alsa_installed();
-    let home = tempfile::tempdir().expect("temp HOME");
     // A default capture device that points at a card that does not exist.
-    std::fs::write(
-        home.path().join(".asoundrc"),
-        "pcm.!default { type hw card 97 }\n",
-    )
-    .expect("write .asoundrc");
-    let run = run_tapwright(
-        home.path(),
-        &["listen", "--taps", "1", "--seconds", "2"],
-        Duration::from_secs(60),
-    );
+    let home = home_without_a_sound_card();
+    let run = listen(home.path(), &["--taps", "1", "--seconds", "2"]);
     assert_eq!(
         run.code,
         Some(2),
@@ -293,14 +243,9 @@ fn listen_without_an_input_device_says_so() {
 #[test]
 fn without_a_sound_card_alsa_prints_nothing_of_its_own() {
     check_alsa_installed();
-    let home = tempfile::tempdir().expect("temp HOME");
     // A default device on a card that does not exist: alsa-lib's own
     // error printing would add lines such as "ALSA lib pcm.c:...".
-    std::fs::write(
-        home.path().join(".asoundrc"),
-        "pcm.!default { type hw card 97 }\n",
-    )
-    .expect("write .asoundrc");
+    let home = home_without_a_sound_card();
     for args in [
         &["devices"][..],
         &["listen", "--taps", "1", "--seconds", "2"][..],
@@ -324,18 +269,9 @@ fn the_null_device_is_named_for_what_it_is_not_as_losing_samples() {
     // ALSA's `null` capture device returns zeros as fast as they are read
     // (alsa-lib pcm_null.c: it has no clock): far faster than real time,
     // so the ring overfills at once. That is not sound the computer lost.
-    let run = run_tapwright(
+    let run = listen(
         home.path(),
-        &[
-            "listen",
-            "--device",
-            "null",
-            "--taps",
-            "1",
-            "--seconds",
-            "2",
-        ],
-        Duration::from_secs(60),
+        &["--device", "null", "--taps", "1", "--seconds", "2"],
     );
     assert_eq!(run.code, Some(2), "stderr:\n{}", run.stderr);
     assert!(!run.stderr.contains("were lost"), "{}", run.stderr);

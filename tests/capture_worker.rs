@@ -7,9 +7,11 @@ use std::sync::mpsc::RecvTimeoutError;
 use std::time::{Duration, Instant};
 
 use tapwright::analysis::synth::SynthMode;
-use tapwright::analysis::{analyze_recording, AnalysisSettings, RejectReason, TriggerSettings};
-use tapwright::capture::{
-    CaptureError, CaptureEvent, CaptureHandle, CaptureSettings, Direction, OpenSource, Pacing,
+use tapwright::analysis::{
+    analyze_recording, AnalysisSettings, RejectReason, Tap, TriggerSettings,
+};
+use tapwright::audio::{
+    AudioError, CaptureEvent, CaptureHandle, CaptureSettings, Direction, OpenSource, Pacing,
     SampleGenerator, SampleSource, SourceChoice, SourceRead, SyntheticGenerator, SyntheticStrike,
     SyntheticTaps,
 };
@@ -74,8 +76,16 @@ fn summary(events: &[CaptureEvent]) -> String {
         .map(|e| match e {
             CaptureEvent::SourceStarted { .. } => "started".to_owned(),
             CaptureEvent::TapStarted { index, .. } => format!("tap{index}…"),
-            CaptureEvent::TapAccepted { index, .. } => format!("tap{index} ok"),
-            CaptureEvent::TapRejected { index, reason, .. } => format!("tap{index} {reason}"),
+            CaptureEvent::Tap(Tap {
+                index,
+                rejected: None,
+                ..
+            }) => format!("tap{index} ok"),
+            CaptureEvent::Tap(Tap {
+                index,
+                rejected: Some(reason),
+                ..
+            }) => format!("tap{index} {reason}"),
             CaptureEvent::Overrun {
                 dropped_samples_total,
             } => format!("overrun {dropped_samples_total}"),
@@ -94,8 +104,9 @@ fn tap_outcomes(events: &[CaptureEvent]) -> Vec<(usize, Option<RejectReason>)> {
     events
         .iter()
         .filter_map(|e| match e {
-            CaptureEvent::TapAccepted { index, .. } => Some((*index, None)),
-            CaptureEvent::TapRejected { index, reason, .. } => Some((*index, Some(*reason))),
+            CaptureEvent::Tap(Tap {
+                index, rejected, ..
+            }) => Some((*index, *rejected)),
             _ => None,
         })
         .collect()
@@ -122,14 +133,14 @@ fn assert_tap_order(events: &[CaptureEvent]) {
                 );
                 started = Some(*index);
             }
-            CaptureEvent::TapAccepted { index, .. } | CaptureEvent::TapRejected { index, .. } => {
+            CaptureEvent::Tap(Tap { index, .. }) => {
                 assert_eq!(*index, expected, "tap out of order: {}", summary(events));
                 let quiet = matches!(
                     event,
-                    CaptureEvent::TapRejected {
-                        reason: RejectReason::TooQuiet,
+                    CaptureEvent::Tap(Tap {
+                        rejected: Some(RejectReason::TooQuiet),
                         ..
-                    }
+                    })
                 );
                 assert!(
                     quiet || started == Some(*index),
@@ -201,14 +212,20 @@ fn replay_finds_every_tap_the_batch_analysis_finds() {
     // Same onsets and the same measurement as the batch analysis.
     for (event, batch_tap) in events.iter().filter(|e| e.is_tap()).zip(&batch.taps) {
         match event {
-            CaptureEvent::TapAccepted {
-                onset_s, analysis, ..
-            } => {
+            CaptureEvent::Tap(Tap {
+                onset_s,
+                analysis: Some(analysis),
+                ..
+            }) => {
                 assert!((onset_s - batch_tap.onset_s).abs() < 1e-9);
                 let batch_analysis = batch_tap.analysis.as_ref().expect("batch analysis");
                 assert_eq!(analysis.modes, batch_analysis.modes);
             }
-            CaptureEvent::TapRejected { onset_s, .. } => {
+            CaptureEvent::Tap(Tap {
+                onset_s,
+                analysis: None,
+                ..
+            }) => {
                 assert!((onset_s - batch_tap.onset_s).abs() < 1e-9)
             }
             _ => unreachable!(),
@@ -243,9 +260,11 @@ fn synthetic_taps_are_found_measured_and_rejected_for_the_right_reasons() {
         summary(&events)
     );
     for event in &events {
-        if let CaptureEvent::TapAccepted {
-            analysis, onset_s, ..
-        } = event
+        if let CaptureEvent::Tap(Tap {
+            analysis: Some(analysis),
+            onset_s,
+            ..
+        }) = event
         {
             assert!(
                 [0.5, 5.0].iter().any(|t| (onset_s - t).abs() < 0.003),
@@ -385,7 +404,11 @@ fn settings_change_while_running() {
 
     let first = collect_until(&handle, |events| events.iter().any(|e| e.is_tap()));
     let first_tap = first.iter().find_map(|e| match e {
-        CaptureEvent::TapAccepted { tap, analysis, .. } => Some((tap.clone(), analysis.clone())),
+        CaptureEvent::Tap(Tap {
+            record: Some(tap),
+            analysis: Some(analysis),
+            ..
+        }) => Some((tap.clone(), analysis.clone())),
         _ => None,
     });
     let (tap, analysis) = first_tap.expect("first tap accepted");
@@ -412,7 +435,11 @@ fn settings_change_while_running() {
         events.iter().filter(|e| e.is_tap()).count() >= 3
     });
     let last = later.iter().rev().find_map(|e| match e {
-        CaptureEvent::TapAccepted { tap, analysis, .. } => Some((tap.clone(), analysis.clone())),
+        CaptureEvent::Tap(Tap {
+            record: Some(tap),
+            analysis: Some(analysis),
+            ..
+        }) => Some((tap.clone(), analysis.clone())),
         _ => None,
     });
     let (tap, analysis) = last.expect("a later tap accepted");
@@ -436,7 +463,7 @@ fn settings_change_while_running() {
 #[test]
 fn stop_and_drop_end_the_worker() {
     for use_drop in [false, true] {
-        let taps = SyntheticTaps::demo_plate();
+        let taps = tapwright::demo::demo_plate_taps();
         let mut handle = CaptureHandle::start(
             SourceChoice::Synthetic {
                 taps,
@@ -473,7 +500,7 @@ fn stop_and_drop_end_the_worker() {
 fn notify_is_called_for_events() {
     let count = std::sync::Arc::new(std::sync::atomic::AtomicUsize::new(0));
     let seen = std::sync::Arc::clone(&count);
-    let notify: tapwright::capture::Notify = std::sync::Arc::new(move || {
+    let notify: tapwright::audio::Notify = std::sync::Arc::new(move || {
         seen.fetch_add(1, std::sync::atomic::Ordering::Relaxed);
     });
     let mut handle = CaptureHandle::start(
@@ -520,7 +547,7 @@ fn empty_recording_is_refused_at_start() {
 /// What one attempt to open the scripted device does.
 #[derive(Debug)]
 enum Attempt {
-    Fail(CaptureError),
+    Fail(AudioError),
     /// Delivers the samples, then is unplugged (Lost) or goes silent.
     Deliver {
         samples: Vec<f32>,
@@ -534,9 +561,9 @@ struct ScriptedDevice {
 }
 
 impl OpenSource for ScriptedDevice {
-    fn open(&mut self, _ring_capacity_s: f64) -> Result<Box<dyn SampleSource>, CaptureError> {
+    fn open(&mut self, _ring_capacity_s: f64) -> Result<Box<dyn SampleSource>, AudioError> {
         if self.attempts.is_empty() {
-            return Err(CaptureError::DeviceBusy {
+            return Err(AudioError::DeviceBusy {
                 direction: Direction::Input,
                 device: "scripted".to_owned(),
             });
@@ -618,7 +645,7 @@ fn lost_busy_and_silent_devices_are_retried_until_stopped() {
                 samples: one_tap_samples(),
                 then_lost: Some("the scripted device was unplugged".to_owned()),
             },
-            Attempt::Fail(CaptureError::DeviceBusy {
+            Attempt::Fail(AudioError::DeviceBusy {
                 direction: Direction::Input,
                 device: "scripted".to_owned(),
             }),
@@ -646,7 +673,11 @@ fn lost_busy_and_silent_devices_are_retried_until_stopped() {
         .iter()
         .filter_map(|e| match e {
             CaptureEvent::SourceStarted { .. } => Some("started".to_owned()),
-            CaptureEvent::TapAccepted { index, .. } => Some(format!("tap{index}")),
+            CaptureEvent::Tap(Tap {
+                index,
+                rejected: None,
+                ..
+            }) => Some(format!("tap{index}")),
             CaptureEvent::DeviceLost { message } if message.contains("no sound has arrived") => {
                 Some("silent".to_owned())
             }
@@ -682,7 +713,7 @@ fn lost_busy_and_silent_devices_are_retried_until_stopped() {
 #[test]
 fn a_device_that_cannot_open_fails_at_start() {
     let device = ScriptedDevice {
-        attempts: vec![Attempt::Fail(CaptureError::DeviceBusy {
+        attempts: vec![Attempt::Fail(AudioError::DeviceBusy {
             direction: Direction::Input,
             device: "mic".to_owned(),
         })],

@@ -43,7 +43,7 @@ fn guitar_table() {
     assert!(text.contains("343.99 m/s"), "{text}");
     // Default end correction, 2.5 mm top (t = 0.058a, close to Rayleigh's
     // orifice): K = πa²/(t + 2δ) with δ = 0.7874a gives 138.1 Hz, inside
-    // references.md's 133–141 Hz for the sourced end-correction models.
+    // DEVELOPERS.md ("Sources"): 133–141 Hz for the sourced end-correction models.
     assert!(text.contains("138.1"), "{text}");
     assert!(stderr(&output).is_empty());
 }
@@ -93,7 +93,7 @@ fn json_has_the_promised_fields() {
     let each = openings[0]["conductance_m"].as_f64().unwrap();
     let total = v["conductance_m"].as_f64().unwrap();
     assert!((total - 2.0 * each).abs() < 1e-12);
-    // references.md: about 304 Hz for the thin-wall violin case.
+    // DEVELOPERS.md, "Sources": about 304 Hz for the thin-wall violin case.
     let f = v["helmholtz_hz"].as_f64().unwrap();
     assert!((f - 304.0).abs() < 1.5, "{f}");
     assert!(v["note"].is_string() && v["cents"].is_number());
@@ -160,7 +160,7 @@ fn solve_round_slot_and_volume() {
 
 #[test]
 fn coupled_and_air_check() {
-    // Christensen & Vistisen 1980, worked example in references.md.
+    // Christensen & Vistisen 1980, worked example in DEVELOPERS.md, "Sources".
     let v = json(&["--coupled", "100,200,180", "--measured-a0-hz", "100"]);
     assert!((v["coupled"]["helmholtz_hz"].as_f64().unwrap() - 132.7).abs() < 0.05);
     assert!((v["coupled"]["plate_hz"].as_f64().unwrap() - 150.8).abs() < 0.05);

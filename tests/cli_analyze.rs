@@ -204,3 +204,60 @@ fn bad_options() {
         assert!(out.stdout.is_empty());
     }
 }
+
+fn encoded(name: &str) -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR"))
+        .join("tests/data/encoded")
+        .join(name)
+}
+
+/// Phone and recorder formats are read like WAV (fixtures: see
+/// tests/data/encoded/README.md; the plate's mode 5 is at 338 Hz).
+#[test]
+fn reads_encoded_recordings() {
+    for name in ["plate.flac", "plate_alac.m4a", "plate.ogg", "plate.caf"] {
+        let path = encoded(name);
+        let out = tapwright(&["analyze", "--json", path.to_str().unwrap()]);
+        assert!(
+            out.status.success(),
+            "{name}: {}",
+            String::from_utf8_lossy(&out.stderr)
+        );
+        let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+        assert_eq!(v["taps_used"], 2, "{name}");
+        let modes = v["modes"].as_array().unwrap();
+        assert!(
+            modes
+                .iter()
+                .any(|m| (m["frequency_hz"].as_f64().unwrap() - 338.0).abs() < 0.1),
+            "{name}: {modes:?}"
+        );
+    }
+}
+
+/// A file the decoder cannot read: one sentence naming it, exit 2.
+#[test]
+fn encoded_files_that_cannot_be_read() {
+    for (name, words) in [
+        ("bad_he_aac.m4a", "HE-AAC"),
+        ("bad_opus.ogg", "Opus"),
+        ("bad_video_only.mp4", "video"),
+        ("bad_encrypted.m4a", "encrypted"),
+        ("bad_truncated.m4a", "cut short"),
+        ("bad_truncated.flac", "cut short"),
+    ] {
+        let out = tapwright(&["analyze", encoded(name).to_str().unwrap()]);
+        assert_bad_input(&out, name);
+        let stderr = String::from_utf8_lossy(&out.stderr);
+        assert!(stderr.contains(words), "{stderr}");
+    }
+    let dir = tempfile::tempdir().unwrap();
+    for (name, bytes) in [
+        ("empty.m4a", Vec::new()),
+        ("unknown.mp3", b"not a recording at all\n".repeat(100)),
+    ] {
+        let path = dir.path().join(name);
+        std::fs::write(&path, bytes).unwrap();
+        assert_bad_input(&tapwright(&["analyze", path.to_str().unwrap()]), name);
+    }
+}

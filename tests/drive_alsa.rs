@@ -16,10 +16,11 @@
 //! `.ci/setup`). Without them the test fails with a message saying so.
 #![cfg(target_os = "linux")]
 
-use std::io::Read;
+mod common;
+use common::alsa::{self, run_tapwright};
+
 use std::path::{Path, PathBuf};
-use std::process::{Command, Stdio};
-use std::time::{Duration, Instant};
+use std::time::Duration;
 
 use tapwright::analysis::fit_sine;
 
@@ -51,66 +52,14 @@ pcm.drive_file {{
     )
 }
 
-fn check_alsa_installed() {
-    let candidates = ["/usr/share/alsa/alsa.conf", "/etc/alsa/alsa.conf"];
-    assert!(
-        candidates.iter().any(|p| Path::new(p).exists()),
-        "the ALSA configuration (alsa.conf) is not installed: install libasound2 and alsa-utils \
-         (bash .ci/setup does) to run the end-to-end drive test"
-    );
-}
-
-struct Run {
-    code: Option<i32>,
-    stdout: String,
-    stderr: String,
-}
-
-/// Runs tapwright with HOME set to `home`, killing it after `limit`.
-fn run_tapwright(home: &Path, args: &[&str], limit: Duration) -> Run {
-    let mut child = Command::new(env!("CARGO_BIN_EXE_tapwright"))
-        .args(args)
-        .env("HOME", home)
-        .env("XDG_CONFIG_HOME", home.join(".config"))
-        .env_remove("ALSA_CONFIG_PATH")
-        .stdout(Stdio::piped())
-        .stderr(Stdio::piped())
-        .spawn()
-        .expect("start tapwright");
-    let started = Instant::now();
-    let status = loop {
-        if let Some(status) = child.try_wait().expect("wait for tapwright") {
-            break Some(status);
-        }
-        if started.elapsed() > limit {
-            let _ = child.kill();
-            let _ = child.wait();
-            break None;
-        }
-        std::thread::sleep(Duration::from_millis(20));
-    };
-    let mut stdout = String::new();
-    let mut stderr = String::new();
-    if let Some(mut out) = child.stdout.take() {
-        out.read_to_string(&mut stdout).expect("read stdout");
-    }
-    if let Some(mut err) = child.stderr.take() {
-        err.read_to_string(&mut stderr).expect("read stderr");
-    }
-    assert!(
-        status.is_some(),
-        "tapwright {args:?} did not finish within {limit:?}; stderr:\n{stderr}"
-    );
-    Run {
-        code: status.and_then(|s| s.code()),
-        stdout,
-        stderr,
-    }
+/// Runs `tapwright drive` with `args` under `home` (at most a minute).
+fn drive(home: &Path, args: &[&str]) -> alsa::Run {
+    alsa::run_subcommand(home, "drive", args)
 }
 
 /// A temporary HOME whose default playback device writes to `out.raw`.
 fn file_device_home() -> (tempfile::TempDir, PathBuf) {
-    check_alsa_installed();
+    alsa::check_alsa_installed("drive");
     let home = tempfile::tempdir().expect("temp HOME");
     let raw = home.path().join("out.raw");
     std::fs::write(home.path().join(".asoundrc"), asoundrc(&raw)).expect("write .asoundrc");
@@ -152,18 +101,9 @@ fn peak(samples: &[f64]) -> f64 {
 #[test]
 fn drive_writes_the_asked_tone_with_fades_through_the_alsa_file_device() {
     let (home, raw) = file_device_home();
-    let run = run_tapwright(
+    let run = drive(
         home.path(),
-        &[
-            "drive",
-            "--hz",
-            "233.3",
-            "--seconds",
-            "2",
-            "--level-db",
-            "-12",
-        ],
-        Duration::from_secs(60),
+        &["--hz", "233.3", "--seconds", "2", "--level-db", "-12"],
     );
     assert_eq!(
         run.code,
@@ -226,18 +166,9 @@ fn drive_writes_the_asked_tone_with_fades_through_the_alsa_file_device() {
 #[test]
 fn a_level_above_the_cap_is_refused_and_nothing_is_played() {
     let (home, raw) = file_device_home();
-    let run = run_tapwright(
+    let run = drive(
         home.path(),
-        &[
-            "drive",
-            "--hz",
-            "233.3",
-            "--seconds",
-            "2",
-            "--level-db",
-            "-6",
-        ],
-        Duration::from_secs(60),
+        &["--hz", "233.3", "--seconds", "2", "--level-db", "-6"],
     );
     assert_eq!(run.code, Some(2), "stderr:\n{}", run.stderr);
     let last = run.stderr.lines().last().unwrap_or_default();
@@ -254,10 +185,9 @@ fn a_level_above_the_cap_is_refused_and_nothing_is_played() {
 #[test]
 fn a_lower_cap_holds_a_swept_tone_below_it() {
     let (home, raw) = file_device_home();
-    let run = run_tapwright(
+    let run = drive(
         home.path(),
         &[
-            "drive",
             "--hz",
             "440",
             "--seconds",
@@ -271,7 +201,6 @@ fn a_lower_cap_holds_a_swept_tone_below_it() {
             "--sweep-period-s",
             "2",
         ],
-        Duration::from_secs(60),
     );
     assert_eq!(run.code, Some(0), "stderr:\n{}", run.stderr);
     let samples = read_s16(&raw);

@@ -195,22 +195,22 @@ fn bad_files_give_clear_errors_and_stay_byte_identical() {
     let (error, _) = load_bad("binary.ron", &[0x28, 0xff, 0xfe, 0x00, 0x29]);
     assert!(matches!(error, StoreError::NotText { .. }));
 
-    let future = good.replacen("schema_version: 3", "schema_version: 4", 1);
+    let future = good.replacen("schema_version: 4", "schema_version: 5", 1);
     let (error, message) = load_bad("future.ron", future.as_bytes());
     assert!(matches!(
         error,
-        StoreError::UnsupportedVersion { found: 4, .. }
+        StoreError::UnsupportedVersion { found: 5, .. }
     ));
-    assert!(message.contains("version 4"), "{message}");
+    assert!(message.contains("version 5"), "{message}");
 
-    let zero = good.replacen("schema_version: 3", "schema_version: 0", 1);
+    let zero = good.replacen("schema_version: 4", "schema_version: 0", 1);
     let (error, _) = load_bad("zero.ron", zero.as_bytes());
     assert!(matches!(
         error,
         StoreError::NoVersion { .. } | StoreError::UnsupportedVersion { .. }
     ));
 
-    let unversioned = good.replacen("schema_version: 3,", "", 1);
+    let unversioned = good.replacen("schema_version: 4,", "", 1);
     let (error, _) = load_bad("unversioned.ron", unversioned.as_bytes());
     assert!(matches!(error, StoreError::NoVersion { .. }));
 
@@ -277,7 +277,7 @@ fn schema_version_1_files_are_migrated() {
     let build = store::load(&path).unwrap();
     assert_eq!(fs::read(&path).unwrap(), before);
 
-    assert_eq!(build.schema_version(), 3);
+    assert_eq!(build.schema_version(), 4);
     assert!(build.stock().is_empty());
     assert_eq!(build.name, "Small viola, first of two");
     assert_eq!(build.family(), Family::Viola);
@@ -307,7 +307,7 @@ fn schema_version_1_files_are_migrated() {
     store::save(&copy, &build).unwrap();
     assert!(fs::read_to_string(&copy)
         .unwrap()
-        .contains("schema_version: 3"));
+        .contains("schema_version: 4"));
     assert_eq!(store::load(&copy).unwrap(), build);
 
     let minimal =
@@ -326,7 +326,7 @@ fn schema_version_2_files_are_migrated() {
     let before = fs::read(&path).unwrap();
     let build = store::load(&path).unwrap();
     assert_eq!(fs::read(&path).unwrap(), before, "loading never writes");
-    assert_eq!(build.schema_version(), 3);
+    assert_eq!(build.schema_version(), 4);
     assert_eq!(build.name, "Cello (fixture)");
     assert_eq!(build.family(), Family::Cello);
     assert!(build.stock().is_empty());
@@ -341,7 +341,7 @@ fn schema_version_2_files_are_migrated() {
     let copy = folder.path().join("cello.ron");
     store::save(&copy, &build).unwrap();
     let text = fs::read_to_string(&copy).unwrap();
-    assert!(text.contains("schema_version: 3"), "{text}");
+    assert!(text.contains("schema_version: 4"), "{text}");
     assert!(text.contains("stock: []"), "{text}");
     assert_eq!(store::load(&copy).unwrap(), build);
 }

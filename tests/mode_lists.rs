@@ -1,12 +1,15 @@
 //! What the mode list holds on sounds like real taps: the true modes, and
 //! not the strike transient, the room noise or second copies of a mode.
 
+mod common;
+use common::analyze_with_defaults;
+
 use std::f64::consts::PI;
 
 use tapwright::analysis::synth::{
     add_modes, contact_pulse, to_f32_clipped, NoiseGenerator, SynthMode,
 };
-use tapwright::analysis::{analyze_recording, AnalysisSettings, RecordingReport, TriggerSettings};
+use tapwright::analysis::{AnalysisSettings, RecordingReport};
 
 const FS: f64 = 48_000.0;
 
@@ -101,12 +104,7 @@ fn struck_bar_recording(fundamental_hz: f64, seed: u64) -> Vec<f32> {
 }
 
 fn analyze(samples: &[f32]) -> RecordingReport {
-    analyze_recording(
-        samples,
-        FS,
-        &TriggerSettings::default(),
-        &AnalysisSettings::default(),
-    )
+    analyze_with_defaults(samples, FS)
 }
 
 /// The struck bar lists its partials within the band (up to 4 kHz by

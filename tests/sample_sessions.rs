@@ -6,7 +6,7 @@
 //! generator makes, so they stay in step with the model.
 //!
 //! Everything here is invented: the maker, the instruments and the numbers
-//! (chosen inside the typical ranges of references.md).
+//! (chosen inside the typical ranges of DEVELOPERS.md, "Sources").
 
 use std::path::{Path, PathBuf};
 
@@ -458,7 +458,7 @@ fn violin_sample_is_current_and_plausible() {
         let masses: Vec<f64> = part.passes().iter().map(|p| p.mass_g).collect();
         assert!(masses.windows(2).all(|w| w[1] < w[0]));
     }
-    // Typical values (references.md): free top mode 5 about 320–370 Hz at
+    // Typical values (DEVELOPERS.md, "Sources"): free top mode 5 about 320–370 Hz at
     // 60–75 g, mode 2 about 150–180 Hz; free back mode 5 about 340–390 Hz at
     // 95–120 g; mode 5 near an octave above mode 2 (Hutchins, Sci. Am. 1981).
     let top_last = top.latest_pass().unwrap();
@@ -516,7 +516,7 @@ fn violin_sample_is_current_and_plausible() {
         4.0,
         12.0,
     );
-    // Closed violin body (references.md, from memory): A0 270–290, CBR
+    // Closed violin body (DEVELOPERS.md, "Sources", from memory): A0 270–290, CBR
     // 380–430, B1− 440–490, B1+ 510–570 Hz.
     let body = build.part("Body").unwrap().latest_pass().unwrap();
     for (label, low, high) in [
@@ -555,7 +555,7 @@ fn guitar_sample_is_current_and_plausible() {
     for label in ["monopole", "cross-dipole", "long-dipole"] {
         assert_falls(top, label);
     }
-    // Guitar body (references.md, from memory; Fletcher & Rossing 1998,
+    // Guitar body (DEVELOPERS.md, "Sources", from memory; Fletcher & Rossing 1998,
     // ch. 9): A0 about 90–110 Hz, main top mode about 180–230 Hz.
     let body = build.part("Body").unwrap().latest_pass().unwrap();
     assert_within(

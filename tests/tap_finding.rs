@@ -9,14 +9,15 @@
 //! second strike adds a new impulse response that the decay before it does
 //! not foretell.
 
+mod common;
+use common::analyze_with_defaults;
+
 use std::f64::consts::PI;
 
 use tapwright::analysis::synth::{
     add_modes, contact_pulse, to_f32_clipped, NoiseGenerator, SynthMode,
 };
-use tapwright::analysis::{
-    analyze_recording, AnalysisSettings, RecordingReport, RejectReason, TriggerSettings,
-};
+use tapwright::analysis::{RecordingReport, RejectReason};
 
 const FS: f64 = 48_000.0;
 
@@ -44,12 +45,7 @@ fn with_noise(mut x: Vec<f64>, noise_rms: f64, seed: u64) -> Vec<f32> {
 }
 
 fn analyze(samples: &[f32]) -> RecordingReport {
-    analyze_recording(
-        samples,
-        FS,
-        &TriggerSettings::default(),
-        &AnalysisSettings::default(),
-    )
+    analyze_with_defaults(samples, FS)
 }
 
 fn reasons(report: &RecordingReport) -> Vec<Option<RejectReason>> {

@@ -8,7 +8,7 @@ use common::*;
 use eframe::egui;
 use egui_kittest::kittest::Queryable;
 use tapwright::analysis::synth::{add_modes, NoiseGenerator, SynthMode};
-use tapwright::capture::Pacing;
+use tapwright::audio::Pacing;
 use tapwright::ledger::{Family, PartKind};
 use tapwright::ui::{AppCommand, AppOptions, SourceState, StartSource, TapwrightApp};
 
@@ -246,17 +246,12 @@ fn areas_switch_and_a_pass_goes_to_the_ledger_through_commands() {
     harness.run_ok();
 
     let app = harness.state_mut();
-    app.queue(AppCommand::NewBuild {
-        name: "Invented violin No. 1".into(),
-        family: Family::Violin,
-    });
-    app.queue(AppCommand::EditBuild {
-        description: "adding the top".into(),
-        edit: Box::new(|build| {
-            build.add_part("top", PartKind::TopPlate)?;
-            Ok("Added the top.".into())
-        }),
-    });
+    queue_build_with_part(
+        app,
+        ("Invented violin No. 1", Family::Violin),
+        ("top", PartKind::TopPlate),
+        "Added the top.",
+    );
     app.queue(AppCommand::SetListenPart(Some("top".into())));
     harness.run_ok();
     harness.get_by_label("Labels from Invented violin No. 1: top");
@@ -307,17 +302,12 @@ fn recorded_pass_is_saved_at_once_when_the_build_has_a_file() {
     let mut harness = demo_harness();
     demo_finished(&mut harness);
     let app = harness.state_mut();
-    app.queue(AppCommand::NewBuild {
-        name: "Invented viola".into(),
-        family: Family::Viola,
-    });
-    app.queue(AppCommand::EditBuild {
-        description: "adding the back".into(),
-        edit: Box::new(|build| {
-            build.add_part("back", PartKind::BackPlate)?;
-            Ok(String::new())
-        }),
-    });
+    queue_build_with_part(
+        app,
+        ("Invented viola", Family::Viola),
+        ("back", PartKind::BackPlate),
+        "",
+    );
     app.queue(AppCommand::SaveBuildAs(path.clone()));
     harness.run_ok();
     step_until(&mut harness, "the first save", |app| {
@@ -373,7 +363,7 @@ fn a_new_band_measures_the_taps_already_heard_again() {
     let mut harness = demo_harness();
     demo_finished(&mut harness);
     assert_eq!(harness.state().pass().unwrap().modes.len(), 7);
-    let mut settings = tapwright::capture::CaptureSettings::default();
+    let mut settings = tapwright::audio::CaptureSettings::default();
     settings.analysis.band_low_hz = 300.0;
     settings.analysis.band_high_hz = 600.0;
     harness.state_mut().queue(AppCommand::Listen(

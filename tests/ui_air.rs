@@ -5,7 +5,7 @@
 //! the geometry with the build.
 //!
 //! Expected values are computed with `tapwright::acoustics` for the same
-//! geometry, or come from `shared/design/references.md` where named.
+//! geometry, or come from DEVELOPERS.md, "Sources" where named.
 
 mod common;
 use common::*;
@@ -28,19 +28,6 @@ fn air_harness() -> Harness<'static, TapwrightApp> {
     harness.run_ok();
     assert_eq!(harness.state().area(), Area::Air);
     harness
-}
-
-/// Replaces the text of the field labelled `label`.
-fn set_field(harness: &mut Harness<'_, TapwrightApp>, label: &str, text: &str) {
-    harness.get_by_label(label).set_text_value_accesskit(text);
-    harness.run_ok();
-}
-
-fn field_value(harness: &Harness<'_, TapwrightApp>, label: &str) -> String {
-    harness
-        .get_by_label(label)
-        .value()
-        .unwrap_or_else(|| panic!("the field {label} has no value"))
 }
 
 /// The way the window writes signed numbers: a true minus sign.
@@ -69,7 +56,7 @@ fn open_build(harness: &mut Harness<'_, TapwrightApp>, path: &Path) {
 }
 
 /// 13 L, one round hole Ø 86 mm, 2.5 mm wall, default end correction and air (the
-/// guitar case of references.md, "Cavity (Helmholtz) resonance").
+/// guitar case of DEVELOPERS.md, "Sources", cavity resonance).
 fn guitar_geometry() -> CavityGeometry {
     let mut geometry = CavityGeometry::new(13.0e-3, vec![Opening::Round { diameter_mm: 86.0 }]);
     geometry.wall_thickness_mm = 2.5;
@@ -135,7 +122,7 @@ fn a_typed_volume_and_opening_give_the_estimate_of_the_acoustics_layer() {
     harness.get_by_label(&format!("{:.1} Hz", expected.helmholtz_hz));
 
     // The thin-plate end correction at zero thickness: K = 2a (Rayleigh,
-    // references.md), so the conductance shown is the diameter, 86.0 mm.
+    // DEVELOPERS.md, "Sources"), so the conductance shown is the diameter, 86.0 mm.
     set_field(&mut harness, "Wall thickness", "0");
     harness.get_by_label("End correction").click();
     harness.run_ok();
@@ -281,7 +268,7 @@ fn the_coupled_correction_matches_the_worked_example() {
     set_field(&mut harness, "f− hole open, lower", "100");
     set_field(&mut harness, "f+ hole open, upper", "200");
     set_field(&mut harness, "f_c hole sealed", "180");
-    // references.md, "Cavity (Helmholtz) resonance", two-oscillator model
+    // DEVELOPERS.md, "Sources", coupled air and plate: the two-oscillator model
     // (Christensen & Vistisen 1980), computed example: f− = 100, f+ = 200,
     // f_c = 180 Hz give f_h ≈ 132.7 Hz and f_t ≈ 150.8 Hz.
     harness.get_by_label("132.7 Hz");
@@ -305,7 +292,7 @@ fn the_coupled_correction_matches_the_worked_example() {
 #[test]
 fn the_air_check_against_a_typed_a0_shows_cents() {
     let mut harness = air_harness();
-    // A violin's A0 is about 270–290 Hz (references.md, from memory); the
+    // A violin's A0 is about 270–290 Hz (DEVELOPERS.md, "Sources", from memory); the
     // violin-like body's rigid-wall estimate is about 280 Hz.
     set_field(&mut harness, "Typed A0", "270");
     let estimate = estimate_cavity(&violin_geometry()).unwrap();

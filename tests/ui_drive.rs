@@ -14,8 +14,8 @@ use eframe::egui;
 use egui::accesskit::Role;
 use egui_kittest::kittest::Queryable;
 use egui_kittest::Harness;
-use tapwright::capture::tone::{DEFAULT_LEVEL_CAP_DB, DEFAULT_LEVEL_DB};
-use tapwright::capture::{OutputChoice, ToneState};
+use tapwright::audio::tone::{DEFAULT_LEVEL_CAP_DB, DEFAULT_LEVEL_DB};
+use tapwright::audio::{OutputChoice, ToneState};
 use tapwright::ui::{AppOptions, Area, TapwrightApp};
 
 fn drive_harness(options: AppOptions) -> Harness<'static, TapwrightApp> {

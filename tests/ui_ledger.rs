@@ -11,8 +11,8 @@ use std::path::Path;
 
 use egui_kittest::kittest::Queryable;
 use egui_kittest::Harness;
+use tapwright::demo::SAMPLE_BUILDS;
 use tapwright::ledger::{store, Build};
-use tapwright::ui::ledger_area::SAMPLE_BUILDS;
 use tapwright::ui::{AppCommand, AppOptions, TapwrightApp};
 
 fn click(harness: &mut Harness<'_, TapwrightApp>, label: &str) {

@@ -13,18 +13,6 @@ use tapwright::acoustics::stock::{bar_figures, BarSample};
 use tapwright::ledger::Family;
 use tapwright::ui::{AppCommand, Area, TapwrightApp};
 
-fn set_field(harness: &mut Harness<'_, TapwrightApp>, label: &str, text: &str) {
-    harness.get_by_label(label).set_text_value_accesskit(text);
-    harness.run_ok();
-}
-
-fn field_value(harness: &Harness<'_, TapwrightApp>, label: &str) -> String {
-    harness
-        .get_by_label(label)
-        .value()
-        .unwrap_or_else(|| panic!("the field {label} has no value"))
-}
-
 /// The demo recording heard, a new build open, the Stock area shown.
 fn stock_harness() -> Harness<'static, TapwrightApp> {
     let mut harness = demo_harness();

@@ -653,7 +653,7 @@ mod tests {
 
     #[test]
     fn round_with_thickness_matches_textbook_form() {
-        // references.md: K = πa²/(t + 2δ), δ = 0.8216a flanged, 0.6133a unflanged.
+        // DEVELOPERS.md, "Sources": K = πa²/(t + 2δ), δ = 0.8216a flanged, 0.6133a unflanged.
         let a = 0.043;
         let t = 0.0025;
         let hole = Opening::Round { diameter_mm: 86.0 };

@@ -5,7 +5,7 @@
 //!
 //! No files, no devices, no window. Lengths at the edges are in the units a
 //! maker uses (`diameter_mm`, `volume_m3` with litre helpers); inside, metres.
-//! Sources for every formula are in `shared/design/references.md` and beside
+//! Sources for every formula are in DEVELOPERS.md, "Sources" and beside
 //! the code.
 //!
 //! Typical use:

@@ -27,7 +27,7 @@ pub const ZERO_CELSIUS_K: f64 = 273.15;
 pub const STANDARD_PRESSURE_PA: f64 = 101_325.0;
 
 /// CO2 mole fraction assumed when none is given: 400 ppm (the value the
-/// reference check values in `references.md` are computed with).
+/// reference check values in DEVELOPERS.md, "Sources" are computed with).
 pub const DEFAULT_CO2_PPM: f64 = 400.0;
 
 /// Temperature range of Cramer's polynomial, °C.
@@ -42,7 +42,7 @@ pub const ISO9613_TEMP_RANGE_C: (f64, f64) = (-20.0, 50.0);
 /// 50–120 kPa, which covers any workshop from high altitude to a deep valley.
 pub const PRESSURE_RANGE_PA: (f64, f64) = (50_000.0, 120_000.0);
 
-/// Cramer 1993, coefficients a0…a15 (as listed in `references.md`).
+/// Cramer 1993, coefficients a0…a15 (as listed in DEVELOPERS.md, "Sources").
 const CRAMER_A: [f64; 16] = [
     331.5024, 0.603055, -5.28e-4, 51.471935, 0.1495874, -7.82e-4, -1.82e-7, 3.73e-8, -2.93e-10,
     -85.20931, -0.228525, 5.91e-5, -2.835149, -2.15e-13, 29.179762, 4.86e-4,

@@ -6,7 +6,10 @@ use serde::{Deserialize, Serialize};
 use super::modal::{Mode, TapAnalysis};
 use super::spectrum::DisplaySpectrum;
 
-/// One mode of a pass, combined over the taps that showed it.
+/// One mode of a pass, combined over the taps that showed it. Its fields,
+/// in this order, are written by `analyze --json`, `listen --json` and the
+/// window's pass export (`text::pass_json`; README.md, "Machine-readable
+/// output").
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct PassMode {
     /// Median over taps.

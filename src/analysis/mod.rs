@@ -28,7 +28,8 @@ pub use aggregate::{aggregate_taps, PassMode, PassResult};
 pub use modal::{AnalysisSettings, Mode, TapAnalysis, TapAnalyzer};
 pub use pitch::{Pitch, DEFAULT_A4_HZ};
 pub use recording::{
-    analyze_recording, RecordingAnalyzer, RecordingReport, RejectedTap, TapRecord,
+    analyze_recording, pass_of_taps, rejected_taps, Gathered, RecordingAnalyzer, RecordingReport,
+    RejectedTap, Tap, TapGatherer,
 };
 pub use sine_fit::{fit_sine, zero_crossing_hz, SineFit};
 pub use spectrum::DisplaySpectrum;

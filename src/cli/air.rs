@@ -10,6 +10,7 @@
 use anyhow::{anyhow, bail, Result};
 use serde_json::{json, Map, Value};
 
+use super::values::parse_number;
 use crate::acoustics::{
     compare_with_measured, coupled_correction, estimate_cavity, solve_round_diameter_mm,
     solve_slot_length_mm, solve_volume_m3, AcousticsError, AirCheck, AirConditions, CavityEstimate,
@@ -318,18 +319,6 @@ fn parse_air(args: &AirOptions) -> Result<(AirConditions, SpeedOfSoundModel)> {
         ..AirConditions::default()
     };
     Ok((air, parse_sound_model(&args.sound_model)?))
-}
-
-/// Reads a number; refuses text, NaN and infinities.
-fn parse_number(option: &str, text: &str) -> Result<f64> {
-    let value: f64 = text
-        .trim()
-        .parse()
-        .map_err(|_| anyhow!("{option}: \"{text}\" is not a number"))?;
-    if !value.is_finite() {
-        bail!("{option}: \"{text}\" is not a finite number");
-    }
-    Ok(value)
 }
 
 /// Exactly one of the three volume options, in m³.

@@ -1,5 +1,5 @@
-//! `tapwright analyze FILE.wav`: find the taps in a recording and measure
-//! their modes.
+//! `tapwright analyze FILE`: find the taps in a recording (WAV, FLAC, MP3,
+//! M4A… see `wav_io`) and measure their modes.
 //!
 //! The file is read block by block and fed to the streaming tap finder, so
 //! memory holds one block, the tap under way and the measurements, however
@@ -11,7 +11,7 @@ use anyhow::bail;
 
 use super::measure::MeasureArgs;
 use super::output::write_stdout;
-use super::report::ReportInput;
+use super::tap_table::{rejection_reasons, ReportInput};
 use crate::analysis::{RecordingAnalyzer, RecordingReport};
 use crate::wav_io::WavStream;
 
@@ -20,7 +20,7 @@ const BLOCK_FRAMES: usize = 65_536;
 
 #[derive(Debug, clap::Args)]
 pub struct AnalyzeArgs {
-    /// The WAV recording (8–192 kHz; 8/16/24/32-bit integer or 32/64-bit float).
+    /// The recording: WAV, AIFF, AIFC, CAF, FLAC, MP3, AAC-LC or ALAC in M4A/MP4, ADTS AAC or Ogg Vorbis (8–192 kHz).
     pub file: PathBuf,
     #[command(flatten)]
     pub measure: MeasureArgs,
@@ -39,18 +39,7 @@ pub fn run(args: &AnalyzeArgs) -> anyhow::Result<()> {
     }
     let report = analyzer.finish();
     check_usable(&report, &name, args.measure.margin_db)?;
-    let input = ReportInput {
-        source: name,
-        sample_rate_hz: fs,
-        a4_hz: args.measure.a4,
-        taps_found: report.taps.len(),
-        rejected: report
-            .rejected()
-            .into_iter()
-            .map(|r| (r.index, r.reason))
-            .collect(),
-        modes: &report.pass.modes,
-    };
+    let input = ReportInput::of_taps(name, fs, args.measure.a4, &report.taps, &report.pass.modes);
     write_stdout(&input.render(args.measure.json)?)
 }
 
@@ -60,15 +49,10 @@ fn check_usable(report: &RecordingReport, name: &str, margin_db: f64) -> anyhow:
         bail!("{name} has no tap in it: nothing rose {margin_db} dB above the background");
     }
     if report.taps_used() == 0 {
-        let reasons: Vec<&str> = report
-            .rejected()
-            .iter()
-            .map(|r| r.reason.short_text())
-            .collect();
         bail!(
             "{name} has no usable tap: all {} were rejected ({})",
             report.taps.len(),
-            reasons.join(", ")
+            rejection_reasons(&report.taps)
         );
     }
     Ok(())

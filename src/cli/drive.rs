@@ -6,8 +6,8 @@ use std::time::{Duration, Instant};
 use anyhow::{bail, Context};
 
 use super::output::{note, write_stdout};
-use crate::capture::open_tone_output;
-use crate::capture::tone::{
+use crate::audio::open_tone_output;
+use crate::audio::tone::{
     check_duration, ToneError, ToneSettings, DEFAULT_LEVEL_CAP_DB, DEFAULT_LEVEL_DB,
 };
 

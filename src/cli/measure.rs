@@ -3,7 +3,9 @@
 
 use anyhow::bail;
 
+use super::values::{parse_count, parse_in_range};
 use crate::analysis::{AnalysisSettings, TriggerSettings, DEFAULT_A4_HZ};
+use crate::text::read_number;
 
 /// The band searched when none is given.
 const DEFAULT_BAND_HZ: (f64, f64) = (40.0, 4000.0);
@@ -81,13 +83,8 @@ pub fn parse_band_hz(text: &str) -> Result<(f64, f64), String> {
     let (low, high) = text
         .split_once(':')
         .ok_or_else(|| format!("'{text}' is not LOW:HIGH in Hz, e.g. 40:4000"))?;
-    let parse = |s: &str| {
-        s.trim()
-            .parse::<f64>()
-            .ok()
-            .filter(|v| v.is_finite())
-            .ok_or_else(|| format!("'{s}' in '{text}' is not a number of Hz"))
-    };
+    let parse =
+        |s: &str| read_number(s).map_err(|_| format!("'{s}' in '{text}' is not a number of Hz"));
     let (low, high) = (parse(low)?, parse(high)?);
     if low < 10.0 {
         return Err(format!(
@@ -100,35 +97,6 @@ pub fn parse_band_hz(text: &str) -> Result<(f64, f64), String> {
         ));
     }
     Ok((low, high))
-}
-
-/// A number within `range`, or a reason that names the range and unit.
-fn parse_in_range(
-    text: &str,
-    range: std::ops::RangeInclusive<f64>,
-    unit: &str,
-) -> Result<f64, String> {
-    let value: f64 = text
-        .trim()
-        .parse()
-        .ok()
-        .filter(|v: &f64| v.is_finite())
-        .ok_or_else(|| {
-            format!(
-                "'{text}' is not a number; give {} to {} {unit}",
-                range.start(),
-                range.end()
-            )
-        })?;
-    if range.contains(&value) {
-        Ok(value)
-    } else {
-        Err(format!(
-            "{value} {unit} is outside {} to {} {unit}",
-            range.start(),
-            range.end()
-        ))
-    }
 }
 
 /// Parses the reference A4 in Hz (380–500).
@@ -144,18 +112,6 @@ pub fn parse_margin_db(text: &str) -> Result<f64, String> {
 /// Parses the record length in ms (100–10 000).
 pub fn parse_record_ms(text: &str) -> Result<f64, String> {
     parse_in_range(text, 100.0..=10_000.0, "ms")
-}
-
-/// A whole number within `range`, or a reason that names the range.
-pub fn parse_count(text: &str, range: std::ops::RangeInclusive<u32>) -> Result<u32, String> {
-    let (low, high) = (range.start(), range.end());
-    match text.trim().parse::<i64>() {
-        Ok(value) if (i64::from(*low)..=i64::from(*high)).contains(&value) => Ok(value as u32),
-        Ok(value) => Err(format!("{value} is outside {low} to {high}")),
-        Err(_) => Err(format!(
-            "'{text}' is not a whole number from {low} to {high}"
-        )),
-    }
 }
 
 /// Parses the mode count (1–64).

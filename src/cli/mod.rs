@@ -3,21 +3,26 @@
 
 mod air;
 mod analyze;
-mod capture_cmds;
+mod devices;
 mod drive;
-mod ledger_cmd;
+mod ledger;
+mod listen;
+mod map;
 mod measure;
 pub mod output;
 mod parse_error;
 mod report;
-mod report_cmd;
 mod stock;
+mod tap_table;
+mod values;
 
 use std::process::ExitCode;
 
 use clap::{CommandFactory, Parser, Subcommand};
 
 use output::{note, StdoutClosed};
+
+use crate::text::one_sentence;
 
 /// Exit code for anything the user can fix: a bad file, a missing device,
 /// impossible geometry.
@@ -40,14 +45,14 @@ pub struct Cli {
 
 #[derive(Debug, Subcommand)]
 pub enum Command {
-    /// Find the taps in a WAV recording and measure the modes of each.
+    /// Find the taps in a recording (WAV, FLAC, MP3, M4A…) and measure the modes of each.
     Analyze(analyze::AnalyzeArgs),
     /// List the audio input devices.
-    Devices(capture_cmds::DevicesArgs),
+    Devices(devices::DevicesArgs),
     /// Capture taps from an input device and report their modes.
-    Listen(capture_cmds::ListenArgs),
+    Listen(listen::ListenArgs),
     /// Show a build file: parts, passes, labelled modes, targets and forecasts.
-    Ledger(ledger_cmd::LedgerArgs),
+    Ledger(ledger::LedgerArgs),
     /// Estimate a body's air resonance (A0) from its volume and openings.
     Air(air::AirArgs),
     /// Play a tone at a mode's frequency through a loudspeaker (Chladni patterns).
@@ -55,7 +60,9 @@ pub enum Command {
     /// Grade a sample bar of tonewood from its taps.
     Stock(stock::StockArgs),
     /// Write a build's report as one HTML file (passes, charts, forecasts, air check).
-    Report(report_cmd::ReportArgs),
+    Report(report::ReportArgs),
+    /// Map mode shapes from taps at a grid of points (CSV of points and recordings).
+    Map(map::MapArgs),
 }
 
 /// Parses the process arguments, runs the chosen subcommand (or opens the
@@ -71,13 +78,14 @@ pub fn run_from_env() -> ExitCode {
     let outcome = match &cli.command {
         None => crate::ui::run_workbench(&cli.window),
         Some(Command::Analyze(args)) => analyze::run(args),
-        Some(Command::Devices(args)) => capture_cmds::run_devices(args),
-        Some(Command::Listen(args)) => capture_cmds::run_listen(args),
-        Some(Command::Ledger(args)) => ledger_cmd::run(args),
+        Some(Command::Devices(args)) => devices::run(args),
+        Some(Command::Listen(args)) => listen::run(args),
+        Some(Command::Ledger(args)) => ledger::run(args),
         Some(Command::Air(args)) => air::run(args),
         Some(Command::Drive(args)) => drive::run(args),
         Some(Command::Stock(args)) => stock::run(args),
-        Some(Command::Report(args)) => report_cmd::run(args),
+        Some(Command::Report(args)) => report::run(args),
+        Some(Command::Map(args)) => map::run(args),
     };
     match outcome {
         Ok(()) => ExitCode::SUCCESS,
@@ -122,20 +130,4 @@ fn command_words(args: &[std::ffi::OsString]) -> String {
         Some(name) => format!("tapwright {name}"),
         None => "tapwright".to_owned(),
     }
-}
-
-/// Joins an error and its causes into one line: "reading x.wav: not a WAV file".
-pub fn one_sentence(error: &anyhow::Error) -> String {
-    let mut parts: Vec<String> = Vec::new();
-    for cause in error.chain() {
-        let text = cause.to_string();
-        if !parts.iter().any(|p| p.contains(&text)) {
-            parts.push(text);
-        }
-    }
-    let mut sentence = parts.join(": ");
-    if !sentence.ends_with('.') {
-        sentence.push('.');
-    }
-    sentence
 }

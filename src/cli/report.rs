@@ -1,137 +1,41 @@
-//! The report that `analyze` and `listen` print: a table for people, or one
-//! JSON object (schema in README.md, "Machine-readable output").
+//! `tapwright report BUILD.ron -o FILE.html`: writes the build report, one
+//! self-contained HTML file (see `crate::report`), atomically.
 
-use std::fmt::Write as _;
+use std::path::PathBuf;
 
-use serde::Serialize;
+use crate::ledger::store;
+use crate::report::{build_report_html, write_report, ReportSettings};
 
-use crate::analysis::pitch::nearest_note;
-use crate::analysis::{PassMode, RejectReason};
-
-/// The `--json` output.
-#[derive(Debug, Serialize)]
-pub struct JsonReport {
-    pub source: String,
-    pub sample_rate_hz: f64,
-    pub a4_hz: f64,
-    pub taps_found: usize,
-    pub taps_used: usize,
-    pub taps_rejected: Vec<JsonRejected>,
-    pub modes: Vec<JsonMode>,
+/// Arguments of `tapwright report`.
+#[derive(Debug, clap::Args)]
+pub struct ReportArgs {
+    /// The build file (RON) to report on.
+    pub file: PathBuf,
+    /// The HTML file to write (replaced whole if it exists).
+    #[arg(short = 'o', long = "output", value_name = "FILE.html")]
+    pub output: PathBuf,
+    /// Reference pitch for note names and cents, Hz.
+    #[arg(long, default_value_t = 440.0, value_name = "HZ")]
+    pub a4: f64,
 }
 
-#[derive(Debug, Serialize)]
-pub struct JsonRejected {
-    pub index: usize,
-    pub reason: RejectReason,
-}
-
-#[derive(Debug, Serialize)]
-pub struct JsonMode {
-    pub frequency_hz: f64,
-    pub q: f64,
-    pub level_db: f64,
-    pub prominence_db: f64,
-    pub spread_hz: f64,
-    pub q_spread: f64,
-    pub taps_seen: usize,
-    pub note: String,
-    pub cents: f64,
-}
-
-/// What a report is made of, whatever the source.
-pub struct ReportInput<'a> {
-    pub source: String,
-    pub sample_rate_hz: f64,
-    pub a4_hz: f64,
-    pub taps_found: usize,
-    pub rejected: Vec<(usize, RejectReason)>,
-    pub modes: &'a [PassMode],
-}
-
-impl ReportInput<'_> {
-    fn taps_used(&self) -> usize {
-        self.taps_found - self.rejected.len()
+/// Loads the build, makes the report and writes it.
+pub fn run(args: &ReportArgs) -> anyhow::Result<()> {
+    if !(args.a4.is_finite() && (300.0..=600.0).contains(&args.a4)) {
+        anyhow::bail!("--a4 {} Hz is outside 300–600 Hz", args.a4);
     }
-
-    pub fn to_json(&self) -> JsonReport {
-        JsonReport {
-            source: self.source.clone(),
-            sample_rate_hz: self.sample_rate_hz,
-            a4_hz: self.a4_hz,
-            taps_found: self.taps_found,
-            taps_used: self.taps_used(),
-            taps_rejected: self
-                .rejected
-                .iter()
-                .map(|&(index, reason)| JsonRejected { index, reason })
-                .collect(),
-            modes: self
-                .modes
-                .iter()
-                .map(|m| {
-                    let pitch = nearest_note(m.frequency_hz, self.a4_hz);
-                    JsonMode {
-                        frequency_hz: m.frequency_hz,
-                        q: m.q,
-                        level_db: m.level_db,
-                        prominence_db: m.prominence_db,
-                        spread_hz: m.spread_hz,
-                        q_spread: m.q_spread,
-                        taps_seen: m.taps_seen,
-                        note: pitch.as_ref().map(|p| p.note.clone()).unwrap_or_default(),
-                        cents: pitch.map(|p| p.cents).unwrap_or(0.0),
-                    }
-                })
-                .collect(),
-        }
-    }
-
-    /// The whole report as printed: one JSON object, or the table.
-    pub fn render(&self, json: bool) -> anyhow::Result<String> {
-        if json {
-            let mut text = serde_json::to_string_pretty(&self.to_json())
-                .map_err(|e| anyhow::anyhow!("formatting the JSON report: {e}"))?;
-            text.push('\n');
-            Ok(text)
-        } else {
-            Ok(self.to_table())
-        }
-    }
-
-    /// The table for people.
-    pub fn to_table(&self) -> String {
-        let mut out = String::new();
-        let _ = writeln!(out, "{}  ({:.0} Hz)", self.source, self.sample_rate_hz);
-        let _ = writeln!(
-            out,
-            "Taps: {} found, {} used, {} rejected",
-            self.taps_found,
-            self.taps_used(),
-            self.rejected.len()
+    if args.output.is_dir() {
+        anyhow::bail!(
+            "the output {} is a folder; give a file name such as report.html",
+            args.output.display()
         );
-        for (index, reason) in &self.rejected {
-            let _ = writeln!(out, "  tap {index}: {reason} ({})", reason.advice());
-        }
-        let _ = writeln!(out);
-        if self.modes.is_empty() {
-            let _ = writeln!(out, "No modes found.");
-            return out;
-        }
-        let _ = writeln!(
-            out,
-            "{:>10}  {:>7}  {:>8}  {:>5}  {:>6}  {:>9}  {:>5}",
-            "freq Hz", "Q", "level dB", "note", "cents", "spread Hz", "taps"
-        );
-        for m in self.modes {
-            let pitch = nearest_note(m.frequency_hz, self.a4_hz);
-            let (note, cents) = pitch.map(|p| (p.note, p.cents)).unwrap_or_default();
-            let _ = writeln!(
-                out,
-                "{:>10.2}  {:>7.1}  {:>8.1}  {:>5}  {:>+6.0}  {:>9.2}  {:>5}",
-                m.frequency_hz, m.q, m.level_db, note, cents, m.spread_hz, m.taps_seen
-            );
-        }
-        out
     }
+    let build = store::load(&args.file)?;
+    let settings = ReportSettings {
+        a4_hz: args.a4,
+        ..ReportSettings::default()
+    };
+    let html = build_report_html(&build, &settings);
+    write_report(&args.output, &html)?;
+    Ok(())
 }

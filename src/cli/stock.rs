@@ -5,10 +5,11 @@
 //! back as one sentence naming its option. The whole report is built before
 //! anything is printed: on an error stdout stays empty.
 
-use anyhow::{anyhow, bail, Result};
+use anyhow::{anyhow, Result};
 use serde_json::{json, Value};
 
 use super::output::write_stdout;
+use super::values::{parse_number, parse_optional};
 
 use crate::acoustics::stock::{bar_figures, BarFigures, BarSample, StockError, WOOD_POISSON_RATIO};
 
@@ -57,21 +58,6 @@ pub fn run(args: &StockArgs) -> Result<()> {
         report_text(&figures)
     };
     write_stdout(&text)
-}
-
-fn parse_number(option: &str, text: &str) -> Result<f64> {
-    let value: f64 = text
-        .trim()
-        .parse()
-        .map_err(|_| anyhow!("{option}: \"{text}\" is not a number"))?;
-    if !value.is_finite() {
-        bail!("{option}: \"{text}\" is not a finite number");
-    }
-    Ok(value)
-}
-
-fn parse_optional(option: &str, text: &Option<String>) -> Result<Option<f64>> {
-    text.as_deref().map(|t| parse_number(option, t)).transpose()
 }
 
 fn parse_bar(args: &StockArgs) -> Result<BarSample> {

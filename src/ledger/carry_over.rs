@@ -24,7 +24,6 @@
 //!    at least [`RUNNER_UP_MARGIN_SCATTERS`]·σ farther; otherwise the label is
 //!    placed but flagged for the maker to confirm.
 
-use super::model::Pass;
 use crate::analysis::pitch::cents_between;
 
 /// Smallest scatter assumed for a label, cents. A mode's frequency repeats
@@ -87,11 +86,19 @@ impl Prediction {
     }
 }
 
+/// What carry-over reads of an earlier pass of the part.
+pub trait EarlierPass {
+    /// The part's mass at that pass, g.
+    fn mass_g(&self) -> f64;
+    /// The frequency of the mode labelled `label` in that pass, Hz.
+    fn labelled_hz(&self, label: &str) -> Option<f64>;
+}
+
 /// Carries the labels of `history` (the part's earlier passes) to a new pass
 /// of mass `new_mass_g` whose modes are at `new_frequencies_hz` (sorted).
 /// `label_order` fixes the order labels are considered in (ties).
-pub fn carry_labels(
-    history: &[Pass],
+pub fn carry_labels<P: EarlierPass>(
+    history: &[P],
     label_order: &[String],
     new_mass_g: f64,
     new_frequencies_hz: &[f64],
@@ -105,13 +112,10 @@ pub fn carry_labels(
 }
 
 /// (mass g, frequency Hz) of `label` in each pass that has it.
-fn label_points(history: &[Pass], label: &str) -> Vec<(f64, f64)> {
+fn label_points<P: EarlierPass>(history: &[P], label: &str) -> Vec<(f64, f64)> {
     history
         .iter()
-        .filter_map(|pass| {
-            pass.mode_labelled(label)
-                .map(|m| (pass.mass_g, m.frequency_hz))
-        })
+        .filter_map(|pass| pass.labelled_hz(label).map(|hz| (pass.mass_g(), hz)))
         .collect()
 }
 
@@ -138,7 +142,7 @@ pub(crate) fn fitted_exponent(points: &[(f64, f64)]) -> Option<f64> {
 }
 
 /// The slope pooled over all labels, each label centred on its own means.
-fn pooled_exponent(history: &[Pass], labels: &[String]) -> Option<f64> {
+fn pooled_exponent<P: EarlierPass>(history: &[P], labels: &[String]) -> Option<f64> {
     let groups: Vec<Vec<(f64, f64)>> = labels
         .iter()
         .map(|l| {

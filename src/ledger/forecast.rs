@@ -20,7 +20,7 @@
 //!   (Leissa, Vibration of Plates, NASA SP-160, 1969; Fletcher & Rossing,
 //!   The Physics of Musical Instruments, 2nd ed., 1998, ch. 3) and mass ∝
 //!   thickness, so f ∝ m. Arched plates fall more slowly because of membrane
-//!   stiffness (references.md), so more wood must go than k = 1 says; the
+//!   stiffness (DEVELOPERS.md, "Sources"), so more wood must go than k = 1 says; the
 //!   band runs from k = 1 to k = 0.5 (the lower bound is a design choice,
 //!   from memory: violin plates typically show k of about 0.4–0.8).
 //!

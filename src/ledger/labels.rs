@@ -1,14 +1,13 @@
 //! Preset label sets: the trade's names for the modes a maker usually
-//! follows, per instrument family and part kind.
+//! follows, per tradition (`model::preset_labels` picks the set for a
+//! family and part kind).
 //!
-//! Names are spelled as the trade spells them (see `vocabulary.md`): the
+//! Names are spelled as the trade spells them (README.md, "The workbench"): the
 //! violin-family free-plate numbering "mode 1", "mode 2", "mode 5"; the
 //! guitar-family top modes "monopole", "cross-dipole", "long-dipole"; the
 //! closed violin-family body's "A0", "CBR", "B1−", "B1+" (with a Unicode minus
 //! sign, U+2212, in "B1−"); the closed guitar body's "A0", "top T(1,1)",
 //! "back T(1,1)".
-
-use super::model::{Family, PartKind};
 
 /// Violin-family free plate (top or back).
 pub const VIOLIN_FREE_PLATE: &[&str] = &["mode 1", "mode 2", "mode 5"];
@@ -30,38 +29,13 @@ pub enum Tradition {
     Unlabelled,
 }
 
-impl Family {
-    /// Which preset label tradition this family uses. Mandolins are put with
-    /// the guitar family: a design choice, since their top modes are usually
-    /// named like a guitar's (common practice, no source).
-    pub fn tradition(self) -> Tradition {
-        match self {
-            Family::Violin | Family::Viola | Family::Cello => Tradition::ViolinFamily,
-            Family::Guitar | Family::Mandolin | Family::Ukulele => Tradition::GuitarFamily,
-            Family::Other => Tradition::Unlabelled,
-        }
-    }
-}
-
-/// The preset labels for a part of a build of `family`; empty for a
-/// user-named part or the `Other` family.
-pub fn preset_labels(family: Family, kind: &PartKind) -> &'static [&'static str] {
-    match (family.tradition(), kind) {
-        (Tradition::ViolinFamily, PartKind::TopPlate | PartKind::BackPlate) => VIOLIN_FREE_PLATE,
-        (Tradition::GuitarFamily, PartKind::TopPlate | PartKind::BackPlate) => GUITAR_FREE_PLATE,
-        (Tradition::ViolinFamily, PartKind::AssembledBody) => VIOLIN_BODY,
-        (Tradition::GuitarFamily, PartKind::AssembledBody) => GUITAR_BODY,
-        _ => &[],
-    }
-}
-
 #[cfg(test)]
 mod tests {
-    use super::*;
+    use crate::ledger::{preset_labels, Family, PartKind};
 
     #[test]
     fn trade_spellings_are_exact() {
-        // Trade terms as listed in vocabulary.md.
+        // Trade terms as the trade spells them (common practice, no source).
         assert_eq!(
             preset_labels(Family::Viola, &PartKind::TopPlate),
             ["mode 1", "mode 2", "mode 5"]

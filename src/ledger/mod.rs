@@ -11,12 +11,13 @@ pub mod carry_over;
 pub mod compare;
 pub mod csv;
 pub mod forecast;
-pub mod format;
 pub mod from_analysis;
 pub mod labels;
 pub mod model;
 pub mod schema_v1;
 pub mod schema_v2;
+pub mod schema_v3;
+pub mod shape_map;
 pub mod spectrum;
 pub mod stock;
 pub mod store;
@@ -24,11 +25,12 @@ pub mod time;
 
 pub use carry_over::{CarriedLabel, CarryOver};
 pub use forecast::{FallbackReason, Forecast, ForecastMethod, ForecastWarning, ThicknessForecast};
-pub use labels::preset_labels;
+pub use model::preset_labels;
 pub use model::{
     Build, Family, FrequencyChange, LabelPoint, MeasuredMode, ModeLabel, Part, PartKind, Pass,
     PassChange, PassInput, PassModeRecord, PassOutcome, ThicknessReading, SCHEMA_VERSION,
 };
+pub use shape_map::{StoredModeShape, StoredShapeMap, StoredTapPoint};
 pub use spectrum::{SpectrumError, StoredSpectrum};
 pub use stock::StockSample;
 pub use store::StoreError;

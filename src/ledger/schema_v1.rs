@@ -169,5 +169,6 @@ fn migrate_pass(pass: PassV1) -> Pass {
         note: pass.note,
         modes,
         spectrum: None,
+        shape_map: None,
     }
 }

@@ -5,13 +5,15 @@
 //! Version 2 differs from version 3 in one way: a build had no `stock`
 //! (wood samples graded from bar taps); it migrates to an empty list.
 //!
-//! Only the build itself changed, so the parts and the cavity geometry are
-//! read with the current types, which have kept the version-2 layout. A
-//! later version that changes them must freeze copies of them here first.
+//! Only the build itself changed, so the parts are read with the frozen
+//! version-3 part (`schema_v3::PartV3`, the same layout) and the cavity
+//! geometry with the current type, which has kept the version-2 layout. A
+//! later version that changes it must freeze a copy of it here first.
 
 use serde::Deserialize;
 
-use super::model::{Build, Family, Part, SCHEMA_VERSION};
+use super::model::{Build, Family, SCHEMA_VERSION};
+use super::schema_v3::{migrate_part, PartV3};
 use super::time::Timestamp;
 use crate::acoustics::CavityGeometry;
 
@@ -24,7 +26,7 @@ pub(super) struct BuildV2 {
     family: Family,
     notes: String,
     created: Timestamp,
-    parts: Vec<Part>,
+    parts: Vec<PartV3>,
     #[serde(default)]
     air: Option<CavityGeometry>,
 }
@@ -38,7 +40,7 @@ pub(super) fn migrate(old: BuildV2) -> Build {
         family: old.family,
         notes: old.notes,
         created: old.created,
-        parts: old.parts,
+        parts: old.parts.into_iter().map(migrate_part).collect(),
         air: old.air,
         stock: Vec::new(),
     }

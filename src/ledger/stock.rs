@@ -7,7 +7,6 @@
 
 use serde::{Deserialize, Serialize};
 
-use super::model::Build;
 use super::LedgerError;
 use crate::acoustics::stock::{bar_figures, grain_ratio, BarFigures, BarSample, StockError};
 
@@ -70,36 +69,6 @@ impl StockSample {
             }
         }
         Ok(())
-    }
-}
-
-impl Build {
-    /// The stock samples, in the order added.
-    pub fn stock(&self) -> &[StockSample] {
-        &self.stock
-    }
-
-    /// Adds a stock sample, or replaces the one with the same name. Fails
-    /// if the sample breaks a rule.
-    pub fn put_stock_sample(&mut self, sample: StockSample) -> Result<(), LedgerError> {
-        sample.validate()?;
-        match self.stock.iter_mut().find(|s| s.name == sample.name) {
-            Some(existing) => *existing = sample,
-            None => self.stock.push(sample),
-        }
-        Ok(())
-    }
-
-    /// Removes the stock sample named `name`; returns it.
-    pub fn remove_stock_sample(&mut self, name: &str) -> Result<StockSample, LedgerError> {
-        let index = self
-            .stock
-            .iter()
-            .position(|s| s.name == name)
-            .ok_or_else(|| {
-                LedgerError::Invalid(format!("the build has no stock sample named \"{name}\""))
-            })?;
-        Ok(self.stock.remove(index))
     }
 }
 

@@ -4,8 +4,8 @@
 //! regular file (a folder, named pipe or device is refused before it is
 //! opened, so nothing hangs), is at most [`MAX_BUILD_FILE_MB`] MB (never more
 //! is read), is not empty, is UTF-8 text (a leading byte-order mark is
-//! skipped), is RON with a `schema_version` this code knows (1 and 2 are
-//! migrated, 3 is current), parses as that layout, and passes [`Build::validate`].
+//! skipped), is RON with a `schema_version` this code knows (1 to 3 are
+//! migrated, 4 is current), parses as that layout, and passes [`Build::validate`].
 //! (The current layout is tried first; the version alone is read only when
 //! that fails.) Each failure is one [`StoreError`] naming the file and, for
 //! syntax and layout problems, the line and column.
@@ -35,7 +35,9 @@ use serde::Deserialize;
 use super::model::{Build, SCHEMA_VERSION};
 use super::schema_v1;
 use super::schema_v2;
+use super::schema_v3;
 use super::LedgerError;
+use crate::atomic_file::{folder_of, sync_folder, temp_beside};
 
 /// Largest build file [`load`] reads, MB (a 200-pass build with spectra is
 /// about 3 MB).
@@ -325,6 +327,7 @@ pub fn from_ron_text(text: &str, path: &Path) -> Result<Build, StoreError> {
         }
         1 => schema_v1::migrate(ron::from_str::<schema_v1::BuildV1>(text).map_err(syntax)?),
         2 => schema_v2::migrate(ron::from_str::<schema_v2::BuildV2>(text).map_err(syntax)?),
+        3 => schema_v3::migrate(ron::from_str::<schema_v3::BuildV3>(text).map_err(syntax)?),
         found => return Err(unsupported(found)),
     };
     checked(build, path)
@@ -568,48 +571,8 @@ fn remove_stale_temps(path: &Path) {
     }
 }
 
-fn folder_of(path: &Path) -> &Path {
-    match path.parent() {
-        Some(parent) if !parent.as_os_str().is_empty() => parent,
-        _ => Path::new("."),
-    }
-}
-
-/// A new temporary file in the same folder, named `.<file name>.XXXX.saving`,
-/// with the permissions `path` has now (or, for a new file, the ordinary
-/// read-write permissions less the umask) rather than the owner-only
-/// permissions temporary files get by default. Also used for the build
-/// report's file.
-pub fn temp_beside(path: &Path) -> io::Result<tempfile::NamedTempFile> {
-    let name = path
-        .file_name()
-        .map(|n| n.to_string_lossy().into_owned())
-        .unwrap_or_default();
-    let prefix = format!(".{name}.");
-    let mut builder = tempfile::Builder::new();
-    builder.prefix(&prefix).suffix(".saving");
-    if let Some(permissions) = permissions_for(path) {
-        builder.permissions(permissions);
-    }
-    builder.tempfile_in(folder_of(path))
-}
-
-fn permissions_for(path: &Path) -> Option<fs::Permissions> {
-    if let Ok(metadata) = fs::metadata(path) {
-        return Some(metadata.permissions());
-    }
-    #[cfg(unix)]
-    {
-        use std::os::unix::fs::PermissionsExt;
-        Some(fs::Permissions::from_mode(0o666))
-    }
-    #[cfg(not(unix))]
-    {
-        None
-    }
-}
-
-/// Copies the current file to its backup path atomically.
+/// Copies the current file to its backup path atomically (the backup gets
+/// the build file's permissions).
 fn keep_backup(path: &Path) -> io::Result<()> {
     let mut source = File::open(path)?;
     let mut copy = temp_beside(path)?;
@@ -617,13 +580,4 @@ fn keep_backup(path: &Path) -> io::Result<()> {
     copy.as_file().sync_all()?;
     copy.persist(backup_path(path)).map_err(|e| e.error)?;
     Ok(())
-}
-
-/// Makes the renames durable where the platform allows opening a folder
-/// (Unix); elsewhere the rename is already as durable as it gets.
-fn sync_folder(path: &Path) {
-    if let Ok(folder) = File::open(folder_of(path)) {
-        // A failure here cannot undo the rename; the file is already whole.
-        let _ = folder.sync_all();
-    }
 }

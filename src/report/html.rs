@@ -7,16 +7,13 @@
 use maud::{html, Markup, PreEscaped, DOCTYPE};
 
 use crate::acoustics::{compare_with_measured, estimate_cavity, CavityGeometry};
-use crate::analysis::pitch::nearest_note;
 use crate::ledger::compare::{mode5_interval_semitones, plate_modes, top_and_back};
-use crate::ledger::{
-    Build, FallbackReason, Forecast, ForecastMethod, ForecastWarning, FrequencyChange, Part,
-    PartKind, Pass,
-};
+use crate::ledger::{Build, Forecast, FrequencyChange, Part, PartKind, Pass};
 
 use super::charts::{mode_chart_svg, series_colour, ModeChart};
 use super::ReportSettings;
-use crate::ledger::format::{capitalised, date_text, num, signed};
+use crate::text::forecast::{caution_text, method_text};
+use crate::text::{capitalised, date_text, note_text, num, signed};
 
 /// The style sheet: screen and print (A4 and Letter both fit the 180 mm
 /// text width; each part starts on a new page; rows and charts are not
@@ -478,59 +475,13 @@ fn forecast_row(f: &Forecast) -> Markup {
         tr.forecast-how {
             td {}
             td colspan="6" {
-                span.weak { (method_text(&f.method)) }
+                span.weak { "How: " (method_text(&f.method, f.from_pass)) }
                 @for warning in &f.warnings {
                     br;
-                    span.warning { (warning_text(warning)) }
+                    span.warning { (caution_text(warning)) }
                 }
             }
         }
-    }
-}
-
-fn method_text(method: &ForecastMethod) -> String {
-    match method {
-        ForecastMethod::FittedExponent {
-            exponent,
-            exponent_std_error,
-            passes_used,
-        } => format!(
-            "Fitted to this part's own {passes_used} passes: frequency follows mass to the power k = {} ± {}.",
-            num(*exponent, 2),
-            num(*exponent_std_error, 2)
-        ),
-        ForecastMethod::UniformThinning { reason } => {
-            let why = match reason {
-                FallbackReason::FewerThanThreePasses { passes } => {
-                    format!("only {passes} pass{} carry this label", plural_es(*passes))
-                }
-                FallbackReason::NoMassSpread => "the passes' masses barely differ".to_owned(),
-                FallbackReason::FitDoesNotFall { fitted_exponent } => format!(
-                    "the fitted k = {} does not describe a mode that falls as wood comes off",
-                    num(*fitted_exponent, 2)
-                ),
-            };
-            format!("Uniform-thinning rule (frequency in proportion to mass), because {why}; arched plates usually need more wood off, so the band reaches further.")
-        }
-    }
-}
-
-fn warning_text(warning: &ForecastWarning) -> String {
-    match warning {
-        ForecastWarning::ExtrapolatesBeyondHistory {
-            outside_g,
-            history_span_g,
-        } => format!(
-            "Caution: the forecast reaches {} g beyond the masses measured so far (which span {} g); a rough guide only.",
-            num(*outside_g, 1),
-            num(*history_span_g, 1)
-        ),
-        ForecastWarning::TargetAboveCurrent => {
-            "Caution: the target is above the mode's frequency now; removing wood lowers it.".to_owned()
-        }
-        ForecastWarning::StartsFromEarlierPass { latest_pass } => format!(
-            "Caution: pass {latest_pass} does not have this label, so the forecast starts from an earlier pass."
-        ),
     }
 }
 
@@ -589,25 +540,10 @@ fn thickness_text(pass: &Pass) -> String {
         .join(", ")
 }
 
-fn note_text(frequency_hz: f64, a4_hz: f64) -> String {
-    match nearest_note(frequency_hz, a4_hz) {
-        Some(pitch) => format!("{} {} ct", pitch.note, signed(pitch.cents, 0)),
-        None => "–".to_owned(),
-    }
-}
-
 fn plural(count: usize) -> &'static str {
     if count == 1 {
         ""
     } else {
         "s"
-    }
-}
-
-fn plural_es(count: usize) -> &'static str {
-    if count == 1 {
-        ""
-    } else {
-        "es"
     }
 }

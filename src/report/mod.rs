@@ -12,9 +12,9 @@
 pub mod charts;
 pub mod html;
 
-use std::io::Write as _;
 use std::path::{Path, PathBuf};
 
+use crate::atomic_file::write_bytes_atomically;
 use crate::ledger::{Build, Timestamp};
 
 /// Choices that are not in the build.
@@ -55,18 +55,13 @@ pub fn build_report_html(build: &Build, settings: &ReportSettings) -> String {
     html::document(build, settings).into_string()
 }
 
-/// Writes `html` to `path` atomically: a temporary file in the same folder,
-/// synced, then renamed over `path`, so a crash leaves the old file or the
-/// new one, never half of one. A new file gets the ordinary permissions
-/// (less the umask), not a temporary file's owner-only ones.
+/// Writes `html` to `path` atomically (see [`crate::atomic_file`]): a
+/// crash leaves the old file or the new one, never half of one, and a new
+/// file gets the ordinary permissions, not a temporary file's owner-only
+/// ones.
 pub fn write_report(path: &Path, html: &str) -> Result<(), ReportError> {
-    let error = |source| ReportError::Write {
+    write_bytes_atomically(path, html.as_bytes()).map_err(|source| ReportError::Write {
         path: path.to_path_buf(),
         source,
-    };
-    let mut temp = crate::ledger::store::temp_beside(path).map_err(error)?;
-    temp.write_all(html.as_bytes()).map_err(error)?;
-    temp.as_file().sync_all().map_err(error)?;
-    temp.persist(path).map_err(|e| error(e.error))?;
-    Ok(())
+    })
 }

@@ -1,471 +1,267 @@
-//! One-shot work that must not block the window: file dialogs, reading and
-//! analysing a recording, saving files, listing devices, opening a capture
-//! source, loading and saving builds. Each job runs on its own thread and
-//! sends one [`JobDone`] back over a channel, then asks egui to repaint.
+//! The window's one runner of background work. Whatever must not hold up
+//! a frame runs here: file dialogs (they block their thread until the
+//! maker answers), reading and analysing a recording, saving builds, files
+//! and the build report, listing devices, opening the capture source and
+//! the drive output.
+//!
+//! Each user keeps an [`Inbox`] typed with its own answers (the shell, the
+//! Ledger area, the Drive area); [`Inbox::spawn`] runs one job on its own
+//! thread, which sends its answer back and wakes the window, so an idle
+//! window does not repaint. [`Jobs::running`] counts the answers not yet
+//! taken, over every inbox: the window is busy while it is above zero.
 
-use std::path::{Path, PathBuf};
+use std::sync::atomic::{AtomicUsize, Ordering};
 use std::sync::mpsc::{self, Receiver, Sender};
+use std::sync::{Arc, Mutex, OnceLock};
 
-use anyhow::Context as _;
 use eframe::egui;
 
-use crate::analysis::{AnalysisSettings, FoundTap, TapAnalysis, TapAnalyzer, TriggerSettings};
-use crate::capture::{CaptureError, CaptureHandle, CaptureSettings, DeviceInfo, SourceChoice};
-use crate::ledger::store::{DiskFingerprint, StoreError};
-use crate::ledger::Build;
-
-use super::session::{taps_of_stream, TapEntry};
-
-/// What a file dialog was opened for.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub enum FilePurpose {
-    /// Open a WAV recording.
-    OpenRecording,
-    /// Save the kept taps as WAV.
-    SaveTaps,
-    /// Export the pass as JSON.
-    ExportPass,
-    /// Save the open build under another name (after its file changed on
-    /// disk, or when closing a build that has no file).
-    SaveBuildCopy,
-}
-
-/// The result of a job.
-pub enum JobDone {
-    /// The input devices, or why they cannot be listed.
-    Devices(Result<Vec<DeviceInfo>, CaptureError>),
-    /// A capture source opened (or failed to). `generation` tells stale
-    /// results (the maker chose another source meanwhile) from current ones.
-    CaptureStarted {
-        generation: u64,
-        result: Result<CaptureHandle, CaptureError>,
-    },
-    /// The maker chose a file (None: the dialog was cancelled).
-    FileChosen {
-        purpose: FilePurpose,
-        path: Option<PathBuf>,
-    },
-    /// A recording was read and analysed.
-    RecordingAnalysed {
-        path: PathBuf,
-        result: Result<Vec<TapEntry>, String>,
-    },
-    /// Taps already heard, measured again with new analysis settings:
-    /// (tap number, new measurement).
-    TapsRemeasured(Vec<(usize, TapAnalysis)>),
-    /// A file was written: the sentence to show, or the problem.
-    Saved(Result<String, String>),
-    /// A build file was read, with the fingerprint of what was read.
-    BuildLoaded {
-        path: PathBuf,
-        result: Result<(Build, DiskFingerprint), String>,
-    },
-    /// The build saver finished a save to `path` of the snapshot stamped
-    /// `stamp`; `handled` counts the requests this answers (older snapshots
-    /// of the same file still queued were skipped in favour of this one).
-    BuildSaved {
-        path: PathBuf,
-        stamp: SaveStamp,
-        handled: usize,
-        result: Result<(), SaveProblem>,
-    },
-}
-
-/// Which snapshot of which open build a save wrote.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub struct SaveStamp {
-    /// Counts the builds opened or started in the window.
-    pub document: u64,
-    /// Counts the changes to that build.
-    pub generation: u64,
-}
-
-/// Why a save did not happen.
-#[derive(Clone, Debug, PartialEq, Eq)]
-pub enum SaveProblem {
-    /// The file changed on disk since this window read or wrote it; the
-    /// sentence to show.
-    ChangedOnDisk(String),
-    /// Anything else (no permission, disk full, invalid build ...).
-    Failed(String),
-}
-
-/// How a save treats a file that changed on disk.
-#[derive(Clone, Copy, Debug, PartialEq, Eq)]
-pub enum SaveCheck {
-    /// Refuse if the file is not what this window last read or wrote.
-    IfUnchanged,
-    /// Write over whatever is there (the maker chose to).
-    Overwrite,
-}
-
-/// What the build saver is told, in order.
-enum SaverMessage {
-    /// The window now holds `path` as it was read (fingerprint), or holds
-    /// no file (None).
-    Track(Option<(PathBuf, DiskFingerprint)>),
-    /// Save this snapshot.
-    Save {
-        path: PathBuf,
-        build: Box<Build>,
-        stamp: SaveStamp,
-        check: SaveCheck,
-    },
-}
-
-/// Starts jobs and collects their results.
+/// The runner: cheap to clone, shared by the shell and the areas.
+#[derive(Clone, Default)]
 pub struct Jobs {
-    sender: Sender<JobDone>,
-    receiver: Receiver<JobDone>,
-    ctx: Option<egui::Context>,
-    running: usize,
-    saver: Option<Sender<SaverMessage>>,
+    shared: Arc<Shared>,
 }
 
-impl Default for Jobs {
-    fn default() -> Self {
-        let (sender, receiver) = mpsc::channel();
-        Self {
-            sender,
-            receiver,
-            ctx: None,
-            running: 0,
-            saver: None,
-        }
+#[derive(Default)]
+struct Shared {
+    /// Answers expected and not yet taken, over all inboxes.
+    running: AtomicUsize,
+    /// The window to wake when an answer arrives (set at the first frame).
+    window: OnceLock<egui::Context>,
+}
+
+impl std::fmt::Debug for Jobs {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("Jobs")
+            .field("running", &self.running())
+            .finish_non_exhaustive()
     }
 }
 
 impl Jobs {
-    /// Gives the jobs the context to wake when they finish.
-    pub fn set_context(&mut self, ctx: &egui::Context) {
-        self.ctx = Some(ctx.clone());
+    /// Gives the runner the window to wake (the first call counts).
+    pub fn set_context(&self, ctx: &egui::Context) {
+        let _ = self.shared.window.set(ctx.clone());
     }
 
-    /// How many jobs have not reported yet.
+    /// Answers not yet taken, over every inbox.
     pub fn running(&self) -> usize {
-        self.running
+        self.shared.running.load(Ordering::Acquire)
     }
 
-    /// Results that have arrived.
-    pub fn drain(&mut self) -> Vec<JobDone> {
-        let done: Vec<JobDone> = self.receiver.try_iter().collect();
-        let answered: usize = done
-            .iter()
-            .map(|d| match d {
-                JobDone::BuildSaved { handled, .. } => *handled,
-                _ => 1,
-            })
-            .sum();
-        self.running = self.running.saturating_sub(answered);
-        done
-    }
-
-    /// Queues a save of `build` to `path` on the build saver: one thread
-    /// that writes the window's builds one at a time, in the order asked,
-    /// skipping a snapshot when a newer one of the same file is already
-    /// waiting. The answer comes back as [`JobDone::BuildSaved`].
-    pub fn save_build(&mut self, path: PathBuf, build: Build, stamp: SaveStamp, check: SaveCheck) {
-        self.running += 1;
-        let message = SaverMessage::Save {
-            path,
-            build: Box::new(build),
-            stamp,
-            check,
-        };
-        if let Err(mpsc::SendError(message)) = self.send_to_saver(message) {
-            self.running -= 1;
-            if let SaverMessage::Save { path, stamp, .. } = message {
-                let _ = self.sender.send(JobDone::BuildSaved {
-                    path,
-                    stamp,
-                    handled: 0,
-                    result: Err(SaveProblem::Failed(
-                        "Could not start the background task that saves builds.".to_owned(),
-                    )),
-                });
-            }
+    /// A new inbox for answers of type `T`.
+    pub fn inbox<T: Send + 'static>(&self) -> Inbox<T> {
+        let (sender, receiver) = mpsc::channel();
+        Inbox {
+            jobs: self.clone(),
+            sender,
+            receiver,
+            waiting: 0,
         }
     }
 
-    /// Tells the build saver which file the window holds now and what was
-    /// in it (after opening a build), or that it holds none.
-    pub fn track_build_file(&mut self, file: Option<(PathBuf, DiskFingerprint)>) {
-        let _ = self.send_to_saver(SaverMessage::Track(file));
+    /// Runs `work` on its own thread with no answer (closing a drive output
+    /// waits for its fade-out). If no thread can start, it runs here.
+    pub fn detach(&self, name: &str, work: impl FnOnce() + Send + 'static) {
+        run_on_thread(name, work);
     }
 
-    fn send_to_saver(
-        &mut self,
-        message: SaverMessage,
-    ) -> Result<(), mpsc::SendError<SaverMessage>> {
-        if self.saver.is_none() {
-            let (sender, receiver) = mpsc::channel();
-            let results = self.sender.clone();
-            let ctx = self.ctx.clone();
-            let started = std::thread::Builder::new()
-                .name("tapwright-build-saver".to_owned())
-                .spawn(move || run_build_saver(&receiver, &results, ctx.as_ref()));
-            if started.is_err() {
-                return Err(mpsc::SendError(message));
-            }
-            self.saver = Some(sender);
-        }
-        match &self.saver {
-            Some(saver) => saver.send(message),
-            None => Err(mpsc::SendError(message)),
+    fn wake(&self) {
+        if let Some(ctx) = self.shared.window.get() {
+            ctx.request_repaint();
         }
     }
 
-    /// Runs `work` on a new thread; its result comes back through
-    /// [`Self::drain`]. If the thread cannot start, `work` is run here.
-    pub fn spawn(&mut self, name: &str, work: impl FnOnce() -> JobDone + Send + 'static) {
-        let sender = self.sender.clone();
-        let ctx = self.ctx.clone();
-        self.running += 1;
-        let spawned = std::thread::Builder::new()
-            .name(format!("tapwright-{name}"))
-            .spawn(move || {
-                let _ = sender.send(work());
-                if let Some(ctx) = ctx {
-                    ctx.request_repaint();
-                }
+    fn expect(&self, answers: usize) {
+        self.shared.running.fetch_add(answers, Ordering::AcqRel);
+    }
+
+    fn answered(&self, answers: usize) {
+        // Never below zero, whatever a worker reports.
+        let _ = self
+            .shared
+            .running
+            .fetch_update(Ordering::AcqRel, Ordering::Acquire, |n| {
+                Some(n.saturating_sub(answers))
             });
-        if let Err(error) = spawned {
-            let _ = self.sender.send(JobDone::Saved(Err(format!(
-                "Could not start a background task: {error}."
-            ))));
+    }
+}
+
+/// Where the answers of one user's jobs arrive. Dropping it forgets the
+/// answers still expected (a job that finishes later drops its answer on
+/// its own thread).
+pub struct Inbox<T> {
+    jobs: Jobs,
+    sender: Sender<T>,
+    receiver: Receiver<T>,
+    waiting: usize,
+}
+
+impl<T> std::fmt::Debug for Inbox<T> {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("Inbox")
+            .field("waiting", &self.waiting)
+            .finish_non_exhaustive()
+    }
+}
+
+impl<T: Send + 'static> Inbox<T> {
+    /// Runs `work` on a thread named `tapwright-<name>`; its answer comes
+    /// back through [`Self::drain`]. If no thread can start, `work` runs
+    /// here and its answer is waiting at once.
+    pub fn spawn(&mut self, name: &str, work: impl FnOnce() -> T + Send + 'static) {
+        self.expect_answer();
+        let reply = self.reply_address();
+        run_on_thread(name, move || reply.send(work()));
+    }
+
+    /// Answers expected and not yet taken.
+    pub fn waiting(&self) -> usize {
+        self.waiting
+    }
+
+    /// The answers that have arrived, each answering one job.
+    pub fn drain(&mut self) -> Vec<T> {
+        self.drain_answering(|_| 1)
+    }
+
+    /// The answers that have arrived; `answers` says how many requests
+    /// each one answers (a worker of one's own may answer several at once).
+    pub fn drain_answering(&mut self, answers: impl Fn(&T) -> usize) -> Vec<T> {
+        let arrived: Vec<T> = self.receiver.try_iter().collect();
+        let answered: usize = arrived.iter().map(answers).sum::<usize>().min(self.waiting);
+        self.waiting -= answered;
+        self.jobs.answered(answered);
+        arrived
+    }
+
+    /// One more answer is expected from a worker of one's own (see
+    /// [`Self::reply_address`]).
+    pub fn expect_answer(&mut self) {
+        self.waiting += 1;
+        self.jobs.expect(1);
+    }
+
+    /// An answer that was expected will not come (the worker could not be
+    /// reached).
+    pub fn forget_answer(&mut self) {
+        if self.waiting > 0 {
+            self.waiting -= 1;
+            self.jobs.answered(1);
+        }
+    }
+
+    /// Where a worker of one's own (a thread that answers many requests,
+    /// such as the build saver) sends its answers.
+    pub fn reply_address(&self) -> Reply<T> {
+        Reply {
+            sender: self.sender.clone(),
+            jobs: self.jobs.clone(),
         }
     }
 }
 
-/// Lists the input devices.
-pub fn list_devices() -> JobDone {
-    JobDone::Devices(crate::capture::list_input_devices())
-}
-
-/// Opens a capture source.
-pub fn start_capture(
-    generation: u64,
-    source: SourceChoice,
-    settings: CaptureSettings,
-    notify: crate::capture::Notify,
-) -> JobDone {
-    JobDone::CaptureStarted {
-        generation,
-        result: CaptureHandle::start(source, settings, Some(notify)),
+impl<T> Drop for Inbox<T> {
+    fn drop(&mut self) {
+        self.jobs.answered(self.waiting);
     }
 }
 
-/// Shows a file dialog and reports the chosen path.
-pub fn choose_file(purpose: FilePurpose, suggested_name: String) -> JobDone {
-    let dialog = rfd::FileDialog::new();
-    let path = match purpose {
-        FilePurpose::OpenRecording => dialog
-            .set_title("Open a recording")
-            .add_filter("WAV recording", &["wav", "WAV"])
-            .pick_file(),
-        FilePurpose::SaveTaps => dialog
-            .set_title("Save the kept taps as WAV")
-            .add_filter("WAV recording", &["wav"])
-            .set_file_name(suggested_name)
-            .save_file(),
-        FilePurpose::ExportPass => dialog
-            .set_title("Export the pass as JSON")
-            .add_filter("JSON", &["json"])
-            .set_file_name(suggested_name)
-            .save_file(),
-        FilePurpose::SaveBuildCopy => dialog
-            .set_title("Save the build as")
-            .add_filter("tapwright build", &["ron"])
-            .set_file_name(suggested_name)
-            .save_file(),
-    };
-    JobDone::FileChosen { purpose, path }
+/// Sends answers to an [`Inbox`] from another thread and wakes the window.
+pub struct Reply<T> {
+    sender: Sender<T>,
+    jobs: Jobs,
 }
 
-/// Reads a WAV file and measures every tap in it.
-pub fn analyse_recording(
-    path: PathBuf,
-    trigger: TriggerSettings,
-    analysis: AnalysisSettings,
-) -> JobDone {
-    let result =
-        read_and_analyse(&path, &trigger, &analysis).map_err(|e| crate::cli::one_sentence(&e));
-    JobDone::RecordingAnalysed { path, result }
-}
-
-/// Measures the given tap records again with `analysis` (after the maker
-/// changed the band or the number of modes).
-pub fn remeasure_taps(records: Vec<(usize, FoundTap, u32)>, analysis: AnalysisSettings) -> JobDone {
-    let mut analyzer: Option<TapAnalyzer> = None;
-    let measured = records
-        .into_iter()
-        .map(|(index, record, sample_rate_hz)| {
-            let fs = f64::from(sample_rate_hz);
-            let analyzer = match &mut analyzer {
-                Some(a) if a.sample_rate_hz() == fs => a,
-                slot => slot.insert(TapAnalyzer::new(analysis.clone(), fs)),
-            };
-            (index, analyzer.analyze(&record))
-        })
-        .collect();
-    JobDone::TapsRemeasured(measured)
-}
-
-fn read_and_analyse(
-    path: &Path,
-    trigger: &TriggerSettings,
-    analysis: &AnalysisSettings,
-) -> anyhow::Result<Vec<TapEntry>> {
-    let mut stream = crate::wav_io::WavStream::open(path)?;
-    let taps = taps_of_stream(&mut stream, trigger, analysis)?;
-    if taps.is_empty() {
-        anyhow::bail!(
-            "no taps were found in {} (is the trigger margin of {:.0} dB too high for it?)",
-            path.display(),
-            trigger.margin_db
-        );
+impl<T> Reply<T> {
+    /// Sends `answer` (dropped here if the inbox is gone) and wakes the
+    /// window.
+    pub fn send(&self, answer: T) {
+        let _ = self.sender.send(answer);
+        self.jobs.wake();
     }
-    Ok(taps)
 }
 
-/// Writes a recording as 32-bit float WAV (atomically).
-pub fn save_wav(path: PathBuf, recording: crate::wav_io::MonoRecording) -> JobDone {
-    let result =
-        crate::wav_io::write_mono(&path, recording.sample_rate_hz, &recording.samples, false)
-            .map(|()| format!("Saved the kept taps to {}.", path.display()))
-            .map_err(|e| crate::cli::one_sentence(&anyhow::Error::new(e)));
-    JobDone::Saved(result)
-}
-
-/// Writes text to a file atomically (temporary file beside it, then rename).
-pub fn save_text(path: PathBuf, text: String, what: &'static str) -> JobDone {
-    let result = write_atomic(&path, text.as_bytes())
-        .map(|()| format!("Saved {what} to {}.", path.display()))
-        .map_err(|e| crate::cli::one_sentence(&e));
-    JobDone::Saved(result)
-}
-
-fn write_atomic(path: &Path, bytes: &[u8]) -> anyhow::Result<()> {
-    use std::io::Write as _;
-    let folder = match path.parent() {
-        Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
-        _ => PathBuf::from("."),
-    };
-    let mut temp = tempfile::NamedTempFile::new_in(&folder)
-        .with_context(|| format!("cannot write in the folder {}", folder.display()))?;
-    temp.write_all(bytes)
-        .and_then(|()| temp.as_file().sync_all())
-        .with_context(|| format!("cannot write {}", path.display()))?;
-    temp.persist(path)
-        .map_err(|e| e.error)
-        .with_context(|| format!("cannot save {}", path.display()))?;
-    Ok(())
-}
-
-/// Reads a build file and the fingerprint of what was read.
-pub fn load_build(path: PathBuf) -> JobDone {
-    let result = crate::ledger::store::load_with_fingerprint(&path)
-        .map_err(|e| crate::cli::one_sentence(&anyhow::Error::new(e)));
-    JobDone::BuildLoaded { path, result }
-}
-
-/// The build saver's loop: takes every message waiting, then works through
-/// them in order. A save is skipped (counted into the answer of the newer
-/// one) when a newer save of the same file is in the same batch, so the
-/// newest snapshot is the one left on disk. Ends when the window drops its
-/// side of the channel.
-fn run_build_saver(
-    receiver: &Receiver<SaverMessage>,
-    results: &Sender<JobDone>,
-    ctx: Option<&egui::Context>,
-) {
-    let mut known: Option<(PathBuf, DiskFingerprint)> = None;
-    while let Ok(first) = receiver.recv() {
-        let mut batch: Vec<SaverMessage> =
-            std::iter::once(first).chain(receiver.try_iter()).collect();
-        let mut skipped: Vec<(PathBuf, usize, bool)> = Vec::new();
-        for index in 0..batch.len() {
-            let newer_save_waiting = match &batch[index] {
-                SaverMessage::Save { path, .. } => batch[index + 1..]
-                    .iter()
-                    .any(|m| matches!(m, SaverMessage::Save { path: p, .. } if p == path)),
-                SaverMessage::Track(_) => false,
-            };
-            let message = std::mem::replace(&mut batch[index], SaverMessage::Track(None));
-            match message {
-                SaverMessage::Track(file) => known = file,
-                SaverMessage::Save { path, check, .. } if newer_save_waiting => {
-                    // Remember that the maker chose to overwrite, for the
-                    // newer snapshot that replaces this one.
-                    let overwrite = check == SaveCheck::Overwrite;
-                    match skipped.iter_mut().find(|(p, ..)| *p == path) {
-                        Some(entry) => {
-                            entry.1 += 1;
-                            entry.2 |= overwrite;
-                        }
-                        None => skipped.push((path, 1, overwrite)),
-                    }
-                }
-                SaverMessage::Save {
-                    path,
-                    build,
-                    stamp,
-                    check,
-                } => {
-                    let (earlier, overwrite) = match skipped.iter().position(|(p, ..)| *p == path) {
-                        Some(at) => {
-                            let (_, count, overwrite) = skipped.remove(at);
-                            (count, overwrite)
-                        }
-                        None => (0, false),
-                    };
-                    let check = if overwrite {
-                        SaveCheck::Overwrite
-                    } else {
-                        check
-                    };
-                    let result = save_one_build(&path, &build, check, &mut known);
-                    let _ = results.send(JobDone::BuildSaved {
-                        path,
-                        stamp,
-                        handled: earlier + 1,
-                        result,
-                    });
-                    if let Some(ctx) = ctx {
-                        ctx.request_repaint();
-                    }
-                }
+/// Runs `work` on a new thread named `tapwright-<name>`, or here if no
+/// thread can start.
+fn run_on_thread(name: &str, work: impl FnOnce() + Send + 'static) {
+    let slot = Arc::new(Mutex::new(Some(work)));
+    let theirs = Arc::clone(&slot);
+    let started = std::thread::Builder::new()
+        .name(format!("tapwright-{name}"))
+        .spawn(move || {
+            if let Some(work) = take(&theirs) {
+                work();
             }
+        });
+    if started.is_err() {
+        if let Some(work) = take(&slot) {
+            work();
         }
     }
 }
 
-/// One save by the build saver. With [`SaveCheck::IfUnchanged`] and the
-/// file the window last read or wrote, the save is refused if the file
-/// changed since; saving to another file (Save as…) does not look, as the
-/// dialog already asked about replacing it.
-fn save_one_build(
-    path: &Path,
-    build: &Build,
-    check: SaveCheck,
-    known: &mut Option<(PathBuf, DiskFingerprint)>,
-) -> Result<(), SaveProblem> {
-    let expected = match (check, &*known) {
-        (SaveCheck::IfUnchanged, Some((known_path, fingerprint))) if known_path == path => {
-            Some(fingerprint.clone())
+fn take<F>(slot: &Mutex<Option<F>>) -> Option<F> {
+    slot.lock().ok().and_then(|mut work| work.take())
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use std::time::{Duration, Instant};
+
+    fn wait_for<T: Send + 'static>(inbox: &mut Inbox<T>) -> Vec<T> {
+        let deadline = Instant::now() + Duration::from_secs(10);
+        loop {
+            let arrived = inbox.drain();
+            if !arrived.is_empty() {
+                return arrived;
+            }
+            assert!(Instant::now() < deadline, "no answer");
+            std::thread::sleep(Duration::from_millis(2));
         }
-        _ => None,
-    };
-    match crate::ledger::store::save_checked(path, build, expected.as_ref()) {
-        Ok(fingerprint) => {
-            *known = Some((path.to_path_buf(), fingerprint));
-            Ok(())
-        }
-        Err(error @ StoreError::ChangedOnDisk { .. }) => Err(SaveProblem::ChangedOnDisk(
-            crate::cli::one_sentence(&anyhow::Error::new(error)),
-        )),
-        Err(error) => Err(SaveProblem::Failed(crate::cli::one_sentence(
-            &anyhow::Error::new(error),
-        ))),
+    }
+
+    #[test]
+    fn a_job_answers_in_its_inbox_and_the_count_follows() {
+        let jobs = Jobs::default();
+        let mut numbers = jobs.inbox::<u32>();
+        let mut words = jobs.inbox::<&'static str>();
+        numbers.spawn("test-number", || 7);
+        words.spawn("test-word", || "seven");
+        assert_eq!(jobs.running(), 2);
+        assert_eq!(wait_for(&mut numbers), vec![7]);
+        assert_eq!(jobs.running(), 1);
+        assert_eq!(wait_for(&mut words), vec!["seven"]);
+        assert_eq!(jobs.running(), 0);
+    }
+
+    #[test]
+    fn a_dropped_inbox_no_longer_counts() {
+        let jobs = Jobs::default();
+        let mut inbox = jobs.inbox::<u32>();
+        inbox.spawn("test-slow", || {
+            std::thread::sleep(Duration::from_millis(50));
+            1
+        });
+        assert_eq!(jobs.running(), 1);
+        drop(inbox);
+        assert_eq!(jobs.running(), 0);
+    }
+
+    #[test]
+    fn one_answer_may_answer_several_requests() {
+        let jobs = Jobs::default();
+        let mut inbox = jobs.inbox::<usize>();
+        inbox.expect_answer();
+        inbox.expect_answer();
+        inbox.expect_answer();
+        inbox.reply_address().send(2);
+        let arrived = inbox.drain_answering(|n| *n);
+        assert_eq!(arrived, vec![2]);
+        assert_eq!(inbox.waiting(), 1);
+        assert_eq!(jobs.running(), 1);
+        inbox.forget_answer();
+        assert_eq!(jobs.running(), 0);
     }
 }

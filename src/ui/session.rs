@@ -3,11 +3,11 @@
 //! labels the maker put on its modes. No drawing here; the Listen area reads
 //! it and changes it through commands.
 
-use std::time::SystemTime;
+use std::collections::BTreeSet;
 
 use crate::analysis::{
-    aggregate_taps, AnalysisSettings, DisplaySpectrum, FoundTap, PassResult, RejectReason,
-    TapAnalysis, TapAnalyzer, TapTrigger, TriggerEvent, TriggerSettings,
+    aggregate_taps, AnalysisSettings, DisplaySpectrum, FoundTap, PassResult, RecordingAnalyzer,
+    RejectReason, Tap, TapAnalysis, TriggerSettings,
 };
 use crate::wav_io::{WavError, WavStream};
 
@@ -20,108 +20,20 @@ const FILE_BLOCK_FRAMES: usize = 65_536;
 /// the low modes a maker labels.
 const LABEL_FOLLOW_RELATIVE: f64 = 0.02;
 
-/// One tap as the window keeps it.
-#[derive(Clone, Debug)]
-pub struct TapEntry {
-    /// Tap number as the capture (or file) numbered it, 1-based.
-    pub index: usize,
-    /// Time of the strike, seconds from the start of the source.
-    pub onset_s: f64,
-    /// Wall-clock time the tap was taken.
-    pub time: SystemTime,
-    /// Loudest level of the strike, dB full scale.
-    pub peak_dbfs: f64,
-    /// Sample rate of the record.
-    pub sample_rate_hz: u32,
-    /// The raw record (kept for saving the taps as WAV).
-    pub record: FoundTap,
-    /// The measurement; None for a tap the trigger rejected.
-    pub analysis: Option<TapAnalysis>,
-    /// Why the trigger rejected it, if it did.
-    pub rejected: Option<RejectReason>,
-    /// True when the maker left it out by hand.
-    pub left_out: bool,
-}
-
-/// Every tap of a whole recording, found and (if accepted) measured, as
-/// entries of the tap list.
-#[cfg(test)]
-pub fn taps_of_recording(
-    samples: &[f32],
-    sample_rate_hz: u32,
+/// The taps of a WAV file read block by block, as the window lists them
+/// (records kept, for saving and measuring again).
+pub fn taps_of_stream(
+    stream: &mut WavStream,
     trigger: &TriggerSettings,
     analysis: &AnalysisSettings,
-) -> Vec<TapEntry> {
-    let fs = f64::from(sample_rate_hz);
-    let found = crate::analysis::find_taps(samples, fs, trigger);
-    entries_of_taps(found, sample_rate_hz, analysis)
-}
-
-/// The taps of a WAV file read block by block, as the window lists them.
-pub fn taps_of_stream<R: std::io::Read>(
-    stream: &mut WavStream<R>,
-    trigger: &TriggerSettings,
-    analysis: &AnalysisSettings,
-) -> Result<Vec<TapEntry>, WavError> {
-    let sample_rate_hz = stream.sample_rate_hz();
-    let mut finder = TapTrigger::new(trigger.clone(), f64::from(sample_rate_hz));
-    let (mut block, mut events, mut found) = (Vec::new(), Vec::new(), Vec::new());
+) -> Result<Vec<Tap>, WavError> {
+    let fs = f64::from(stream.sample_rate_hz());
+    let mut gathering = RecordingAnalyzer::new(trigger, analysis, fs).keeping_records();
+    let mut block = Vec::new();
     while stream.read_block(&mut block, FILE_BLOCK_FRAMES)? > 0 {
-        finder.push(&block, &mut events);
-        found.extend(events.drain(..).filter_map(finished_tap));
+        gathering.push(&block);
     }
-    finder.finish(&mut events);
-    found.extend(events.drain(..).filter_map(finished_tap));
-    Ok(entries_of_taps(found, sample_rate_hz, analysis))
-}
-
-fn finished_tap(event: TriggerEvent) -> Option<FoundTap> {
-    match event {
-        TriggerEvent::Tap(tap) => Some(tap),
-        TriggerEvent::Started { .. } => None,
-    }
-}
-
-/// Measures the accepted taps and numbers them all from 1.
-fn entries_of_taps(
-    found: Vec<FoundTap>,
-    sample_rate_hz: u32,
-    analysis: &AnalysisSettings,
-) -> Vec<TapEntry> {
-    let fs = f64::from(sample_rate_hz);
-    let mut analyzer = TapAnalyzer::new(analysis.clone(), fs);
-    found
-        .into_iter()
-        .enumerate()
-        .map(|(i, tap)| TapEntry {
-            index: i + 1,
-            onset_s: tap.onset_sample() as f64 / fs,
-            time: SystemTime::now(),
-            peak_dbfs: tap.peak_dbfs,
-            sample_rate_hz,
-            analysis: tap.rejected.is_none().then(|| analyzer.analyze(&tap)),
-            rejected: tap.rejected,
-            record: tap,
-            left_out: false,
-        })
-        .collect()
-}
-
-impl TapEntry {
-    /// True if the tap may go into the pass (measured, not rejected, not
-    /// left out).
-    pub fn is_kept(&self) -> bool {
-        self.analysis.is_some() && self.rejected.is_none() && !self.left_out
-    }
-
-    /// Why it is out of the pass, if it is.
-    pub fn reason_out(&self) -> Option<RejectReason> {
-        if self.left_out {
-            Some(RejectReason::LeftOut)
-        } else {
-            self.rejected
-        }
-    }
+    Ok(gathering.finish().taps)
 }
 
 /// A label the maker put on a mode, remembered by the mode's frequency so it
@@ -135,7 +47,9 @@ struct LabelAnchor {
 /// The pass being measured.
 #[derive(Debug)]
 pub struct ListenSession {
-    taps: Vec<TapEntry>,
+    taps: Vec<Tap>,
+    /// The numbers of the taps the maker left out by hand.
+    left_out: BTreeSet<usize>,
     taps_to_average: usize,
     max_modes: usize,
     pass: Option<PassResult>,
@@ -157,6 +71,7 @@ impl ListenSession {
     pub fn new(taps_to_average: usize, max_modes: usize) -> Self {
         Self {
             taps: Vec::new(),
+            left_out: BTreeSet::new(),
             taps_to_average: taps_to_average.max(1),
             max_modes: max_modes.max(1),
             pass: None,
@@ -168,8 +83,28 @@ impl ListenSession {
     }
 
     /// Every tap heard, oldest first.
-    pub fn taps(&self) -> &[TapEntry] {
+    pub fn taps(&self) -> &[Tap] {
         &self.taps
+    }
+
+    /// True if the maker left the tap with this number out by hand.
+    pub fn is_left_out(&self, tap_index: usize) -> bool {
+        self.left_out.contains(&tap_index)
+    }
+
+    /// True if the tap may go into the pass (measured, not rejected, not
+    /// left out).
+    pub fn is_kept(&self, tap: &Tap) -> bool {
+        tap.is_accepted() && !self.is_left_out(tap.index)
+    }
+
+    /// Why the tap is out of the pass, if it is.
+    pub fn reason_out(&self, tap: &Tap) -> Option<RejectReason> {
+        if self.is_left_out(tap.index) {
+            Some(RejectReason::LeftOut)
+        } else {
+            tap.rejected
+        }
     }
 
     /// The combined result of the kept taps (None until one is kept).
@@ -202,31 +137,36 @@ impl ListenSession {
         self.taps
             .iter()
             .rev()
-            .find(|t| t.is_kept())
+            .find(|t| self.is_kept(t))
             .and_then(|t| t.analysis.as_ref())
             .map(|a| &a.spectrum)
     }
 
     /// Adds a tap (accepted or rejected) and recombines.
-    pub fn add_tap(&mut self, tap: TapEntry) {
+    pub fn add_tap(&mut self, tap: Tap) {
         self.taps.push(tap);
         self.recombine();
     }
 
     /// Replaces all taps (a recording was opened) and recombines. Labels
     /// are kept and follow the modes where they can.
-    pub fn replace_taps(&mut self, taps: Vec<TapEntry>) {
+    pub fn replace_taps(&mut self, taps: Vec<Tap>) {
         self.taps = taps;
+        self.left_out.clear();
         self.recombine();
     }
 
     /// Leaves a tap out (`left_out`) or takes it back. Returns false if no
     /// tap has that number.
     pub fn set_left_out(&mut self, tap_index: usize, left_out: bool) -> bool {
-        let Some(tap) = self.taps.iter_mut().find(|t| t.index == tap_index) else {
+        if !self.taps.iter().any(|t| t.index == tap_index) {
             return false;
-        };
-        tap.left_out = left_out;
+        }
+        if left_out {
+            self.left_out.insert(tap_index);
+        } else {
+            self.left_out.remove(&tap_index);
+        }
         self.recombine();
         true
     }
@@ -243,7 +183,7 @@ impl ListenSession {
         self.taps
             .iter()
             .filter(|t| t.analysis.is_some())
-            .map(|t| (t.index, t.record.clone(), t.sample_rate_hz))
+            .filter_map(|t| Some((t.index, t.record.clone()?, t.sample_rate_hz)))
             .collect()
     }
 
@@ -272,6 +212,7 @@ impl ListenSession {
     /// pass of the same part shows them on the same modes.
     pub fn clear(&mut self) {
         self.taps.clear();
+        self.left_out.clear();
         self.recombine();
     }
 
@@ -309,8 +250,8 @@ impl ListenSession {
     }
 
     /// The taps in the average, oldest first.
-    fn averaged_taps(&self) -> Vec<&TapEntry> {
-        let kept: Vec<&TapEntry> = self.taps.iter().filter(|t| t.is_kept()).collect();
+    fn averaged_taps(&self) -> Vec<&Tap> {
+        let kept: Vec<&Tap> = self.taps.iter().filter(|t| self.is_kept(t)).collect();
         let skip = kept.len().saturating_sub(self.taps_to_average);
         kept.into_iter().skip(skip).collect()
     }
@@ -358,15 +299,24 @@ impl ListenSession {
     /// between them (and before the first), for saving as WAV. None if no
     /// tap is kept or their rates differ.
     pub fn kept_taps_as_recording(&self, gap_s: f64) -> Option<crate::wav_io::MonoRecording> {
-        let kept: Vec<&TapEntry> = self.taps.iter().filter(|t| t.is_kept()).collect();
-        let rate = kept.first()?.sample_rate_hz;
-        if kept.iter().any(|t| t.sample_rate_hz != rate) {
+        let kept: Vec<&FoundTap> = self
+            .taps
+            .iter()
+            .filter(|t| self.is_kept(t))
+            .filter_map(|t| t.record.as_ref())
+            .collect();
+        let rate = self.taps.iter().find(|t| self.is_kept(t))?.sample_rate_hz;
+        if self
+            .taps
+            .iter()
+            .any(|t| self.is_kept(t) && t.sample_rate_hz != rate)
+        {
             return None;
         }
         let gap = vec![0.0f32; (gap_s.max(0.0) * f64::from(rate)) as usize];
         let mut samples = gap.clone();
-        for tap in kept {
-            samples.extend_from_slice(&tap.record.samples);
+        for record in kept {
+            samples.extend_from_slice(&record.samples);
             samples.extend_from_slice(&gap);
         }
         Some(crate::wav_io::MonoRecording {
@@ -384,14 +334,17 @@ fn near(a_hz: f64, b_hz: f64) -> bool {
 mod tests {
     use super::*;
 
-    fn demo_taps() -> Vec<TapEntry> {
+    fn demo_taps() -> Vec<Tap> {
         let recording = crate::demo::synthesize_demo_plate();
-        taps_of_recording(
-            &recording.samples,
-            recording.sample_rate_hz,
+        let fs = f64::from(recording.sample_rate_hz);
+        let mut gathering = RecordingAnalyzer::new(
             &TriggerSettings::default(),
             &AnalysisSettings::default(),
+            fs,
         )
+        .keeping_records();
+        gathering.push(&recording.samples);
+        gathering.finish().taps
     }
 
     fn mode_near(session: &ListenSession, hz: f64) -> Option<usize> {
@@ -410,7 +363,7 @@ mod tests {
         let first_kept = session
             .taps()
             .iter()
-            .find(|t| t.is_kept())
+            .find(|t| session.is_kept(t))
             .expect("test value")
             .index;
         assert!(session.set_left_out(first_kept, true));
@@ -431,7 +384,7 @@ mod tests {
         let first_kept = session
             .taps()
             .iter()
-            .find(|t| t.is_kept())
+            .find(|t| session.is_kept(t))
             .expect("test value")
             .index;
         session.set_left_out(first_kept, true);
@@ -463,7 +416,7 @@ mod tests {
         let kept: Vec<usize> = session
             .taps()
             .iter()
-            .filter(|t| t.is_kept())
+            .filter(|t| session.is_kept(t))
             .map(|t| t.index)
             .collect();
         assert!(!session.is_averaged(kept[0]));

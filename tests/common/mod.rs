@@ -1,13 +1,22 @@
-//! What the window tests share: the real app in a kittest harness on the
-//! bundled demo recording, and bounded waits for background work.
+//! What the tests share. Here: every tap of a recording found and measured
+//! with the default settings; the real app in a kittest harness on the
+//! bundled demo recording, bounded waits for background work, a new build
+//! with one part, and typing into a form field. In `alsa`: the end-to-end
+//! ALSA set-up.
 #![allow(dead_code)] // each test file uses its own subset
+
+#[cfg(target_os = "linux")]
+pub mod alsa;
 
 use std::time::{Duration, Instant};
 
 use eframe::egui;
+use egui_kittest::kittest::Queryable;
 use egui_kittest::Harness;
-use tapwright::capture::Pacing;
-use tapwright::ui::{AppOptions, SourceState, StartSource, TapwrightApp};
+use tapwright::analysis::{analyze_recording, AnalysisSettings, RecordingReport, TriggerSettings};
+use tapwright::audio::Pacing;
+use tapwright::ledger::{Family, PartKind};
+use tapwright::ui::{AppCommand, AppOptions, SourceState, StartSource, TapwrightApp};
 
 /// Upper bound on waiting for background work, so a broken build fails
 /// instead of hanging (not a speed check).
@@ -58,4 +67,50 @@ pub fn demo_finished(harness: &mut Harness<'_, TapwrightApp>) {
     step_until(harness, "the demo taps", |app| {
         app.input().state == SourceState::Ended && !app.is_busy()
     });
+}
+
+/// Replaces the text of the field labelled `label`.
+pub fn set_field(harness: &mut Harness<'_, TapwrightApp>, label: &str, text: &str) {
+    harness.get_by_label(label).set_text_value_accesskit(text);
+    harness.run_ok();
+}
+
+/// The text in the field labelled `label`.
+pub fn field_value(harness: &Harness<'_, TapwrightApp>, label: &str) -> String {
+    harness
+        .get_by_label(label)
+        .value()
+        .unwrap_or_else(|| panic!("the field {label} has no value"))
+}
+
+/// Queues a new build with one part, as the Ledger area would; `done` is
+/// the sentence the edit reports.
+pub fn queue_build_with_part(
+    app: &mut TapwrightApp,
+    (name, family): (&str, Family),
+    (part, kind): (&'static str, PartKind),
+    done: &'static str,
+) {
+    app.queue(AppCommand::NewBuild {
+        name: name.into(),
+        family,
+    });
+    app.queue(AppCommand::EditBuild {
+        description: format!("adding the {part}"),
+        edit: Box::new(move |build| {
+            build.add_part(part, kind.clone())?;
+            Ok(done.into())
+        }),
+    });
+}
+
+/// Every tap of a recording found, measured and combined with the default
+/// trigger and analysis settings.
+pub fn analyze_with_defaults(samples: &[f32], sample_rate_hz: f64) -> RecordingReport {
+    analyze_recording(
+        samples,
+        sample_rate_hz,
+        &TriggerSettings::default(),
+        &AnalysisSettings::default(),
+    )
 }
