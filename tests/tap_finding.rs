@@ -196,3 +196,112 @@ fn dc_offset_changes_nothing() {
         }
     }
 }
+
+/// The first tap at point 7B of the bundled roving-tap demo set is one
+/// clean synthetic strike (a click, then the plate's modes, 50 dB over the
+/// room noise). It was refused as a double strike: a predictor refitted
+/// where the decay is weak and its low modes barely resolved has large
+/// coefficients, and the room noise through it was taken for new sound.
+/// Both taps of every point are kept now.
+#[test]
+fn every_tap_of_the_demo_set_is_kept() {
+    let folder = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("assets/roving_violin_top");
+    let mut names: Vec<_> = std::fs::read_dir(&folder)
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .filter(|p| p.extension().is_some_and(|x| x == "wav"))
+        .collect();
+    names.sort();
+    assert_eq!(names.len(), 45);
+    for path in names {
+        let recording = tapwright::wav_io::read_mono(&path).unwrap();
+        let found = tapwright::shapes::taps_in_recording(
+            &recording.samples,
+            f64::from(recording.sample_rate_hz),
+            &tapwright::shapes::roving_trigger_settings(),
+        );
+        assert_eq!(
+            (found.accepted.len(), found.rejected.as_slice()),
+            (2, &[][..]),
+            "{}",
+            path.display()
+        );
+    }
+}
+
+/// A slow rise: the plate's modes grow over 25 ms (a soft mallet, or a
+/// resonator taking up the sound) before they decay, 50 dB over the room
+/// noise. The 1 ms block that clears the 20 dB margin comes 1.5–3 ms after
+/// the rise starts; the record's strike is put where the sound first
+/// stands out of the noise, within 0.5 ms of the rise's known start
+/// (common practice, no source: the brief's requirement).
+#[test]
+fn a_slow_rise_starts_where_it_leaves_the_noise() {
+    let rise_s = 0.025;
+    let starts_s = [0.6, 1.9003, 3.20071];
+    let mut x = vec![0.0; (4.5 * FS) as usize];
+    for &at_s in &starts_s {
+        let start = (at_s * FS).round() as usize;
+        let mut strike = vec![0.0; (1.2 * FS) as usize];
+        add_modes(&mut strike, FS, 0, &plate(0.3));
+        for (n, v) in strike.iter_mut().enumerate() {
+            *v *= (n as f64 / (rise_s * FS)).min(1.0);
+        }
+        for (o, s) in x[start..].iter_mut().zip(&strike) {
+            *o += s;
+        }
+    }
+    let report = analyze(&with_noise(x, 3e-4, 71));
+    assert_eq!(reasons(&report), vec![None; 3]);
+    for (tap, &at_s) in report.taps.iter().zip(&starts_s) {
+        let start_s = (at_s * FS).round() / FS;
+        assert!(
+            (tap.onset_s - start_s).abs() <= 0.0005,
+            "onset {:.5} s for a rise from {start_s:.5} s",
+            tap.onset_s
+        );
+    }
+}
+
+/// A faint precursor 3 ms before a strike (an encoder's pre-echo, a brush
+/// of the mallet) that rises past half the margin and falls back: part of
+/// the strike, not a too-quiet tap, and the strike's record starts at the
+/// strike, not 100 ms later.
+#[test]
+fn a_precursor_is_part_of_its_strike() {
+    let mut x = vec![0.0; (3.0 * FS) as usize];
+    let strike_s = 1.0;
+    let precursor = ((strike_s - 0.003) * FS) as usize;
+    let mut noise = NoiseGenerator::new(5);
+    for v in &mut x[precursor..precursor + 48] {
+        *v += 5e-4 * noise.gaussian();
+    }
+    strike(&mut x, strike_s, &plate(0.25), 0.05);
+    let report = analyze(&with_noise(x, 1e-4, 72));
+    assert_eq!(reasons(&report), vec![None]);
+    assert!(
+        (report.taps[0].onset_s - strike_s).abs() < 0.004,
+        "{}",
+        report.taps[0].onset_s
+    );
+}
+
+/// A recording that starts with digital silence (a decoder's priming, an
+/// edit's padding) and then the room: the rise from silence to the room
+/// noise is no tap, and the first strike is found where it is.
+#[test]
+fn a_start_in_digital_silence_is_no_tap() {
+    let mut x = vec![0.0; (3.0 * FS) as usize];
+    strike(&mut x, 0.4, &plate(0.25), 0.05);
+    strike(&mut x, 1.7, &plate(0.25), 0.05);
+    let mut samples = with_noise(x, 3e-4, 73);
+    let silent = (0.03 * FS) as usize;
+    samples[..silent].iter_mut().for_each(|v| *v = 0.0);
+    samples[silent..silent + 200]
+        .iter_mut()
+        .enumerate()
+        .for_each(|(i, v)| *v *= i as f32 / 200.0);
+    let report = analyze(&samples);
+    assert_eq!(reasons(&report), vec![None; 2]);
+    assert!((report.taps[0].onset_s - 0.4).abs() < 0.002);
+}

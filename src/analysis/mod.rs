@@ -22,6 +22,7 @@ pub mod spectrum;
 mod subspace;
 pub mod synth;
 pub mod tap_finder;
+mod trigger_levels;
 mod varpro;
 
 pub use aggregate::{aggregate_taps, PassMode, PassResult};

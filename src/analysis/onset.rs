@@ -17,6 +17,15 @@
 //! blocks of [`BLOCK_MS`]. Onsets as bursts of prediction error: Bello et
 //! al., "A tutorial on onset detection in music signals", IEEE Trans.
 //! Speech and Audio Processing 13(5), 2005, section III-B.
+//!
+//! The room noise passes through the predictor too: white noise of power
+//! σ² leaves an error of σ²·(1 + Σ aₖ²) (the predictor is an FIR filter
+//! with taps 1, a₁ … a_p). A predictor fitted where the decay is weak, or
+//! dominated by low modes that a few milliseconds barely resolve, has large
+//! coefficients, and its error on the noise alone can stand 10 dB above
+//! the error of the predictor before it. That is no new sound: the level
+//! the error is judged against is never below what the noise alone gives
+//! through the current predictor ([`NoveltyDetector::set_noise_power`]).
 
 /// Prediction order: room for twelve modes.
 const ORDER: usize = 24;
@@ -34,8 +43,9 @@ const REFERENCE_BLOCKS: usize = 16;
 pub struct BlockNovelty {
     /// Mean-square prediction error over the block (full scale = 1).
     pub unforetold_power: f64,
-    /// What the prediction error was a moment before: the larger of the
-    /// fitted predictor's own error and the median of the blocks before.
+    /// What the prediction error was a moment before: the largest of the
+    /// fitted predictor's own error, the median of the blocks before, and
+    /// the error the room noise alone gives through the predictor.
     pub reference_power: f64,
 }
 
@@ -68,6 +78,10 @@ pub struct NoveltyDetector {
     block_fill: usize,
     recent: [f64; REFERENCE_BLOCKS],
     recent_count: usize,
+    /// Room noise power per sample (full scale = 1), if known.
+    noise_power: f64,
+    /// The current predictor's noise gain, 1 + Σ aₖ².
+    noise_gain: f64,
 }
 
 impl NoveltyDetector {
@@ -96,7 +110,26 @@ impl NoveltyDetector {
             block_fill: 0,
             recent: [0.0; REFERENCE_BLOCKS],
             recent_count: 0,
+            noise_power: 0.0,
+            noise_gain: 1.0,
         }
+    }
+
+    /// Tells the room noise's power per sample (full scale = 1): the error
+    /// the noise alone leaves through a predictor is never taken for new
+    /// sound.
+    pub fn set_noise_power(&mut self, noise_power: f64) {
+        self.noise_power = if noise_power.is_finite() {
+            noise_power.max(0.0)
+        } else {
+            0.0
+        };
+    }
+
+    /// The error power that the room noise alone leaves through the current
+    /// predictor: noise power × (1 + Σ aₖ²).
+    pub fn noise_error_power(&self) -> f64 {
+        self.noise_power * self.noise_gain
     }
 
     /// True once a predictor has been fitted to the decay.
@@ -136,6 +169,7 @@ impl NoveltyDetector {
         self.block_sum = 0.0;
         self.block_fill = 0;
         self.recent_count = 0;
+        self.noise_gain = 1.0;
     }
 
     /// Feeds one sample; at the end of each block, once a predictor has
@@ -181,7 +215,9 @@ impl NoveltyDetector {
         self.block_fill = 0;
         let novelty = BlockNovelty {
             unforetold_power,
-            reference_power: fitted_error.max(self.median_recent()),
+            reference_power: fitted_error
+                .max(self.median_recent())
+                .max(self.noise_error_power()),
         };
         self.recent[self.recent_count % REFERENCE_BLOCKS] = unforetold_power;
         self.recent_count += 1;
@@ -218,6 +254,7 @@ impl NoveltyDetector {
         // synthetic decay.
         autocorrelation[0] *= 1.0 + 1e-9;
         self.fitted_error = levinson_durbin(&autocorrelation, &mut self.coefficients);
+        self.noise_gain = 1.0 + self.coefficients.iter().map(|a| a * a).sum::<f64>();
     }
 }
 

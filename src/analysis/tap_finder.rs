@@ -31,6 +31,7 @@ use std::fmt;
 use serde::{Deserialize, Serialize};
 
 use super::onset::NoveltyDetector;
+use super::trigger_levels::{power_to_db, strike_start, DcBlocker, FloorTracker};
 
 /// Why a tap was left out of a pass.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
@@ -166,12 +167,34 @@ pub enum TriggerEvent {
 /// Lowest level the floor may take: digital silence must not make the
 /// trigger fire on rounding noise.
 const FLOOR_MIN_DBFS: f64 = -100.0;
-/// Level histogram resolution for the running median.
-const HIST_STEP_DB: f64 = 0.25;
-const HIST_MIN_DB: f64 = -160.0;
-const HIST_BINS: usize = 680; // -160 .. +10 dB
-/// Blocks of quiet needed before the trigger arms for the first time.
-const WARM_UP_BLOCKS: usize = 20;
+/// Noise heard before the trigger arms for the first time: the length of
+/// the quiet a record keeps before its strike. A decoder's start-up (the
+/// priming of raw AAC, a fade in from near silence 20–50 ms long) is then
+/// less than half of what the first floor is the median of, and is not
+/// taken for the room.
+const WARM_UP_MS: f64 = 100.0;
+/// A block below this is digital silence (exact zeros, or the rounding of
+/// a decoder's priming), far under any real room (a 24-bit converter's own
+/// noise is near −140 dBFS over the audio band, a quiet room through a
+/// microphone -90 or above; from memory): it is neither room noise for
+/// the floor nor part of the warm-up.
+const DIGITAL_SILENCE_DBFS: f64 = -130.0;
+/// A rise that stays under the margin is only reported as too quiet once
+/// this long has passed without a strike: an encoder's pre-echo (AAC, MP3)
+/// rises 1–4 ms before the strike it belongs to, and is part of it.
+const QUIET_CONFIRM_MS: f64 = 10.0;
+/// The start of a strike is looked for this far back from the block that
+/// crossed the margin (a slow rise takes a few milliseconds to clear it).
+const RISE_SEARCH_MS: f64 = 30.0;
+/// ... and from this long before the last block that was still at the
+/// noise, so that the search sees noise before the rise.
+const RISE_SEARCH_PAD_MS: f64 = 3.0;
+/// In the first milliseconds of a record (before [`NEW_SOUND_GUARD_MS`]),
+/// a block louder than the one that started it by the trigger margin is
+/// the real strike, and what started the record was its precursor (an
+/// encoder's pre-echo, a brush of the mallet): the record starts again
+/// there.
+const RESTART_WITHIN_MS: f64 = NEW_SOUND_GUARD_MS;
 /// Time after the envelope peak during which the strike itself is still
 /// going on, so rises are not double strikes.
 const CONTACT_MS: f64 = 4.0;
@@ -180,10 +203,6 @@ const CONTACT_MS: f64 = 4.0;
 const QUIET_RISE_MS: f64 = 300.0;
 /// Full-scale fraction that counts as clipped.
 const CLIP_LEVEL: f32 = 0.99;
-/// Corner of each of the two DC-blocking high-pass stages, Hz: far below
-/// any band a maker measures (a 40 Hz mode loses 0.07 dB), fast enough
-/// (time constant 32 ms) to follow an offset that drifts.
-const DC_BLOCK_HZ: f64 = 5.0;
 /// The search for new sound starts this long after the trigger, when the
 /// first strike's contact is over and only its free decay is left.
 const NEW_SOUND_GUARD_MS: f64 = 5.0;
@@ -241,6 +260,8 @@ struct Recording {
     /// the floor, if it has.
     died_after_blocks: Option<usize>,
     blocks: usize,
+    /// Fast envelope level of the block that started the record.
+    trigger_level_db: f64,
     clipped: bool,
     double: bool,
     /// What set the decay ringing, as the first predictor of the decay
@@ -248,93 +269,6 @@ struct Recording {
     strike_energy: Option<f64>,
     /// Unforetold energy of the previous block (a strike may straddle two).
     previous_block_energy: f64,
-}
-
-/// Running median of block levels by a histogram of 0.25 dB bins.
-#[derive(Clone, Debug)]
-struct FloorTracker {
-    history: VecDeque<u16>,
-    counts: Vec<u32>,
-    capacity: usize,
-}
-
-impl FloorTracker {
-    fn new(capacity: usize) -> Self {
-        Self {
-            history: VecDeque::with_capacity(capacity + 1),
-            counts: vec![0; HIST_BINS],
-            capacity: capacity.max(1),
-        }
-    }
-
-    fn bin(level_db: f64) -> u16 {
-        let index = ((level_db - HIST_MIN_DB) / HIST_STEP_DB).floor();
-        index.clamp(0.0, (HIST_BINS - 1) as f64) as u16
-    }
-
-    fn push(&mut self, level_db: f64) {
-        let bin = Self::bin(level_db);
-        self.history.push_back(bin);
-        self.counts[usize::from(bin)] += 1;
-        if self.history.len() > self.capacity {
-            if let Some(old) = self.history.pop_front() {
-                self.counts[usize::from(old)] -= 1;
-            }
-        }
-    }
-
-    fn len(&self) -> usize {
-        self.history.len()
-    }
-
-    fn median_db(&self) -> f64 {
-        let half = self.history.len().div_ceil(2) as u32;
-        let mut seen = 0;
-        for (bin, &count) in self.counts.iter().enumerate() {
-            seen += count;
-            if seen >= half && count > 0 {
-                return HIST_MIN_DB + (bin as f64 + 0.5) * HIST_STEP_DB;
-            }
-        }
-        HIST_MIN_DB
-    }
-}
-
-/// Two first-order DC blockers in series, y[n] = x[n] − x[n−1] + R·y[n−1],
-/// each started as if its input had always been the first sample, so a
-/// constant offset gives no start-up transient.
-#[derive(Clone, Debug)]
-struct DcBlocker {
-    pole: f64,
-    previous_in: [f64; 2],
-    previous_out: [f64; 2],
-    started: bool,
-}
-
-impl DcBlocker {
-    fn new(sample_rate_hz: f64) -> Self {
-        Self {
-            pole: (-2.0 * std::f64::consts::PI * DC_BLOCK_HZ / sample_rate_hz).exp(),
-            previous_in: [0.0; 2],
-            previous_out: [0.0; 2],
-            started: false,
-        }
-    }
-
-    fn filter(&mut self, sample: f32) -> f32 {
-        let mut x = f64::from(sample);
-        if !self.started {
-            self.started = true;
-            self.previous_in = [x, 0.0];
-        }
-        for stage in 0..2 {
-            let y = x - self.previous_in[stage] + self.pole * self.previous_out[stage];
-            self.previous_in[stage] = x;
-            self.previous_out[stage] = y;
-            x = y;
-        }
-        x as f32
-    }
 }
 
 /// Streaming tap finder. Feed it samples with [`TapTrigger::push`]; call
@@ -359,6 +293,14 @@ pub struct TapTrigger {
     position: u64,
     floor: FloorTracker,
     state: State,
+    /// A too-quiet rise waiting for [`QUIET_CONFIRM_MS`] to pass without
+    /// a strike, and the blocks left to wait.
+    pending_quiet: Option<(FoundTap, usize)>,
+    /// Fast envelope levels of the last blocks, newest last (for the
+    /// search of a strike's start).
+    recent_levels: VecDeque<f64>,
+    /// Blocks of room noise heard (digital silence not counted).
+    noise_blocks: usize,
     /// The last block powers, for the slow envelope.
     recent_powers: VecDeque<f64>,
     recent_sum: f64,
@@ -397,6 +339,9 @@ impl TapTrigger {
             block_fill: 0,
             position: 0,
             state: State::Armed,
+            pending_quiet: None,
+            recent_levels: VecDeque::new(),
+            noise_blocks: 0,
         }
     }
 
@@ -417,7 +362,13 @@ impl TapTrigger {
         let dc_blocker = self.dc_blocker.clone();
         let (clip_run, last_clip_at) = (self.clip_run, self.last_clip_at);
         let history = std::mem::take(&mut self.history);
+        let pending_quiet = self.pending_quiet.take();
+        let recent_levels = std::mem::take(&mut self.recent_levels);
+        let noise_blocks = self.noise_blocks;
         *self = Self::new(settings, self.sample_rate_hz);
+        self.pending_quiet = pending_quiet;
+        self.recent_levels = recent_levels;
+        self.noise_blocks = noise_blocks;
         self.floor = floor;
         self.position = position;
         self.dc_blocker = dc_blocker;
@@ -438,7 +389,9 @@ impl TapTrigger {
 
     /// Current noise floor estimate in dB full scale (None while warming up).
     pub fn floor_dbfs(&self) -> Option<f64> {
-        (self.floor.len() >= WARM_UP_BLOCKS).then(|| self.floor.median_db().max(FLOOR_MIN_DBFS))
+        let warm_up_blocks = (WARM_UP_MS / self.block_ms()).round() as usize;
+        (self.noise_blocks >= warm_up_blocks.max(1))
+            .then(|| self.floor.median_db().max(FLOOR_MIN_DBFS))
     }
 
     /// True while a strike is being recorded.
@@ -461,6 +414,9 @@ impl TapTrigger {
     /// Ends the stream: a record under way is finished as it is (and
     /// rejected as too short if it is shorter than `min_record_ms`).
     pub fn finish(&mut self, events: &mut Vec<TriggerEvent>) {
+        if let Some((quiet, _)) = self.pending_quiet.take() {
+            events.push(TriggerEvent::Tap(quiet));
+        }
         if let State::Recording(rec) = std::mem::replace(&mut self.state, State::Armed) {
             events.push(TriggerEvent::Tap(self.close_record(rec)));
         }
@@ -474,11 +430,11 @@ impl TapTrigger {
             self.history.pop_front();
         }
         self.history.push_back(sample);
+        let block_ms = self.block_ms();
         if let State::Recording(rec) = &mut self.state {
             rec.samples.push(sample);
             rec.clipped |= self.clip_run >= 2;
             if rec.samples.len() > rec.onset_index + self.new_sound_guard {
-                let block_ms = self.block_len as f64 * 1000.0 / self.sample_rate_hz;
                 let still_rising = rec.blocks_since_loudest as f64 * block_ms < EXCITATION_GAP_MS;
                 look_for_second_strike(
                     &mut self.novelty,
@@ -525,10 +481,52 @@ impl TapTrigger {
 
     /// `level_db` is the fast (trigger) envelope, `slow_db` the decay envelope.
     fn on_block(&mut self, level_db: f64, slow_db: f64, events: &mut Vec<TriggerEvent>) {
+        self.recent_levels.push_back(level_db);
+        let search_blocks = (RISE_SEARCH_MS / self.block_ms()).ceil() as usize + 1;
+        while self.recent_levels.len() > search_blocks {
+            self.recent_levels.pop_front();
+        }
         let Some(floor_db) = self.floor_dbfs() else {
-            self.floor.push(level_db);
+            self.learn_floor(level_db);
             return;
         };
+        let was_recording = self.is_recording();
+        self.next_state(level_db, slow_db, floor_db, events);
+        self.confirm_quiet_rise(!was_recording && self.is_recording(), events);
+    }
+
+    /// Room noise for the floor; digital silence is not.
+    fn learn_floor(&mut self, level_db: f64) {
+        if level_db > DIGITAL_SILENCE_DBFS {
+            self.floor.push(level_db);
+            self.noise_blocks += 1;
+        }
+    }
+
+    /// A pending too-quiet rise is dropped when a strike starts (it was the
+    /// strike's precursor), and reported once its wait is over.
+    fn confirm_quiet_rise(&mut self, strike_started: bool, events: &mut Vec<TriggerEvent>) {
+        if strike_started {
+            self.pending_quiet = None;
+            return;
+        }
+        if let Some((_, blocks_left)) = &mut self.pending_quiet {
+            *blocks_left = blocks_left.saturating_sub(1);
+            if *blocks_left == 0 {
+                if let Some((quiet, _)) = self.pending_quiet.take() {
+                    events.push(TriggerEvent::Tap(quiet));
+                }
+            }
+        }
+    }
+
+    fn next_state(
+        &mut self,
+        level_db: f64,
+        slow_db: f64,
+        floor_db: f64,
+        events: &mut Vec<TriggerEvent>,
+    ) {
         let margin = self.settings.margin_db;
         let state = std::mem::replace(&mut self.state, State::Armed);
         self.state = match state {
@@ -541,7 +539,7 @@ impl TapTrigger {
                         peak_db: level_db,
                     }
                 } else {
-                    self.floor.push(level_db);
+                    self.learn_floor(level_db);
                     State::Armed
                 }
             }
@@ -554,7 +552,11 @@ impl TapTrigger {
                         peak_db: peak_db.max(level_db),
                     }
                 } else if self.blocks_to_ms(blocks) <= QUIET_RISE_MS {
-                    events.push(TriggerEvent::Tap(self.quiet_tap(blocks, floor_db, peak_db)));
+                    let wait = (QUIET_CONFIRM_MS / self.block_ms()).ceil() as usize;
+                    let quiet = self.quiet_tap(blocks, floor_db, peak_db);
+                    if let Some((earlier, _)) = self.pending_quiet.replace((quiet, wait.max(1))) {
+                        events.push(TriggerEvent::Tap(earlier));
+                    }
                     State::Settling {
                         blocks: 0,
                         min_db: slow_db,
@@ -564,7 +566,7 @@ impl TapTrigger {
                     State::Armed
                 }
             }
-            State::Recording(rec) => self.continue_record(rec, slow_db, events),
+            State::Recording(rec) => self.continue_record(rec, (level_db, slow_db), events),
             State::Settling { blocks, min_db } => {
                 self.continue_settling(blocks, min_db, (level_db, slow_db), floor_db, events)
             }
@@ -578,13 +580,15 @@ impl TapTrigger {
         events: &mut Vec<TriggerEvent>,
     ) -> State {
         let samples: Vec<f32> = self.history.iter().copied().collect();
-        let onset_index = samples.len().saturating_sub(self.block_len);
+        let onset_index = self.rise_start(&samples, floor_db);
         let start_sample = self.position - samples.len() as u64;
+        let trigger_level_db = self.recent_levels.back().copied().unwrap_or(slow_db);
         let record_len = ms_to_samples(self.settings.record_ms, self.sample_rate_hz);
         let mut all = Vec::with_capacity(onset_index + record_len + self.block_len);
         all.extend_from_slice(&samples);
         let clipped = self.last_clip_at.is_some_and(|at| at > start_sample);
         self.novelty.reset();
+        self.novelty.set_noise_power(10f64.powf(floor_db / 10.0));
         events.push(TriggerEvent::Started {
             onset_sample: start_sample + onset_index as u64,
         });
@@ -600,6 +604,7 @@ impl TapTrigger {
             blocks_since_loudest: 0,
             died_after_blocks: None,
             blocks: 1,
+            trigger_level_db,
             clipped,
             strike_energy: None,
             previous_block_energy: 0.0,
@@ -613,10 +618,15 @@ impl TapTrigger {
     fn continue_record(
         &mut self,
         mut rec: Recording,
-        slow_db: f64,
+        (level_db, slow_db): (f64, f64),
         events: &mut Vec<TriggerEvent>,
     ) -> State {
         rec.blocks += 1;
+        if self.blocks_to_ms(rec.blocks) <= RESTART_WITHIN_MS
+            && level_db > rec.trigger_level_db + self.settings.margin_db
+        {
+            self.restart_record(&mut rec, level_db, slow_db);
+        }
         if slow_db > rec.loudest_db {
             rec.loudest_db = slow_db;
             rec.blocks_since_loudest = 0;
@@ -654,6 +664,10 @@ impl TapTrigger {
     ) -> State {
         let blocks = blocks + 1;
         let min_db = min_db.min(slow_db);
+        if self.pending_quiet.is_some() && level_db > floor_db + self.settings.margin_db {
+            // The strike that a quiet rise came just before.
+            return self.start_record(floor_db, slow_db, events);
+        }
         if self.blocks_to_ms(blocks) < self.settings.refractory_ms {
             return State::Settling { blocks, min_db };
         }
@@ -667,6 +681,57 @@ impl TapTrigger {
         } else {
             State::Settling { blocks, min_db }
         }
+    }
+
+    /// Where the strike whose block just crossed the margin starts in
+    /// `samples` (the pre-trigger history, ending with that block): the
+    /// change point out of the room noise ([`strike_start`]), searched from
+    /// a little before the last block that was still at the noise. When the
+    /// sound before never fell back to the noise within [`RISE_SEARCH_MS`]
+    /// (a strike on a decay that has not died), the start of the block.
+    fn rise_start(&self, samples: &[f32], floor_db: f64) -> usize {
+        let block_start = samples.len().saturating_sub(self.block_len);
+        let quiet_back = self
+            .recent_levels
+            .iter()
+            .rev()
+            .position(|&level| level <= floor_db + self.settings.settle_db);
+        let Some(blocks_back) = quiet_back else {
+            return block_start;
+        };
+        let pad = ms_to_samples(RISE_SEARCH_PAD_MS, self.sample_rate_hz);
+        let from = samples
+            .len()
+            .saturating_sub((blocks_back + 1) * self.block_len + pad);
+        let noise_power = 10f64.powf(floor_db / 10.0);
+        strike_start(&samples[from..], noise_power).map_or(block_start, |at| from + at)
+    }
+
+    /// A much louder block soon after the trigger: the record starts again
+    /// at the rise out of what started it.
+    fn restart_record(&mut self, rec: &mut Recording, level_db: f64, slow_db: f64) {
+        let from = rec.onset_index.min(rec.samples.len());
+        let before_power = 10f64.powf(rec.trigger_level_db / 10.0);
+        let block_start = rec.samples.len().saturating_sub(self.block_len);
+        rec.onset_index =
+            strike_start(&rec.samples[from..], before_power).map_or(block_start, |at| from + at);
+        rec.target_len =
+            rec.onset_index + ms_to_samples(self.settings.record_ms, self.sample_rate_hz);
+        rec.trigger_level_db = level_db;
+        rec.blocks = 1;
+        rec.peak_db = slow_db;
+        rec.blocks_since_peak = 0;
+        rec.loudest_db = slow_db;
+        rec.blocks_since_loudest = 0;
+        rec.strike_energy = None;
+        rec.previous_block_energy = 0.0;
+        self.novelty.reset();
+        self.novelty
+            .set_noise_power(10f64.powf(rec.floor_db / 10.0));
+    }
+
+    fn block_ms(&self) -> f64 {
+        self.block_len as f64 * 1000.0 / self.sample_rate_hz
     }
 
     fn past_contact(&self, blocks_since_peak: usize, blocks: usize) -> bool {
@@ -793,10 +858,6 @@ pub fn ms_to_samples(ms: f64, sample_rate_hz: f64) -> usize {
     }
 }
 
-fn power_to_db(mean_square: f64) -> f64 {
-    10.0 * (mean_square + 1e-20).log10()
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -880,16 +941,6 @@ mod tests {
         assert!(find_taps(&vec![0.0; 96_000], FS, &TriggerSettings::default()).is_empty());
         let noise = recording(2.0, &[], 1e-3, 5);
         assert!(find_taps(&noise, FS, &TriggerSettings::default()).is_empty());
-    }
-
-    #[test]
-    fn floor_tracker_median() {
-        let mut floor = FloorTracker::new(5);
-        for level in [-60.0, -50.0, -70.0, -55.0, -65.0, -10.0] {
-            floor.push(level);
-        }
-        // Window holds -50, -70, -55, -65, -10: median -55.
-        assert!((floor.median_db() - -55.0).abs() <= HIST_STEP_DB);
     }
 
     #[test]
