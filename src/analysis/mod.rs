@@ -11,6 +11,7 @@
 pub mod aggregate;
 mod bands;
 mod candidates;
+mod found_tap;
 mod linalg;
 pub mod modal;
 mod noise;

@@ -37,6 +37,18 @@ const REFIT_MS: f64 = 4.0;
 const BLOCK_MS: f64 = 1.0;
 /// The error level is the median over this many blocks before.
 const REFERENCE_BLOCKS: usize = 16;
+/// A block of prediction error this many times (10 dB) its level of a
+/// moment before is new sound. The error of a decay, beating or not, stays
+/// at the room noise and wanders by a dB or two; a second strike, even at a
+/// third of the first's strength, lifts it by 20 dB or more.
+const NEW_SOUND_RATIO: f64 = 10.0;
+/// New sound is a second strike when it carries at least this fraction
+/// (−10 dB) of the energy that set the decay ringing, as the same
+/// predictor measures both. An early reflection of the strike from a bench
+/// or a wall (a fifth of its pressure or less at a few milliseconds, from
+/// memory) stays below; a mallet that bounces back at a third of its first
+/// strength is above.
+const SECOND_STRIKE_ENERGY_RATIO: f64 = 0.1;
 
 /// What one block tells.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -284,6 +296,75 @@ fn levinson_durbin(r: &[f64; ORDER + 1], a: &mut [f64; ORDER]) -> Option<f64> {
         }
     }
     Some(error)
+}
+
+/// The search for a second strike during one record, fed sample by sample
+/// once the strike's contact is over.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct SecondStrikeWatch {
+    /// What set the decay ringing, as the first predictor of the decay
+    /// measures it (None until that predictor is fitted).
+    strike_energy: Option<f64>,
+    /// Unforetold energy of the previous block (a strike may straddle two).
+    previous_block_energy: f64,
+    found: bool,
+}
+
+impl SecondStrikeWatch {
+    /// True once a second strike was heard.
+    pub fn found_second_strike(&self) -> bool {
+        self.found
+    }
+
+    /// Feeds the newest sample of `record` (whose strike is at
+    /// `onset_index`) to the search: once the decay's first predictor is
+    /// fitted it measures the strike with it (over `guard` samples either
+    /// side of the onset), and from then on a block that brings new sound,
+    /// above `audible_power`, with a good part of the strike's energy, is a
+    /// second strike.
+    ///
+    /// While the sound is `still_rising` (its envelope made a new maximum
+    /// a moment ago), the strike's own excitation is going on: a soft
+    /// mallet on a bar, or a bar whose resonator takes up the sound, keeps
+    /// feeding in energy for tens of milliseconds, and no predictor fitted
+    /// to the first milliseconds foretells it. What arrives then is counted
+    /// into the strike's energy, not against it; a second strike comes once
+    /// the sound has begun to fall. (A second strike lifts the 10 ms
+    /// envelope by a tenth of its own power in its first block, which does
+    /// not make a new maximum over a decay that fell for a few ms: it is
+    /// judged, and found.)
+    pub fn push(
+        &mut self,
+        novelty: &mut NoveltyDetector,
+        (record, onset_index): (&[f32], usize),
+        guard: usize,
+        audible_power: f64,
+        still_rising: bool,
+    ) {
+        let Some(&sample) = record.last() else {
+            return;
+        };
+        let block = novelty.push(sample);
+        if self.strike_energy.is_none() && novelty.has_predictor() {
+            let from = onset_index.saturating_sub(guard).min(record.len());
+            let to = (onset_index + guard).min(record.len());
+            self.strike_energy = Some(novelty.unforetold_energy(&record[from..to]));
+        }
+        let (Some(block), Some(strike_energy)) = (block, self.strike_energy) else {
+            return;
+        };
+        let energy = block.unforetold_power * novelty.block_len() as f64;
+        if still_rising {
+            self.strike_energy = Some(strike_energy + energy);
+            self.previous_block_energy = 0.0;
+            return;
+        }
+        let burst = energy + self.previous_block_energy;
+        self.previous_block_energy = energy;
+        let audible = block.unforetold_power > audible_power;
+        let strong = burst > SECOND_STRIKE_ENERGY_RATIO * strike_energy;
+        self.found |= audible && strong && block.ratio() > NEW_SOUND_RATIO;
+    }
 }
 
 #[cfg(test)]

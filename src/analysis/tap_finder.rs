@@ -26,143 +26,10 @@
 //!   `settle_db` of the floor (or a new strike clearly starts).
 
 use std::collections::VecDeque;
-use std::fmt;
 
-use serde::{Deserialize, Serialize};
-
-use super::onset::NoveltyDetector;
+pub use super::found_tap::{FoundTap, RejectReason, TriggerEvent, TriggerSettings};
+use super::onset::{NoveltyDetector, SecondStrikeWatch};
 use super::trigger_levels::{power_to_db, strike_start, DcBlocker, FloorTracker};
-
-/// Why a tap was left out of a pass.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
-#[serde(rename_all = "snake_case")]
-pub enum RejectReason {
-    /// Two or more consecutive samples at 99 % of full scale or more.
-    Clipped,
-    /// New sound arrived during the decay: a second strike or a rattle.
-    DoubleStrike,
-    /// The strike rose above the noise but not by the trigger margin.
-    TooQuiet,
-    /// The recording ended too soon after the strike, or the sound died at once.
-    TooShort,
-    /// Left out by the user.
-    LeftOut,
-}
-
-impl RejectReason {
-    /// A short phrase for tables.
-    pub fn short_text(self) -> &'static str {
-        match self {
-            Self::Clipped => "clipped",
-            Self::DoubleStrike => "double strike",
-            Self::TooQuiet => "too quiet",
-            Self::TooShort => "too short",
-            Self::LeftOut => "left out",
-        }
-    }
-
-    /// What the maker can do about it.
-    pub fn advice(self) -> &'static str {
-        match self {
-            Self::Clipped => "the input overloaded: tap more softly or turn the input gain down",
-            Self::DoubleStrike => "the sound rose again while decaying: tap once, let the mallet bounce off",
-            Self::TooQuiet => "the tap barely rose above the room noise: tap a little harder or move the microphone closer",
-            Self::TooShort => "the tap did not ring long enough to measure",
-            Self::LeftOut => "left out by hand",
-        }
-    }
-}
-
-impl fmt::Display for RejectReason {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        f.write_str(self.short_text())
-    }
-}
-
-/// How taps are found. Times in milliseconds, levels in dB.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-#[serde(default)]
-pub struct TriggerSettings {
-    /// How far above the noise floor a strike must rise.
-    pub margin_db: f64,
-    /// How much of the sound before the strike each record keeps: the
-    /// analysis measures the noise there, and tells a steady tone (hum)
-    /// from a mode the strike set ringing.
-    pub pre_trigger_ms: f64,
-    /// Length of each record after the strike.
-    pub record_ms: f64,
-    /// Minimum time between the end of one record and the next strike.
-    pub refractory_ms: f64,
-    /// A record shorter than this (the input ended) is rejected.
-    pub min_record_ms: f64,
-    /// Ringing shorter than this (back to the floor) is rejected.
-    pub min_ring_ms: f64,
-    /// After a record, a rise by more than this (and past the margin) above
-    /// the lowest level since starts a new tap at once.
-    pub double_strike_rise_db: f64,
-    /// The envelope must fall back within this of the floor to re-arm.
-    pub settle_db: f64,
-    /// Envelope block length.
-    pub envelope_ms: f64,
-    /// Noise-floor median window.
-    pub floor_window_ms: f64,
-}
-
-impl Default for TriggerSettings {
-    fn default() -> Self {
-        Self {
-            margin_db: 20.0,
-            pre_trigger_ms: 100.0,
-            record_ms: 1000.0,
-            refractory_ms: 100.0,
-            min_record_ms: 100.0,
-            min_ring_ms: 15.0,
-            double_strike_rise_db: 6.0,
-            settle_db: 6.0,
-            envelope_ms: 1.0,
-            floor_window_ms: 1000.0,
-        }
-    }
-}
-
-/// One strike found in the stream, accepted or not.
-#[derive(Clone, Debug, PartialEq)]
-pub struct FoundTap {
-    /// Stream position (samples since the trigger started) of the first
-    /// sample of `samples`.
-    pub start_sample: u64,
-    /// Index in `samples` of the block where the strike was detected.
-    pub onset_index: usize,
-    /// The record: `pre_trigger_ms` before the strike, up to `record_ms` after.
-    pub samples: Vec<f32>,
-    /// Loudest envelope block of the record, dB full scale.
-    pub peak_dbfs: f64,
-    /// Noise floor when the strike came, dB full scale.
-    pub floor_dbfs: f64,
-    /// Why the tap is left out, if it is.
-    pub rejected: Option<RejectReason>,
-}
-
-impl FoundTap {
-    /// Stream position of the strike.
-    pub fn onset_sample(&self) -> u64 {
-        self.start_sample + self.onset_index as u64
-    }
-
-    /// The part of the record from the strike on.
-    pub fn from_onset(&self) -> &[f32] {
-        &self.samples[self.onset_index.min(self.samples.len())..]
-    }
-}
-
-/// What the trigger reports.
-#[derive(Clone, Debug, PartialEq)]
-pub enum TriggerEvent {
-    /// A strike was detected; its record follows in a [`TriggerEvent::Tap`].
-    Started { onset_sample: u64 },
-    /// A finished tap, accepted or rejected.
-    Tap(FoundTap),
-}
 
 /// Lowest level the floor may take: digital silence must not make the
 /// trigger fire on rounding noise.
@@ -206,20 +73,8 @@ const CLIP_LEVEL: f32 = 0.99;
 /// The search for new sound starts this long after the trigger, when the
 /// first strike's contact is over and only its free decay is left.
 const NEW_SOUND_GUARD_MS: f64 = 5.0;
-/// A block of prediction error this many times (10 dB) its level of a
-/// moment before is new sound. The error of a decay, beating or not, stays
-/// at the room noise and wanders by a dB or two; a second strike, even at a
-/// third of the first's strength, lifts it by 20 dB or more.
-const NEW_SOUND_RATIO: f64 = 10.0;
-/// New sound is a second strike when it carries at least this fraction
-/// (−10 dB) of the energy that set the decay ringing, as the same
-/// predictor measures both. An early reflection of the strike from a bench
-/// or a wall (a fifth of its pressure or less at a few milliseconds, from
-/// memory) stays below; a mallet that bounces back at a third of its first
-/// strength is above.
-const SECOND_STRIKE_ENERGY_RATIO: f64 = 0.1;
 /// The strike's excitation is over once the decay envelope has made no new
-/// maximum for this long (see `look_for_second_strike`).
+/// maximum for this long (see `onset::SecondStrikeWatch`).
 const EXCITATION_GAP_MS: f64 = 2.0;
 /// Averaging time of the slow envelope used to follow the decay: 10 ms
 /// averages the power of any mode above 40 Hz to within about 1 dB
@@ -263,12 +118,8 @@ struct Recording {
     /// Fast envelope level of the block that started the record.
     trigger_level_db: f64,
     clipped: bool,
-    double: bool,
-    /// What set the decay ringing, as the first predictor of the decay
-    /// measures it (None until that predictor is fitted).
-    strike_energy: Option<f64>,
-    /// Unforetold energy of the previous block (a strike may straddle two).
-    previous_block_energy: f64,
+    /// The search for a second strike in this record.
+    watch: SecondStrikeWatch,
 }
 
 /// Streaming tap finder. Feed it samples with [`TapTrigger::push`]; call
@@ -436,11 +287,13 @@ impl TapTrigger {
             rec.clipped |= self.clip_run >= 2;
             if rec.samples.len() > rec.onset_index + self.new_sound_guard {
                 let still_rising = rec.blocks_since_loudest as f64 * block_ms < EXCITATION_GAP_MS;
-                look_for_second_strike(
+                let noise_power = 10f64.powf(rec.floor_db / 10.0);
+                let audible_power = noise_power * 10f64.powf(self.settings.margin_db / 20.0);
+                rec.watch.push(
                     &mut self.novelty,
-                    rec,
-                    &self.settings,
+                    (&rec.samples, rec.onset_index),
                     self.new_sound_guard,
+                    audible_power,
                     still_rising,
                 );
             }
@@ -606,9 +459,7 @@ impl TapTrigger {
             blocks: 1,
             trigger_level_db,
             clipped,
-            strike_energy: None,
-            previous_block_energy: 0.0,
-            double: false,
+            watch: SecondStrikeWatch::default(),
         })
     }
 
@@ -723,8 +574,7 @@ impl TapTrigger {
         rec.blocks_since_peak = 0;
         rec.loudest_db = slow_db;
         rec.blocks_since_loudest = 0;
-        rec.strike_energy = None;
-        rec.previous_block_energy = 0.0;
+        rec.watch = SecondStrikeWatch::default();
         self.novelty.reset();
         self.novelty
             .set_noise_power(10f64.powf(rec.floor_db / 10.0));
@@ -747,7 +597,7 @@ impl TapTrigger {
             .is_some_and(|blocks| self.blocks_to_ms(blocks) < self.settings.min_ring_ms);
         let rejected = if rec.clipped {
             Some(RejectReason::Clipped)
-        } else if rec.double {
+        } else if rec.watch.found_second_strike() {
             Some(RejectReason::DoubleStrike)
         } else if too_short_record || died_at_once {
             Some(RejectReason::TooShort)
@@ -780,54 +630,6 @@ impl TapTrigger {
     fn blocks_to_ms(&self, blocks: usize) -> f64 {
         blocks as f64 * self.block_len as f64 * 1000.0 / self.sample_rate_hz
     }
-}
-
-/// Feeds the newest sample of a record to the second-strike search: once
-/// the decay's first predictor is fitted it measures the strike with it,
-/// and from then on marks the record when a block brings new sound, clearly
-/// above the noise, with a good part of the strike's energy.
-///
-/// While the sound is `still_rising` (its envelope reached a new maximum
-/// within the last [`EXCITATION_GAP_MS`]), the strike's own excitation is
-/// going on: a soft mallet on a bar, or a bar whose resonator takes up the
-/// sound, keeps feeding in energy for tens of milliseconds, and no
-/// predictor fitted to the first milliseconds foretells it. What arrives
-/// then is counted into the strike's energy, not against it; a second
-/// strike comes once the sound has begun to fall. (A second strike lifts
-/// the 10 ms envelope by a tenth of its own power in its first block, which
-/// does not make a new maximum over a decay that fell for a few ms: it is
-/// judged, and found.)
-fn look_for_second_strike(
-    novelty: &mut NoveltyDetector,
-    rec: &mut Recording,
-    settings: &TriggerSettings,
-    guard: usize,
-    still_rising: bool,
-) {
-    let Some(&sample) = rec.samples.last() else {
-        return;
-    };
-    let block = novelty.push(sample);
-    if rec.strike_energy.is_none() && novelty.has_predictor() {
-        let from = rec.onset_index.saturating_sub(guard);
-        let to = (rec.onset_index + guard).min(rec.samples.len());
-        rec.strike_energy = Some(novelty.unforetold_energy(&rec.samples[from..to]));
-    }
-    let (Some(block), Some(strike_energy)) = (block, rec.strike_energy) else {
-        return;
-    };
-    let energy = block.unforetold_power * novelty.block_len() as f64;
-    if still_rising {
-        rec.strike_energy = Some(strike_energy + energy);
-        rec.previous_block_energy = 0.0;
-        return;
-    }
-    let burst = energy + rec.previous_block_energy;
-    rec.previous_block_energy = energy;
-    let noise_power = 10f64.powf(rec.floor_db / 10.0);
-    let audible = block.unforetold_power > noise_power * 10f64.powf(settings.margin_db / 20.0);
-    let strong = burst > SECOND_STRIKE_ENERGY_RATIO * strike_energy;
-    rec.double |= audible && strong && block.ratio() > NEW_SOUND_RATIO;
 }
 
 /// Finds every tap in a whole recording.
