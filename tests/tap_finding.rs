@@ -229,12 +229,13 @@ fn every_tap_of_the_demo_set_is_kept() {
     }
 }
 
-/// A slow rise: the plate's modes grow over 25 ms (a soft mallet, or a
-/// resonator taking up the sound) before they decay, 50 dB over the room
-/// noise. The 1 ms block that clears the 20 dB margin comes 1.5–3 ms after
-/// the rise starts; the record's strike is put where the sound first
-/// stands out of the noise, within 0.5 ms of the rise's known start
-/// (common practice, no source: the brief's requirement).
+/// A slow rise: the plate's modes grow linearly over 25 ms (a soft
+/// mallet, or a resonator taking up the sound) before they decay, in a
+/// noisy room (RMS 2e-3, 42 dB under the sound). The sound clears the
+/// 20 dB margin 2 ms after the rise starts, so the block that fires the
+/// trigger starts 1–2 ms late; the record's strike is put where the sound
+/// first stands out of the noise (there the rise is 0.2 ms old), within
+/// 0.5 ms of the rise's known start (common practice, no source).
 #[test]
 fn a_slow_rise_starts_where_it_leaves_the_noise() {
     let rise_s = 0.025;
@@ -251,7 +252,7 @@ fn a_slow_rise_starts_where_it_leaves_the_noise() {
             *o += s;
         }
     }
-    let report = analyze(&with_noise(x, 3e-4, 71));
+    let report = analyze(&with_noise(x, 2e-3, 71));
     assert_eq!(reasons(&report), vec![None; 3]);
     for (tap, &at_s) in report.taps.iter().zip(&starts_s) {
         let start_s = (at_s * FS).round() / FS;
