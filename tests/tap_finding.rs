@@ -306,3 +306,26 @@ fn a_start_in_digital_silence_is_no_tap() {
     assert_eq!(reasons(&report), vec![None; 2]);
     assert!((report.taps[0].onset_s - 0.4).abs() < 0.002);
 }
+
+/// A precursor loud enough to fire the trigger (a click 30 dB over the
+/// room, 3 ms before the strike: an encoder's pre-echo, a brush of the
+/// mallet) and then the strike, 40 dB louder still: the record starts
+/// again at the strike, which it measures from where it rises.
+#[test]
+fn a_loud_precursor_restarts_the_record_at_the_strike() {
+    let mut x = vec![0.0; (3.0 * FS) as usize];
+    let strike_s = 1.0;
+    let precursor = ((strike_s - 0.003) * FS) as usize;
+    let mut noise = NoiseGenerator::new(6);
+    for v in &mut x[precursor..precursor + 48] {
+        *v += 3e-3 * noise.gaussian();
+    }
+    strike(&mut x, strike_s, &plate(0.25), 0.05);
+    let report = analyze(&with_noise(x, 1e-4, 74));
+    assert_eq!(reasons(&report), vec![None]);
+    assert!(
+        (report.taps[0].onset_s - strike_s).abs() <= 0.0005,
+        "{}",
+        report.taps[0].onset_s
+    );
+}
