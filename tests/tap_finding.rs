@@ -270,21 +270,26 @@ fn a_slow_rise_starts_where_it_leaves_the_noise() {
 /// strike, not 100 ms later.
 #[test]
 fn a_precursor_is_part_of_its_strike() {
+    let onset_s = onset_after_precursor(5e-4, 5);
+    assert!((onset_s - PRECURSOR_STRIKE_S).abs() < 0.004, "{onset_s}");
+}
+
+const PRECURSOR_STRIKE_S: f64 = 1.0;
+
+/// A strike at [`PRECURSOR_STRIKE_S`] after a 1 ms burst of noise of RMS
+/// `precursor_rms` 3 ms before it, in room noise of RMS 1e-4: the onset of
+/// its one tap, which must be kept.
+fn onset_after_precursor(precursor_rms: f64, seed: u64) -> f64 {
     let mut x = vec![0.0; (3.0 * FS) as usize];
-    let strike_s = 1.0;
-    let precursor = ((strike_s - 0.003) * FS) as usize;
-    let mut noise = NoiseGenerator::new(5);
+    let precursor = ((PRECURSOR_STRIKE_S - 0.003) * FS) as usize;
+    let mut noise = NoiseGenerator::new(seed);
     for v in &mut x[precursor..precursor + 48] {
-        *v += 5e-4 * noise.gaussian();
+        *v += precursor_rms * noise.gaussian();
     }
-    strike(&mut x, strike_s, &plate(0.25), 0.05);
-    let report = analyze(&with_noise(x, 1e-4, 72));
+    strike(&mut x, PRECURSOR_STRIKE_S, &plate(0.25), 0.05);
+    let report = analyze(&with_noise(x, 1e-4, 70 + seed));
     assert_eq!(reasons(&report), vec![None]);
-    assert!(
-        (report.taps[0].onset_s - strike_s).abs() < 0.004,
-        "{}",
-        report.taps[0].onset_s
-    );
+    report.taps[0].onset_s
 }
 
 /// A recording that starts with digital silence (a decoder's priming, an
@@ -313,19 +318,6 @@ fn a_start_in_digital_silence_is_no_tap() {
 /// again at the strike, which it measures from where it rises.
 #[test]
 fn a_loud_precursor_restarts_the_record_at_the_strike() {
-    let mut x = vec![0.0; (3.0 * FS) as usize];
-    let strike_s = 1.0;
-    let precursor = ((strike_s - 0.003) * FS) as usize;
-    let mut noise = NoiseGenerator::new(6);
-    for v in &mut x[precursor..precursor + 48] {
-        *v += 3e-3 * noise.gaussian();
-    }
-    strike(&mut x, strike_s, &plate(0.25), 0.05);
-    let report = analyze(&with_noise(x, 1e-4, 74));
-    assert_eq!(reasons(&report), vec![None]);
-    assert!(
-        (report.taps[0].onset_s - strike_s).abs() <= 0.0005,
-        "{}",
-        report.taps[0].onset_s
-    );
+    let onset_s = onset_after_precursor(3e-3, 6);
+    assert!((onset_s - PRECURSOR_STRIKE_S).abs() <= 0.0005, "{onset_s}");
 }

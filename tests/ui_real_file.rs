@@ -16,7 +16,6 @@ use common::*;
 use egui_kittest::kittest::Queryable;
 use std::path::Path;
 use std::process::Command;
-use tapwright::ui::SourceState;
 
 /// A bar, a wood block and a xylophone bar, of different channels.
 const FILES: [&str; 3] = [
@@ -53,15 +52,7 @@ fn the_window_lists_what_analyze_lists_for_a_real_file() {
 
         let mut harness = demo_harness();
         harness.run_ok();
-        let field = harness.get_by_label("Path");
-        field.focus();
-        field.type_text(&path.display().to_string());
-        harness.run_ok();
-        harness.get_by_label("Open").click();
-        let expected = SourceState::File(path.clone());
-        step_until(&mut harness, "the opened recording", |app| {
-            app.input().state == expected && !app.is_busy()
-        });
+        open_by_path(&mut harness, &path);
         let app = harness.state();
 
         let taps = app.session().taps();

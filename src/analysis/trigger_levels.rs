@@ -117,7 +117,7 @@ pub(super) fn power_to_db(mean_square: f64) -> f64 {
 /// noise, not where it clears the trigger margin milliseconds later.
 /// Returns an index into `samples`; None without noise or samples.
 pub(super) fn strike_start(samples: &[f32], noise_power: f64) -> Option<usize> {
-    if samples.is_empty() || !(noise_power > 0.0) || !noise_power.is_finite() {
+    if samples.is_empty() || !noise_power.is_finite() || noise_power <= 0.0 {
         return None;
     }
     let ratio = RISE_POWER_RATIO;
