@@ -320,8 +320,9 @@ impl SecondStrikeWatch {
     /// `onset_index`) to the search: once the decay's first predictor is
     /// fitted it measures the strike with it (over `guard` samples either
     /// side of the onset), and from then on a block that brings new sound,
-    /// above `audible_power`, with a good part of the strike's energy, is a
-    /// second strike.
+    /// `audible_ratio` times above what the room noise alone leaves through
+    /// the predictor, with a good part of the strike's energy, is a second
+    /// strike.
     ///
     /// While the sound is `still_rising` (its envelope made a new maximum
     /// a moment ago), the strike's own excitation is going on: a soft
@@ -338,7 +339,7 @@ impl SecondStrikeWatch {
         novelty: &mut NoveltyDetector,
         (record, onset_index): (&[f32], usize),
         guard: usize,
-        audible_power: f64,
+        audible_ratio: f64,
         still_rising: bool,
     ) {
         let Some(&sample) = record.last() else {
@@ -361,7 +362,7 @@ impl SecondStrikeWatch {
         }
         let burst = energy + self.previous_block_energy;
         self.previous_block_energy = energy;
-        let audible = block.unforetold_power > audible_power;
+        let audible = block.unforetold_power > audible_ratio * novelty.noise_error_power();
         let strong = burst > SECOND_STRIKE_ENERGY_RATIO * strike_energy;
         self.found |= audible && strong && block.ratio() > NEW_SOUND_RATIO;
     }

@@ -43,8 +43,9 @@ const WARM_UP_MS: f64 = 100.0;
 /// A block below this is digital silence (exact zeros, or the rounding of
 /// a decoder's priming), far under any real room (a 24-bit converter's own
 /// noise is near −140 dBFS over the audio band, a quiet room through a
-/// microphone -90 or above; from memory): it is neither room noise for
-/// the floor nor part of the warm-up.
+/// microphone −90 or above; from memory): it is not room noise, and the
+/// floor is not learned from it (while nothing else has been heard, the
+/// floor is the lowest it may be).
 const DIGITAL_SILENCE_DBFS: f64 = -130.0;
 /// A rise that stays under the margin is only reported as too quiet once
 /// this long has passed without a strike: an encoder's pre-echo (AAC, MP3)
@@ -150,7 +151,9 @@ pub struct TapTrigger {
     /// Fast envelope levels of the last blocks, newest last (for the
     /// search of a strike's start).
     recent_levels: VecDeque<f64>,
-    /// Blocks of room noise heard (digital silence not counted).
+    /// Blocks heard, and those of them that were room noise (not digital
+    /// silence).
+    blocks_heard: usize,
     noise_blocks: usize,
     /// The last block powers, for the slow envelope.
     recent_powers: VecDeque<f64>,
@@ -192,6 +195,7 @@ impl TapTrigger {
             state: State::Armed,
             pending_quiet: None,
             recent_levels: VecDeque::new(),
+            blocks_heard: 0,
             noise_blocks: 0,
         }
     }
@@ -215,11 +219,11 @@ impl TapTrigger {
         let history = std::mem::take(&mut self.history);
         let pending_quiet = self.pending_quiet.take();
         let recent_levels = std::mem::take(&mut self.recent_levels);
-        let noise_blocks = self.noise_blocks;
+        let (blocks_heard, noise_blocks) = (self.blocks_heard, self.noise_blocks);
         *self = Self::new(settings, self.sample_rate_hz);
         self.pending_quiet = pending_quiet;
         self.recent_levels = recent_levels;
-        self.noise_blocks = noise_blocks;
+        (self.blocks_heard, self.noise_blocks) = (blocks_heard, noise_blocks);
         self.floor = floor;
         self.position = position;
         self.dc_blocker = dc_blocker;
@@ -241,8 +245,16 @@ impl TapTrigger {
     /// Current noise floor estimate in dB full scale (None while warming up).
     pub fn floor_dbfs(&self) -> Option<f64> {
         let warm_up_blocks = (WARM_UP_MS / self.block_ms()).round() as usize;
-        (self.noise_blocks >= warm_up_blocks.max(1))
-            .then(|| self.floor.median_db().max(FLOOR_MIN_DBFS))
+        if self.blocks_heard < warm_up_blocks.max(1) {
+            return None;
+        }
+        // Nothing but digital silence so far (a clean 8-bit file, a gated
+        // input): the lowest floor, so that a strike still fires.
+        Some(if self.noise_blocks == 0 {
+            FLOOR_MIN_DBFS
+        } else {
+            self.floor.median_db().max(FLOOR_MIN_DBFS)
+        })
     }
 
     /// True while a strike is being recorded.
@@ -287,13 +299,11 @@ impl TapTrigger {
             rec.clipped |= self.clip_run >= 2;
             if rec.samples.len() > rec.onset_index + self.new_sound_guard {
                 let still_rising = rec.blocks_since_loudest as f64 * block_ms < EXCITATION_GAP_MS;
-                let noise_power = 10f64.powf(rec.floor_db / 10.0);
-                let audible_power = noise_power * 10f64.powf(self.settings.margin_db / 20.0);
                 rec.watch.push(
                     &mut self.novelty,
                     (&rec.samples, rec.onset_index),
                     self.new_sound_guard,
-                    audible_power,
+                    10f64.powf(self.settings.margin_db / 20.0),
                     still_rising,
                 );
             }
@@ -350,6 +360,7 @@ impl TapTrigger {
 
     /// Room noise for the floor; digital silence is not.
     fn learn_floor(&mut self, level_db: f64) {
+        self.blocks_heard += 1;
         if level_db > DIGITAL_SILENCE_DBFS {
             self.floor.push(level_db);
             self.noise_blocks += 1;
@@ -537,7 +548,8 @@ impl TapTrigger {
     /// Where the strike whose block just crossed the margin starts in
     /// `samples` (the pre-trigger history, ending with that block): the
     /// change point out of the room noise ([`strike_start`]), searched from
-    /// a little before the last block that was still at the noise. When the
+    /// a little before the last block that was still near the noise, out of
+    /// the level there (the noise, or a tail just above it). When the
     /// sound before never fell back to the noise within [`RISE_SEARCH_MS`]
     /// (a strike on a decay that has not died), the start of the block.
     fn rise_start(&self, samples: &[f32], floor_db: f64) -> usize {
@@ -554,7 +566,14 @@ impl TapTrigger {
         let from = samples
             .len()
             .saturating_sub((blocks_back + 1) * self.block_len + pad);
-        let noise_power = 10f64.powf(floor_db / 10.0);
+        // What the rise rises out of: the room noise, or the tail of an
+        // earlier tap that is still a little above it (the change point is
+        // then where the sound clearly rises over that tail).
+        let quiet_end = (samples.len() - (blocks_back * self.block_len)).max(from);
+        let quiet = &samples[from..quiet_end];
+        let quiet_power =
+            quiet.iter().map(|&x| f64::from(x).powi(2)).sum::<f64>() / quiet.len().max(1) as f64;
+        let noise_power = 10f64.powf(floor_db / 10.0).max(quiet_power);
         strike_start(&samples[from..], noise_power).map_or(block_start, |at| from + at)
     }
 
