@@ -7,9 +7,14 @@
 //!
 //! - envelope: RMS over blocks of about 1 ms;
 //! - noise floor: running median of the block levels over about 1 s, updated
-//!   only while armed;
-//! - trigger when a block rises `margin_db` above the floor; the record starts
-//!   `pre_trigger_ms` before that block and runs `record_ms` after it;
+//!   only while armed, first given after 100 ms, never learned from digital
+//!   silence (`trigger_levels`);
+//! - trigger when a block rises `margin_db` above the floor; the strike is
+//!   put where its rise leaves the noise (a change point, sample-accurate,
+//!   so a slow rise is not placed late); the record keeps `pre_trigger_ms`
+//!   before that block and runs `record_ms` after the strike; a block
+//!   louder by the margin within the first 5 ms starts the record again
+//!   there (what fired the trigger was the strike's precursor);
 //! - before anything else, a DC blocker (two first-order high-pass stages at
 //!   5 Hz, started on the first sample) takes out any constant or drifting
 //!   offset of the input, so records, levels and the analysis see only
@@ -19,7 +24,8 @@
 //!   ≥ 99 % of full scale), double strike (sound that the decay so far does
 //!   not foretell arrives during the record; see `onset`: a beating pair
 //!   rises and falls but stays foretold, a second strike does not), too
-//!   quiet (a rise that clears half the margin but never the margin), too
+//!   quiet (a rise that clears half the margin but never the margin, and
+//!   no strike within the 10 ms after it: a pre-echo belongs to its strike), too
 //!   short (the record ends before `min_record_ms`, or the ringing dies
 //!   within `min_ring_ms`);
 //! - re-arm only after `refractory_ms` and once the envelope is back within
