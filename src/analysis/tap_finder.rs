@@ -69,6 +69,11 @@ const RISE_SEARCH_PAD_MS: f64 = 3.0;
 /// encoder's pre-echo, a brush of the mallet): the record starts again
 /// there.
 const RESTART_WITHIN_MS: f64 = NEW_SOUND_GUARD_MS;
+/// ... provided the sound paused or fell back in between (no block since
+/// the trigger more than this above the one that fired it): a strike's
+/// own rise, which can climb 20 dB within a few milliseconds after its
+/// first block barely cleared the margin, keeps rising.
+const PRECURSOR_PAUSE_DB: f64 = 3.0;
 /// Time after the envelope peak during which the strike itself is still
 /// going on, so rises are not double strikes.
 const CONTACT_MS: f64 = 4.0;
@@ -124,6 +129,9 @@ struct Recording {
     blocks: usize,
     /// Fast envelope level of the block that started the record.
     trigger_level_db: f64,
+    /// Quietest fast level since that block (a precursor falls back or
+    /// pauses before its strike; a strike's own rise does not).
+    quietest_since_trigger_db: f64,
     clipped: bool,
     /// The search for a second strike in this record.
     watch: SecondStrikeWatch,
@@ -475,6 +483,7 @@ impl TapTrigger {
             died_after_blocks: None,
             blocks: 1,
             trigger_level_db,
+            quietest_since_trigger_db: f64::INFINITY,
             clipped,
             watch: SecondStrikeWatch::default(),
         })
@@ -492,8 +501,11 @@ impl TapTrigger {
         rec.blocks += 1;
         if self.blocks_to_ms(rec.blocks) <= RESTART_WITHIN_MS
             && level_db > rec.trigger_level_db + self.settings.margin_db
+            && rec.quietest_since_trigger_db <= rec.trigger_level_db + PRECURSOR_PAUSE_DB
         {
             self.restart_record(&mut rec, level_db, slow_db);
+        } else {
+            rec.quietest_since_trigger_db = rec.quietest_since_trigger_db.min(level_db);
         }
         if slow_db > rec.loudest_db {
             rec.loudest_db = slow_db;
@@ -594,6 +606,7 @@ impl TapTrigger {
         rec.target_len =
             rec.onset_index + ms_to_samples(self.settings.record_ms, self.sample_rate_hz);
         rec.trigger_level_db = level_db;
+        rec.quietest_since_trigger_db = f64::INFINITY;
         rec.blocks = 1;
         rec.peak_db = slow_db;
         rec.blocks_since_peak = 0;
