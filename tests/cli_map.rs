@@ -239,7 +239,11 @@ fn every_bad_input_is_one_sentence_naming_the_row() {
         (
             format!("{HEADER}{TWO_GOOD_ROWS}3C,0,10,notes.wav\n"),
             vec![],
-            vec!["line 4 (point 3C)", "notes.wav", "not a recording tapwright can read"],
+            vec![
+                "line 4 (point 3C)",
+                "notes.wav",
+                "not a recording tapwright can read",
+            ],
         ),
         (
             format!("{HEADER}{TWO_GOOD_ROWS}3C,0,10,quiet.wav\n"),

@@ -35,6 +35,14 @@ pub(super) struct BandNoise {
 
 /// Levenberg–Marquardt iterations at most.
 const MAX_ITERATIONS: usize = 12;
+/// The refit stops when a step lowers the residual energy by less than
+/// this many residual variances (residual energy per degree of freedom):
+/// moving the poles by one standard deviation of their estimate changes
+/// the residual by one variance (the χ² surface's unit), so such a step
+/// moved them by well under a tenth of that and the next ones, converging
+/// quadratically, by far less (common practice in least squares, e.g.
+/// W. H. Press and others, Numerical Recipes, 3rd ed., §15.5.2).
+const NEGLIGIBLE_GAIN: f64 = 0.01;
 /// Largest step in decay or angle per decimated sample: a pole never moves
 /// more than this in one iteration.
 const MAX_STEP: f64 = 0.2;
@@ -79,6 +87,7 @@ pub(super) fn refine(y: &[Complex64], initial: &[Complex64]) -> Option<Fit> {
     if p == 0 {
         return Some(fit);
     }
+    let dof = y.len().saturating_sub(2 * p).max(1) as f64;
     let mut lambda = 1e-3;
     for _ in 0..MAX_ITERATIONS {
         let (jtj, jtr) = projected_normal_equations(y, &fit);
@@ -104,11 +113,12 @@ pub(super) fn refine(y: &[Complex64], initial: &[Complex64]) -> Option<Fit> {
                 .collect();
             match fit_amplitudes(y, &trial_poles) {
                 Some(trial) if trial.residual_energy < fit.residual_energy => {
-                    let relative = (fit.residual_energy - trial.residual_energy)
-                        / fit.residual_energy.max(1e-300);
+                    let gain = fit.residual_energy - trial.residual_energy;
+                    let relative = gain / fit.residual_energy.max(1e-300);
+                    let resolution = NEGLIGIBLE_GAIN * trial.residual_energy / dof;
                     fit = trial;
                     lambda = (lambda * 0.3).max(1e-9);
-                    improved = relative > 1e-10;
+                    improved = relative > 1e-10 && gain > resolution;
                     break;
                 }
                 _ => lambda *= 10.0,
