@@ -15,10 +15,11 @@
 //!    number of decimated samples.
 //! 3. In each band (`bands`: FFT-domain filtering and decimation), the
 //!    matrix pencil (`subspace`; Hua & Sarkar 1990) with its model order
-//!    from the singular values against the band's measured noise, then one
-//!    joint variable-projection refit of the band's poles and backward
-//!    elimination by the information criterion (`varpro`; Golub & Pereyra
-//!    2003, Schwarz 1978). Decay comes from the pole's magnitude,
+//!    from the singular values against the band's measured noise, then
+//!    backward elimination by the information criterion with the pencil's
+//!    poles held fixed (linear least squares for the amplitudes) and one
+//!    joint variable-projection refit of the poles that stay (`varpro`;
+//!    Schwarz 1978, Golub & Pereyra 2003). Decay comes from the pole's magnitude,
 //!    α = −ln|z|·fs.
 //! 4. A band keeps only the poles it owns (those in its central quarter)
 //!    that live longer than [`MIN_TAU_DECIMATED`] of its samples;
@@ -46,7 +47,7 @@ use super::noise::NoiseProfile;
 use super::spectrum::{DisplaySpectrum, SpectrumMaker};
 use super::subspace::pencil_poles;
 use super::tap_finder::FoundTap;
-use super::varpro::{prune, refine, BandNoise};
+use super::varpro::{fit_amplitudes, prune, refine, BandNoise};
 
 /// What to look for in a tap.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
@@ -354,7 +355,9 @@ impl TapAnalyzer {
         if initial.is_empty() {
             return Some(Vec::new());
         }
-        let fit = refine(&band.samples, &initial)?;
+        // Amplitudes for the pencil's poles; order and the final poles
+        // from `prune` (elimination with the poles fixed, then one refit).
+        let fit = fit_amplitudes(&band.samples, &initial)?;
         let noise = BandNoise {
             variance: band.noise_var,
             taper_fill: band.taper_fill,

@@ -131,42 +131,41 @@ pub(super) fn refine(y: &[Complex64], initial: &[Complex64]) -> Option<Fit> {
     Some(fit)
 }
 
-/// Backward elimination: drops, one at a time, the pole whose removal
-/// costs the fit least, while that cost is under the information
-/// criterion's price of a pole (4·ln(N)·σ² for `observations` = N),
-/// refitting the amplitudes after each and the poles once at the end. σ² is the larger of the room noise (`noise`) and
-/// what the largest model, `fit` as given, leaves per degree of freedom
-/// (the variance of the full model's residual, as Mallows' Cp takes it:
-/// C. L. Mallows, Technometrics 15(4), 1973): on a real strike the
-/// residual also holds what no sum of exponentials models (reverberation,
-/// the strike's own sound), which a pole must not be spent on.
+/// Model order and the final poles of one band: backward elimination with
+/// the poles held where `fit` has them, then one joint refit of the poles
+/// that stayed.
+///
+/// The elimination drops, one at a time, the pole whose removal costs the
+/// fit least, while that cost is under the information criterion's price
+/// of a pole (4·ln(N)·σ² for `observations` = N); with the poles fixed each
+/// trial is a linear least-squares problem for the amplitudes, so it costs
+/// a p×p solve, not a refit. σ² is the larger of the room noise (`noise`)
+/// and what the largest model, `fit` as given, leaves per degree of
+/// freedom (the variance of the full model's residual, as Mallows' Cp
+/// takes it: C. L. Mallows, Technometrics 15(4), 1973): on a real strike
+/// the residual also holds what no sum of exponentials models
+/// (reverberation, the strike's own sound), which a pole must not be spent
+/// on. The refit of the survivors follows ([`refine`]); a single pole left
+/// must still pay for itself against the empty model.
 pub(super) fn prune(y: &[Complex64], mut fit: Fit, noise: &BandNoise) -> Fit {
     let dof = y.len().saturating_sub(2 * fit.poles.len()).max(1) as f64;
     let left = fit.residual_energy / dof / noise.taper_fill.max(1e-9);
     let price = 4.0 * (noise.observations.max(2) as f64).ln() * noise.variance.max(left);
-    let mut removed = false;
     while fit.poles.len() > 1 {
         let cheapest = (0..fit.poles.len())
             .filter_map(|i| {
                 let mut rest = fit.poles.clone();
                 rest.remove(i);
                 let reduced = fit_amplitudes(y, &rest)?;
-                Some((reduced.residual_energy - fit.residual_energy, rest))
+                Some((reduced.residual_energy - fit.residual_energy, reduced))
             })
             .min_by(|a, b| a.0.total_cmp(&b.0));
         match cheapest {
-            Some((cost, rest)) if cost < price => {
-                fit = fit_amplitudes(y, &rest).unwrap_or(fit);
-                removed = true;
-            }
+            Some((cost, reduced)) if cost < price => fit = reduced,
             _ => break,
         }
     }
-    if removed {
-        // One joint refit of the poles that stayed (they were fitted with
-        // the others beside them).
-        fit = refine(y, &fit.poles.clone()).unwrap_or(fit);
-    }
+    fit = refine(y, &fit.poles.clone()).unwrap_or(fit);
     if fit.poles.len() == 1 {
         let energy: f64 = y.iter().map(|v| v.norm_sqr()).sum();
         if energy - fit.residual_energy < price {
@@ -351,7 +350,7 @@ mod tests {
         let noise = 1e-3;
         let y = sequence(&truth, 64, noise, 2);
         let spare = [truth[0].0, Complex64::from_polar(0.9, -0.8)];
-        let fit = refine(&y, &spare).expect("fit");
+        let fit = fit_amplitudes(&y, &spare).expect("fit");
         let band_noise = BandNoise {
             variance: noise * noise,
             taper_fill: 1.0,
