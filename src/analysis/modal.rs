@@ -141,6 +141,12 @@ const RESOLVED_WITHIN: f64 = 0.2;
 /// The band was matched to a mode 16 samples long; a mode four times
 /// faster than that would make its own, wider peak and band.
 const MIN_TAU_DECIMATED: f64 = 4.0;
+/// Bands fitted per tap, beyond one per listed mode (`max_modes`): the
+/// candidates are taken strongest first, and these few spare bands cover
+/// candidates whose band finds nothing to list (a hump of the strike's
+/// own sound, a skirt). This caps the cost of a tap whatever the signal
+/// (tapwright's choice, no source).
+const EXTRA_BANDS: usize = 4;
 /// A band is refitted when the decay it finds asks for a span more than
 /// this factor longer or shorter than the one it had.
 const SPAN_MISMATCH: f64 = 2.0;
@@ -281,10 +287,15 @@ impl TapAnalyzer {
         let fs = self.sample_rate_hz;
         let len = self.decay.len();
         let mut kept: Vec<Found> = Vec::new();
+        let mut bands_left = self.settings.max_modes + EXTRA_BANDS;
         for candidate in candidates {
             if kept.iter().any(|f| explains(f, candidate, fs)) {
                 continue;
             }
+            if bands_left == 0 {
+                break;
+            }
+            bands_left -= 1;
             for found in self.fit_candidate(candidate) {
                 merge(&mut kept, found);
             }

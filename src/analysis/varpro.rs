@@ -151,21 +151,8 @@ pub(super) fn prune(y: &[Complex64], mut fit: Fit, noise: &BandNoise) -> Fit {
     let dof = y.len().saturating_sub(2 * fit.poles.len()).max(1) as f64;
     let left = fit.residual_energy / dof / noise.taper_fill.max(1e-9);
     let price = 4.0 * (noise.observations.max(2) as f64).ln() * noise.variance.max(left);
-    while fit.poles.len() > 1 {
-        let cheapest = (0..fit.poles.len())
-            .filter_map(|i| {
-                let mut rest = fit.poles.clone();
-                rest.remove(i);
-                let reduced = fit_amplitudes(y, &rest)?;
-                Some((reduced.residual_energy - fit.residual_energy, reduced))
-            })
-            .min_by(|a, b| a.0.total_cmp(&b.0));
-        match cheapest {
-            Some((cost, reduced)) if cost < price => fit = reduced,
-            _ => break,
-        }
-    }
-    fit = refine(y, &fit.poles.clone()).unwrap_or(fit);
+    let kept = eliminate(y, &fit.poles, price);
+    fit = refine(y, &kept).unwrap_or(fit);
     if fit.poles.len() == 1 {
         let energy: f64 = y.iter().map(|v| v.norm_sqr()).sum();
         if energy - fit.residual_energy < price {
@@ -177,6 +164,53 @@ pub(super) fn prune(y: &[Complex64], mut fit: Fit, noise: &BandNoise) -> Fit {
         }
     }
     fit
+}
+
+/// The poles that stay after backward elimination with the poles fixed:
+/// the Gram matrix and Φᴴy are formed once, and the residual of any subset
+/// S follows from them as ‖y‖² − Re(rₛᴴ·Gₛₛ⁻¹·rₛ), a |S|×|S| solve.
+fn eliminate(y: &[Complex64], poles: &[Complex64], price: f64) -> Vec<Complex64> {
+    let p = poles.len();
+    if p < 2 {
+        return poles.to_vec();
+    }
+    let basis = vandermonde(poles, y.len());
+    let (gram, rhs) = normal_equations(&basis, y, p);
+    let energy: f64 = y.iter().map(|v| v.norm_sqr()).sum();
+    let residual_of = |subset: &[usize]| -> Option<f64> {
+        let q = subset.len();
+        let sub_gram: Vec<Complex64> = subset
+            .iter()
+            .flat_map(|&i| subset.iter().map(move |&j| (i, j)))
+            .map(|(i, j)| gram[i * p + j])
+            .collect();
+        let sub_rhs: Vec<Complex64> = subset.iter().map(|&i| rhs[i]).collect();
+        let x = solve_hermitian(&sub_gram, &sub_rhs, q)?;
+        let explained: f64 = sub_rhs.iter().zip(&x).map(|(r, v)| (r.conj() * v).re).sum();
+        Some(energy - explained)
+    };
+    let mut active: Vec<usize> = (0..p).collect();
+    let Some(mut current) = residual_of(&active) else {
+        return poles.to_vec();
+    };
+    while active.len() > 1 {
+        let cheapest = (0..active.len())
+            .filter_map(|drop| {
+                let mut rest = active.clone();
+                rest.remove(drop);
+                let left = residual_of(&rest)?;
+                Some((left - current, left, rest))
+            })
+            .min_by(|a, b| a.0.total_cmp(&b.0));
+        match cheapest {
+            Some((cost, left, rest)) if cost < price => {
+                active = rest;
+                current = left;
+            }
+            _ => break,
+        }
+    }
+    active.iter().map(|&i| poles[i]).collect()
 }
 
 /// Columns wᵢᵏ, stored column after column.
