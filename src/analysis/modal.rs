@@ -197,6 +197,16 @@ pub struct TapAnalyzer {
     spectra: DecaySpectra,
     noise: NoiseProfile,
     decay: Vec<f32>,
+    /// The bands fitted to the current tap.
+    covers: Vec<BandCover>,
+}
+
+/// Where a fitted band lies: what it owns and the span it had.
+#[derive(Clone, Copy, Debug)]
+struct BandCover {
+    centre_hz: f64,
+    owned_half_width_hz: f64,
+    span: usize,
 }
 
 impl TapAnalyzer {
@@ -208,6 +218,7 @@ impl TapAnalyzer {
             spectra: DecaySpectra::new(sample_rate_hz),
             noise: NoiseProfile::default(),
             decay: Vec::new(),
+            covers: Vec::new(),
         }
     }
 
@@ -287,6 +298,7 @@ impl TapAnalyzer {
         let fs = self.sample_rate_hz;
         let len = self.decay.len();
         let mut kept: Vec<Found> = Vec::new();
+        self.covers.clear();
         let mut bands_left = self.settings.max_modes + EXTRA_BANDS;
         for candidate in candidates {
             if kept.iter().any(|f| explains(f, candidate, fs)) {
@@ -294,6 +306,9 @@ impl TapAnalyzer {
             }
             if bands_left == 0 {
                 break;
+            }
+            if self.covered(candidate) {
+                continue;
             }
             bands_left -= 1;
             for found in self.fit_candidate(candidate) {
@@ -317,6 +332,21 @@ impl TapAnalyzer {
             }
         }
         kept
+    }
+
+    /// A band already fitted serves a candidate that lies in its owned
+    /// part and whose own width asks for a span within [`SPAN_MISMATCH`]
+    /// of the band's: its poles there are already in the list (a peak
+    /// they leave unexplained gets the single-pole stand-in of step 6).
+    fn covered(&self, candidate: &Candidate) -> bool {
+        let fs = self.sample_rate_hz;
+        let width_hz = candidate.half_power_width_hz.max(2.0 * candidate.bin_hz);
+        let wanted = self.span_for(PI * width_hz / fs) as f64;
+        self.covers.iter().any(|cover| {
+            let ratio = wanted / cover.span as f64;
+            (candidate.frequency_hz - cover.centre_hz).abs() <= cover.owned_half_width_hz
+                && (1.0 / SPAN_MISMATCH..=SPAN_MISMATCH).contains(&ratio)
+        })
     }
 
     /// The band of one candidate, refitted once if its main pole's decay
@@ -361,7 +391,13 @@ impl TapAnalyzer {
 
     /// The poles a band owns, with their full-rate amplitudes.
     fn fit_band(&mut self, candidate: &Candidate, span: usize) -> Option<Vec<Found>> {
+        let fs = self.sample_rate_hz;
         let band = self.band(candidate.frequency_hz, span)?;
+        self.covers.push(BandCover {
+            centre_hz: band.centre_rad * fs / (2.0 * PI),
+            owned_half_width_hz: band.owned_half_width_rad * fs / (2.0 * PI),
+            span,
+        });
         let initial = pencil_poles(&band.samples, band.noise_var);
         if initial.is_empty() {
             return Some(Vec::new());
