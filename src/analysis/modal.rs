@@ -59,7 +59,8 @@ pub struct AnalysisSettings {
     pub band_high_hz: f64,
     /// At most this many modes per tap (the strongest).
     pub max_modes: usize,
-    /// A candidate peak must stand this far above the median level of the band.
+    /// A candidate peak must stand this far above the room noise (measured
+    /// before the strike) at its frequency.
     pub min_above_floor_db: f64,
     /// A candidate peak must stand this far above the dips that separate it
     /// from higher peaks.
@@ -253,7 +254,14 @@ impl TapAnalyzer {
         } else {
             self.measure_noise(record, onset_index, offset);
             self.spectra.transform(&self.decay);
-            let candidates = find_candidates(&self.spectra.decay_power(), &self.settings);
+            // White noise of variance σ² reads 4σ²/L in the decay's
+            // spectrum of L samples (its scale: a sinusoid of amplitude A
+            // reads A²).
+            let per_bin = 4.0 / self.decay.len() as f64;
+            let noise = &self.noise;
+            let noise_power = |hz: f64| (per_bin * noise.density_at(hz)) as f32;
+            let candidates =
+                find_candidates(&self.spectra.decay_power(), &self.settings, noise_power);
             let found = self.estimate(&candidates);
             self.to_modes(found)
         };
