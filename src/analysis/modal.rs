@@ -45,7 +45,7 @@ use super::bands::{BandRequest, BandSignal, DecaySpectra};
 use super::candidates::{find_candidates, Candidate};
 use super::noise::NoiseProfile;
 use super::spectrum::{DisplaySpectrum, SpectrumMaker};
-use super::subspace::pencil_poles;
+use super::subspace::{pencil_poles, MIN_PENCIL_SAMPLES};
 use super::tap_finder::FoundTap;
 use super::varpro::{fit_amplitudes, prune, refine, BandNoise};
 
@@ -406,19 +406,25 @@ impl TapAnalyzer {
             owned_half_width_hz: band.owned_half_width_rad * fs / (2.0 * PI),
             span,
         });
-        let initial = pencil_poles(&band.samples, band.noise_var);
+        // The model holds from the band's own envelope maximum on: before
+        // it, the mode is still being fed (a soft mallet, a bar's
+        // resonator, early reflections adding copies of it), and fitting
+        // that rise would take spare poles.
+        let start = envelope_peak(&band.samples);
+        let samples = &band.samples[start..];
+        let initial = pencil_poles(samples, band.noise_var);
         if initial.is_empty() {
             return Some(Vec::new());
         }
         // Amplitudes for the pencil's poles; order and the final poles
         // from `prune` (elimination with the poles fixed, then one refit).
-        let fit = fit_amplitudes(&band.samples, &initial)?;
+        let fit = fit_amplitudes(samples, &initial)?;
         let noise = BandNoise {
             variance: band.noise_var,
             taper_fill: band.taper_fill,
             observations: self.decay.len(),
         };
-        let fit = prune(&band.samples, fit, &noise);
+        let fit = prune(samples, fit, &noise);
         let len = self.decay.len();
         let owned: Vec<Found> = fit
             .poles
@@ -430,7 +436,9 @@ impl TapAnalyzer {
                 let offset = (z.arg() - band.centre_rad).abs();
                 (offset <= band.owned_half_width_rad).then(|| Found {
                     z,
-                    c: b / band.gain(z),
+                    // b is the amplitude at samples[start]; back to the
+                    // band's first sample, then to the full rate.
+                    c: b * w.powi(-(start as i32)) / band.gain(z),
                     centrality: offset / band.owned_half_width_rad,
                     span: band.span_samples(),
                     band_peak: 0.0,
@@ -513,6 +521,33 @@ impl TapAnalyzer {
             .collect()
     }
 }
+
+/// Where the free decay of a band starts: its largest sample within the
+/// first [`RISE_SEARCH_FRACTION`] of the band (a mode fed for 20–50 ms by
+/// a soft mallet or a resonator; the rest of the span is left to fit).
+fn envelope_peak(samples: &[Complex64]) -> usize {
+    let search = (samples.len() / RISE_SEARCH_FRACTION)
+        .min(samples.len().saturating_sub(MIN_FITTED_SAMPLES))
+        .max(1);
+    samples[..search.min(samples.len())]
+        .iter()
+        .enumerate()
+        .fold((0, 0.0), |best, (i, v)| {
+            if v.norm_sqr() > best.1 {
+                (i, v.norm_sqr())
+            } else {
+                best
+            }
+        })
+        .0
+}
+
+/// See [`envelope_peak`]: a third of the band at most is searched, so two
+/// thirds, and at least [`MIN_FITTED_SAMPLES`], are always fitted
+/// (tapwright's choice, no source).
+const RISE_SEARCH_FRACTION: usize = 3;
+/// What the subspace stage needs at its largest order.
+const MIN_FITTED_SAMPLES: usize = MIN_PENCIL_SAMPLES;
 
 /// A pole explains a candidate peak when it lies within the peak's half
 /// width (or one and a half bins) of it.

@@ -46,13 +46,15 @@ pub(super) const MAX_ORDER: usize = 6;
 /// directions to tell them from (tapwright's choice, see the module notes).
 const PENCIL_LEN: usize = 3 * MAX_ORDER;
 const COLUMNS: usize = PENCIL_LEN + 1;
+/// Shortest sequence the pencil takes: at least two rows per pole beyond
+/// the pencil.
+pub(super) const MIN_PENCIL_SAMPLES: usize = PENCIL_LEN + 2 * MAX_ORDER;
 
 /// Poles (decimated) of the sequence `y`, whose noise has variance
 /// `noise_var` per sample. Empty when nothing stands above the noise.
 pub(super) fn pencil_poles(y: &[Complex64], noise_var: f64) -> Vec<Complex64> {
     let n = y.len();
-    // At least two rows per pole beyond the pencil.
-    if n < PENCIL_LEN + 2 * MAX_ORDER {
+    if n < MIN_PENCIL_SAMPLES {
         return Vec::new();
     }
     let rows = n - PENCIL_LEN;
