@@ -142,11 +142,12 @@ const RESOLVED_WITHIN: f64 = 0.2;
 /// The band was matched to a mode 16 samples long; a mode four times
 /// faster than that would make its own, wider peak and band.
 const MIN_TAU_DECIMATED: f64 = 4.0;
-/// Bands fitted per tap, beyond one per listed mode (`max_modes`): the
-/// candidates are taken strongest first, and these few spare bands cover
-/// candidates whose band finds nothing to list (a hump of the strike's
-/// own sound, a skirt). This caps the cost of a tap whatever the signal
-/// (tapwright's choice, no source).
+/// Bands fitted per tap (every band: a candidate's, its refit at another
+/// span, a single-pole stand-in), beyond one per listed mode
+/// (`max_modes`): the candidates are taken strongest first, and these few
+/// spare bands cover candidates whose band finds nothing to list (a hump
+/// of the strike's own sound, a skirt). This caps the cost of a tap
+/// whatever the signal (tapwright's choice, no source).
 const EXTRA_BANDS: usize = 4;
 /// A band is refitted when the decay it finds asks for a span more than
 /// this factor longer or shorter than the one it had.
@@ -200,6 +201,9 @@ pub struct TapAnalyzer {
     decay: Vec<f32>,
     /// The bands fitted to the current tap.
     covers: Vec<BandCover>,
+    /// Bands the current tap may still use (every band counts: a
+    /// candidate's, its refit at another span, a single-pole stand-in).
+    bands_left: usize,
 }
 
 /// Where a fitted band lies: what it owns and the span it had.
@@ -220,6 +224,7 @@ impl TapAnalyzer {
             noise: NoiseProfile::default(),
             decay: Vec::new(),
             covers: Vec::new(),
+            bands_left: 0,
         }
     }
 
@@ -307,18 +312,17 @@ impl TapAnalyzer {
         let len = self.decay.len();
         let mut kept: Vec<Found> = Vec::new();
         self.covers.clear();
-        let mut bands_left = self.settings.max_modes + EXTRA_BANDS;
+        self.bands_left = self.settings.max_modes + EXTRA_BANDS;
         for candidate in candidates {
             if kept.iter().any(|f| explains(f, candidate, fs)) {
                 continue;
             }
-            if bands_left == 0 {
+            if self.bands_left == 0 {
                 break;
             }
             if self.covered(candidate) {
                 continue;
             }
-            bands_left -= 1;
             for found in self.fit_candidate(candidate) {
                 merge(&mut kept, found);
             }
@@ -329,6 +333,9 @@ impl TapAnalyzer {
         });
         let strongest = candidates.iter().map(|c| c.power).fold(0.0f32, f32::max);
         let guaranteed = strongest * 10f32.powf(-(GUARANTEED_WITHIN_DB / 10.0) as f32);
+        // The stand-ins of step 6 get spare bands of their own, so a
+        // budget spent on weaker candidates never costs a strong peak.
+        self.bands_left += EXTRA_BANDS;
         for candidate in candidates.iter().filter(|c| c.power >= guaranteed) {
             let listed = kept
                 .iter()
@@ -386,7 +393,9 @@ impl TapAnalyzer {
         (span.min(self.decay.len() as f64) as usize).max(1)
     }
 
+    /// The band around a centre, while the tap's budget of bands lasts.
     fn band(&mut self, centre_hz: f64, span: usize) -> Option<BandSignal> {
+        self.bands_left = self.bands_left.checked_sub(1)?;
         let noise = &self.noise;
         self.spectra.band(
             BandRequest {
