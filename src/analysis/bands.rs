@@ -150,29 +150,33 @@ impl BandSignal {
     /// band at that sample is c·G(z) for the full-rate amplitude c.
     pub fn gain(&self, z: Complex64) -> Complex64 {
         let one = Complex64::new(1.0, 0.0);
+        let tau = 2.0 * std::f64::consts::PI;
         let n = self.fft_len as f64;
         let m_len = self.taper.len();
         let half = (m_len / 2) as i64;
         let z_len = z.powu(self.level_len as u32);
+        // The three unit phasors of each term advance by a fixed step from
+        // one taper offset to the next: ρᵏ, ρ^{kL} and the decimated
+        // phase e^{j2πi·m₀/M}; they are stepped, not recomputed.
+        let phasor = |turns: f64| Complex64::from_polar(1.0, tau * turns);
+        let level_len = self.level_len as i128;
+        let fft_len = self.fft_len as i128;
+        let first_k = self.centre_bin - half;
+        let mut rho_k = phasor(-(first_k as f64) / n);
+        let mut rho_k_len = phasor(-((first_k as i128 * level_len).rem_euclid(fft_len) as f64) / n);
+        let mut shift = phasor(
+            ((-half * self.first_decimated as i64).rem_euclid(m_len as i64)) as f64 / m_len as f64,
+        );
+        let rho_step = phasor(-1.0 / n);
+        let rho_len_step = phasor(-((level_len % fft_len) as f64) / n);
+        let shift_step = phasor(self.first_decimated as f64 / m_len as f64);
         let mut sum = Complex64::new(0.0, 0.0);
-        for (index, &w) in self.taper.iter().enumerate() {
-            if w == 0.0 {
-                continue;
-            }
-            let i = index as i64 - half;
-            let k = self.centre_bin + i;
-            let rho_k = Complex64::from_polar(1.0, -2.0 * std::f64::consts::PI * k as f64 / n);
-            let rho_k_len = Complex64::from_polar(
-                1.0,
-                -2.0 * std::f64::consts::PI
-                    * ((k as i128 * self.level_len as i128).rem_euclid(self.fft_len as i128))
-                        as f64
-                    / n,
-            );
+        for &w in &self.taper {
             let bin = (one - z_len * rho_k_len) / (one - z * rho_k);
-            let phase = 2.0 * std::f64::consts::PI * (i * self.first_decimated as i64) as f64
-                / m_len as f64;
-            sum += w * bin * Complex64::from_polar(1.0, phase);
+            sum += w * bin * shift;
+            rho_k *= rho_step;
+            rho_k_len *= rho_len_step;
+            shift *= shift_step;
         }
         sum / m_len as f64
     }

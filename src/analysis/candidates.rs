@@ -18,11 +18,15 @@ pub(super) struct Candidate {
 }
 
 /// Local maxima of the spectrum in the band that stand `min_above_floor_db`
-/// over the band's median and `min_prominence_db` over the dips that part
-/// them from higher peaks, loudest first, at most `2·max_modes + 4`.
+/// over the room noise (`noise_power`: what the noise alone gives in each
+/// bin of this spectrum) and `min_prominence_db` over the dips that part
+/// them from higher peaks, loudest first, at most `2·max_modes + 4`. The
+/// floor is the noise, not a level of the band searched: in a narrow band
+/// its own modes' skirts would be the floor and hide a mode.
 pub(super) fn find_candidates(
     spectrum: &DisplaySpectrum,
     settings: &AnalysisSettings,
+    noise_power: impl Fn(f64) -> f32,
 ) -> Vec<Candidate> {
     let power = &spectrum.power;
     if power.len() < 8 {
@@ -35,10 +39,24 @@ pub(super) fn find_candidates(
     if high <= low {
         return Vec::new();
     }
-    let floor = median(&power[low..=high]);
-    let threshold = floor * 10f32.powf((settings.min_above_floor_db / 10.0) as f32);
+    let above = 10f32.powf((settings.min_above_floor_db / 10.0) as f32);
+    // Without measured noise (digital silence), the record's own rounding
+    // is the floor: single precision keeps about 140 dB, and peaks more
+    // than RANGE_WITHOUT_NOISE_DB under the strongest are not looked at.
+    let strongest = power[low..=high].iter().copied().fold(0.0f32, f32::max);
+    let rounding = strongest * 10f32.powf(-(RANGE_WITHOUT_NOISE_DB / 10.0) as f32);
+    // What the decay holds besides its modes (the room's tail, the
+    // strike's own sound) is a floor too: the median of the whole
+    // spectrum, not of the band searched, so a narrow band's own modes
+    // do not raise it.
+    let diffuse = median(&power[2..power.len() - 2]);
+    let threshold = |k: usize| {
+        (noise_power(k as f64 * spectrum.bin_hz) * above)
+            .max(diffuse * above)
+            .max(rounding)
+    };
     let mut found: Vec<Candidate> = (low..=high)
-        .filter(|&k| power[k] > threshold && power[k] >= power[k - 1] && power[k] > power[k + 1])
+        .filter(|&k| power[k] >= power[k - 1] && power[k] > power[k + 1] && power[k] > threshold(k))
         .filter_map(|k| {
             let prominence_db = prominence_db(power, k);
             (prominence_db >= settings.min_prominence_db).then(|| Candidate {
@@ -61,6 +79,10 @@ fn median(values: &[f32]) -> f32 {
     let (_, m, _) = sorted.select_nth_unstable_by(mid, f32::total_cmp);
     *m
 }
+
+/// See [`find_candidates`] (tapwright's choice: 20 dB above what single
+/// precision resolves).
+const RANGE_WITHOUT_NOISE_DB: f64 = 120.0;
 
 /// Bins from the last one above half of `power[k]` on the left to the last
 /// one on the right (at most `MAX_WIDTH_BINS` either side).

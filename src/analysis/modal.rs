@@ -15,10 +15,11 @@
 //!    number of decimated samples.
 //! 3. In each band (`bands`: FFT-domain filtering and decimation), the
 //!    matrix pencil (`subspace`; Hua & Sarkar 1990) with its model order
-//!    from the singular values against the band's measured noise, then one
-//!    joint variable-projection refit of the band's poles and backward
-//!    elimination by the information criterion (`varpro`; Golub & Pereyra
-//!    2003, Schwarz 1978). Decay comes from the pole's magnitude,
+//!    from the singular values against the band's measured noise, then
+//!    backward elimination by the information criterion with the pencil's
+//!    poles held fixed (linear least squares for the amplitudes) and one
+//!    joint variable-projection refit of the poles that stay (`varpro`;
+//!    Schwarz 1978, Golub & Pereyra 2003). Decay comes from the pole's magnitude,
 //!    α = −ln|z|·fs.
 //! 4. A band keeps only the poles it owns (those in its central quarter)
 //!    that live longer than [`MIN_TAU_DECIMATED`] of its samples;
@@ -44,9 +45,9 @@ use super::bands::{BandRequest, BandSignal, DecaySpectra};
 use super::candidates::{find_candidates, Candidate};
 use super::noise::NoiseProfile;
 use super::spectrum::{DisplaySpectrum, SpectrumMaker};
-use super::subspace::pencil_poles;
+use super::subspace::{pencil_poles, MIN_PENCIL_SAMPLES};
 use super::tap_finder::FoundTap;
-use super::varpro::{prune, refine, BandNoise};
+use super::varpro::{fit_amplitudes, prune, refine, BandNoise};
 
 /// What to look for in a tap.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
@@ -58,7 +59,8 @@ pub struct AnalysisSettings {
     pub band_high_hz: f64,
     /// At most this many modes per tap (the strongest).
     pub max_modes: usize,
-    /// A candidate peak must stand this far above the median level of the band.
+    /// A candidate peak must stand this far above the room noise (measured
+    /// before the strike) at its frequency.
     pub min_above_floor_db: f64,
     /// A candidate peak must stand this far above the dips that separate it
     /// from higher peaks.
@@ -140,6 +142,13 @@ const RESOLVED_WITHIN: f64 = 0.2;
 /// The band was matched to a mode 16 samples long; a mode four times
 /// faster than that would make its own, wider peak and band.
 const MIN_TAU_DECIMATED: f64 = 4.0;
+/// Bands fitted per tap (every band: a candidate's, its refit at another
+/// span, a single-pole stand-in), beyond one per listed mode
+/// (`max_modes`): the candidates are taken strongest first, and these few
+/// spare bands cover candidates whose band finds nothing to list (a hump
+/// of the strike's own sound, a skirt). This caps the cost of a tap
+/// whatever the signal (tapwright's choice, no source).
+const EXTRA_BANDS: usize = 4;
 /// A band is refitted when the decay it finds asks for a span more than
 /// this factor longer or shorter than the one it had.
 const SPAN_MISMATCH: f64 = 2.0;
@@ -190,6 +199,19 @@ pub struct TapAnalyzer {
     spectra: DecaySpectra,
     noise: NoiseProfile,
     decay: Vec<f32>,
+    /// The bands fitted to the current tap.
+    covers: Vec<BandCover>,
+    /// Bands the current tap may still use (every band counts: a
+    /// candidate's, its refit at another span, a single-pole stand-in).
+    bands_left: usize,
+}
+
+/// Where a fitted band lies: what it owns and the span it had.
+#[derive(Clone, Copy, Debug)]
+struct BandCover {
+    centre_hz: f64,
+    owned_half_width_hz: f64,
+    span: usize,
 }
 
 impl TapAnalyzer {
@@ -201,6 +223,8 @@ impl TapAnalyzer {
             spectra: DecaySpectra::new(sample_rate_hz),
             noise: NoiseProfile::default(),
             decay: Vec::new(),
+            covers: Vec::new(),
+            bands_left: 0,
         }
     }
 
@@ -235,7 +259,14 @@ impl TapAnalyzer {
         } else {
             self.measure_noise(record, onset_index, offset);
             self.spectra.transform(&self.decay);
-            let candidates = find_candidates(&self.spectra.decay_power(), &self.settings);
+            // White noise of variance σ² reads 4σ²/L in the decay's
+            // spectrum of L samples (its scale: a sinusoid of amplitude A
+            // reads A²).
+            let per_bin = 4.0 / self.decay.len() as f64;
+            let noise = &self.noise;
+            let noise_power = |hz: f64| (per_bin * noise.density_at(hz)) as f32;
+            let candidates =
+                find_candidates(&self.spectra.decay_power(), &self.settings, noise_power);
             let found = self.estimate(&candidates);
             self.to_modes(found)
         };
@@ -280,8 +311,16 @@ impl TapAnalyzer {
         let fs = self.sample_rate_hz;
         let len = self.decay.len();
         let mut kept: Vec<Found> = Vec::new();
+        self.covers.clear();
+        self.bands_left = self.settings.max_modes + EXTRA_BANDS;
         for candidate in candidates {
             if kept.iter().any(|f| explains(f, candidate, fs)) {
+                continue;
+            }
+            if self.bands_left == 0 {
+                break;
+            }
+            if self.covered(candidate) {
                 continue;
             }
             for found in self.fit_candidate(candidate) {
@@ -294,6 +333,9 @@ impl TapAnalyzer {
         });
         let strongest = candidates.iter().map(|c| c.power).fold(0.0f32, f32::max);
         let guaranteed = strongest * 10f32.powf(-(GUARANTEED_WITHIN_DB / 10.0) as f32);
+        // The stand-ins of step 6 get spare bands of their own, so a
+        // budget spent on weaker candidates never costs a strong peak.
+        self.bands_left += EXTRA_BANDS;
         for candidate in candidates.iter().filter(|c| c.power >= guaranteed) {
             let listed = kept
                 .iter()
@@ -305,6 +347,21 @@ impl TapAnalyzer {
             }
         }
         kept
+    }
+
+    /// A band already fitted serves a candidate that lies in its owned
+    /// part and whose own width asks for a span within [`SPAN_MISMATCH`]
+    /// of the band's: its poles there are already in the list (a peak
+    /// they leave unexplained gets the single-pole stand-in of step 6).
+    fn covered(&self, candidate: &Candidate) -> bool {
+        let fs = self.sample_rate_hz;
+        let width_hz = candidate.half_power_width_hz.max(2.0 * candidate.bin_hz);
+        let wanted = self.span_for(PI * width_hz / fs) as f64;
+        self.covers.iter().any(|cover| {
+            let ratio = wanted / cover.span as f64;
+            (candidate.frequency_hz - cover.centre_hz).abs() <= cover.owned_half_width_hz
+                && (1.0 / SPAN_MISMATCH..=SPAN_MISMATCH).contains(&ratio)
+        })
     }
 
     /// The band of one candidate, refitted once if its main pole's decay
@@ -336,7 +393,9 @@ impl TapAnalyzer {
         (span.min(self.decay.len() as f64) as usize).max(1)
     }
 
+    /// The band around a centre, while the tap's budget of bands lasts.
     fn band(&mut self, centre_hz: f64, span: usize) -> Option<BandSignal> {
+        self.bands_left = self.bands_left.checked_sub(1)?;
         let noise = &self.noise;
         self.spectra.band(
             BandRequest {
@@ -349,18 +408,32 @@ impl TapAnalyzer {
 
     /// The poles a band owns, with their full-rate amplitudes.
     fn fit_band(&mut self, candidate: &Candidate, span: usize) -> Option<Vec<Found>> {
+        let fs = self.sample_rate_hz;
         let band = self.band(candidate.frequency_hz, span)?;
-        let initial = pencil_poles(&band.samples, band.noise_var);
+        self.covers.push(BandCover {
+            centre_hz: band.centre_rad * fs / (2.0 * PI),
+            owned_half_width_hz: band.owned_half_width_rad * fs / (2.0 * PI),
+            span,
+        });
+        // The model holds from the band's own envelope maximum on: before
+        // it, the mode is still being fed (a soft mallet, a bar's
+        // resonator, early reflections adding copies of it), and fitting
+        // that rise would take spare poles.
+        let start = envelope_peak(&band.samples);
+        let samples = &band.samples[start..];
+        let initial = pencil_poles(samples, band.noise_var);
         if initial.is_empty() {
             return Some(Vec::new());
         }
-        let fit = refine(&band.samples, &initial)?;
+        // Amplitudes for the pencil's poles; order and the final poles
+        // from `prune` (elimination with the poles fixed, then one refit).
+        let fit = fit_amplitudes(samples, &initial)?;
         let noise = BandNoise {
             variance: band.noise_var,
             taper_fill: band.taper_fill,
             observations: self.decay.len(),
         };
-        let fit = prune(&band.samples, fit, &noise);
+        let fit = prune(samples, fit, &noise);
         let len = self.decay.len();
         let owned: Vec<Found> = fit
             .poles
@@ -372,7 +445,9 @@ impl TapAnalyzer {
                 let offset = (z.arg() - band.centre_rad).abs();
                 (offset <= band.owned_half_width_rad).then(|| Found {
                     z,
-                    c: b / band.gain(z),
+                    // b is the amplitude at samples[start]; back to the
+                    // band's first sample, then to the full rate.
+                    c: b * w.powi(-(start as i32)) / band.gain(z),
                     centrality: offset / band.owned_half_width_rad,
                     span: band.span_samples(),
                     band_peak: 0.0,
@@ -455,6 +530,33 @@ impl TapAnalyzer {
             .collect()
     }
 }
+
+/// Where the free decay of a band starts: its largest sample within the
+/// first [`RISE_SEARCH_FRACTION`] of the band (a mode fed for 20–50 ms by
+/// a soft mallet or a resonator; the rest of the span is left to fit).
+fn envelope_peak(samples: &[Complex64]) -> usize {
+    let search = (samples.len() / RISE_SEARCH_FRACTION)
+        .min(samples.len().saturating_sub(MIN_FITTED_SAMPLES))
+        .max(1);
+    samples[..search.min(samples.len())]
+        .iter()
+        .enumerate()
+        .fold((0, 0.0), |best, (i, v)| {
+            if v.norm_sqr() > best.1 {
+                (i, v.norm_sqr())
+            } else {
+                best
+            }
+        })
+        .0
+}
+
+/// See [`envelope_peak`]: a third of the band at most is searched, so two
+/// thirds, and at least [`MIN_FITTED_SAMPLES`], are always fitted
+/// (tapwright's choice, no source).
+const RISE_SEARCH_FRACTION: usize = 3;
+/// What the subspace stage needs at its largest order.
+const MIN_FITTED_SAMPLES: usize = MIN_PENCIL_SAMPLES;
 
 /// A pole explains a candidate peak when it lies within the peak's half
 /// width (or one and a half bins) of it.

@@ -74,6 +74,12 @@ impl NoiseProfile {
         );
     }
 
+    /// Noise variance per sample at a frequency (the mean of `MIN_BINS`
+    /// bins around it); zero when nothing was measured.
+    pub fn density_at(&self, frequency_hz: f64) -> f64 {
+        self.density(frequency_hz, frequency_hz)
+    }
+
     /// Mean noise variance per sample between two frequencies (at least
     /// `MIN_BINS` bins around their middle); zero when nothing was measured.
     pub fn density(&self, low_hz: f64, high_hz: f64) -> f64 {

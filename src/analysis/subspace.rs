@@ -4,9 +4,16 @@
 //! sequence of at most `bands::MAX_SAMPLES` complex samples, so every matrix
 //! here has a fixed, small size.
 //!
-//! 1. The Hankel matrix of the sequence with pencil parameter L = N/3 (Hua
-//!    & Sarkar find the noise sensitivity least for L between N/3 and N/2),
-//!    and its singular values.
+//! 1. The Hankel matrix H of the sequence with a fixed pencil parameter
+//!    L = [`PENCIL_LEN`] (the matrix is (N − L) × (L + 1)), and its
+//!    singular values and right singular vectors, from the eigen-
+//!    decomposition of the small Gram matrix HᴴH ((L + 1)², built in
+//!    O(N·L) by its Toeplitz-like recursion): the singular values are the
+//!    square roots of its eigenvalues, the right singular vectors its
+//!    eigenvectors. Hua & Sarkar find the noise sensitivity least for L
+//!    between N/3 and N/2; a smaller L costs some of the initial estimate's
+//!    precision, which the variable-projection refit (`varpro`) restores,
+//!    and keeps this stage's cost fixed and small whatever the band.
 //! 2. Model order: the singular values that stand above what the band's
 //!    noise alone would give. An R×C matrix of white noise of variance σ²
 //!    has its largest singular value near σ(√R + √C) (the Marchenko–Pastur
@@ -22,7 +29,7 @@
 //! 3. The poles: eigenvalues of W₂·W₁⁺, W the top rows of Vᴴ (the
 //!    SVD-truncated pencil).
 
-use nalgebra::DMatrix;
+use nalgebra::{DMatrix, SMatrix, SymmetricEigen};
 use rustfft::num_complex::Complex64;
 
 /// A singular value is signal when it is this many times the largest one
@@ -34,35 +41,64 @@ const SIGNAL_OVER_NOISE: f64 = 2.0;
 const DYNAMIC_RANGE_DB: f64 = 30.0;
 /// Largest model order of one band.
 pub(super) const MAX_ORDER: usize = 6;
+/// Pencil parameter L: the Hankel matrix has L + 1 columns. Three times
+/// [`MAX_ORDER`] leaves room for every pole and twice as many noise
+/// directions to tell them from (tapwright's choice, see the module notes).
+const PENCIL_LEN: usize = 3 * MAX_ORDER;
+const COLUMNS: usize = PENCIL_LEN + 1;
+/// Shortest sequence the pencil takes: at least two rows per pole beyond
+/// the pencil.
+pub(super) const MIN_PENCIL_SAMPLES: usize = PENCIL_LEN + 2 * MAX_ORDER;
 
 /// Poles (decimated) of the sequence `y`, whose noise has variance
 /// `noise_var` per sample. Empty when nothing stands above the noise.
 pub(super) fn pencil_poles(y: &[Complex64], noise_var: f64) -> Vec<Complex64> {
     let n = y.len();
-    let pencil_len = n / 3;
-    if pencil_len < 4 {
+    if n < MIN_PENCIL_SAMPLES {
         return Vec::new();
     }
-    let (rows, columns) = (n - pencil_len, pencil_len + 1);
-    let hankel = DMatrix::from_fn(rows, columns, |i, j| y[i + j]);
-    let Some(svd) = hankel.try_svd(false, true, 1e-13, 200) else {
+    let rows = n - PENCIL_LEN;
+    let gram = hankel_gram(y, rows);
+    let Some(eigen) = SymmetricEigen::try_new(gram, 1e-14, 500) else {
         return Vec::new();
     };
-    let Some(v_t) = svd.v_t else {
-        return Vec::new();
-    };
-    let mut order_index: Vec<usize> = (0..svd.singular_values.len()).collect();
-    order_index.sort_by(|&a, &b| svd.singular_values[b].total_cmp(&svd.singular_values[a]));
+    let mut order_index: Vec<usize> = (0..COLUMNS).collect();
+    order_index.sort_by(|&a, &b| eigen.eigenvalues[b].total_cmp(&eigen.eigenvalues[a]));
     let singular: Vec<f64> = order_index
         .iter()
-        .map(|&i| svd.singular_values[i])
+        .map(|&i| eigen.eigenvalues[i].max(0.0).sqrt())
         .collect();
-    let order = signal_order(&singular, noise_var, rows, columns).min(columns - 2);
+    let order = signal_order(&singular, noise_var, rows, COLUMNS).min(COLUMNS - 2);
     if order == 0 {
         return Vec::new();
     }
-    let v_h = DMatrix::from_fn(order, columns, |i, j| v_t[(order_index[i], j)]);
-    shifted_eigenvalues(&v_h, columns)
+    // Row i of Vᴴ is the conjugate of the i-th eigenvector.
+    let v_h = DMatrix::from_fn(order, COLUMNS, |i, j| {
+        eigen.eigenvectors[(j, order_index[i])].conj()
+    });
+    shifted_eigenvalues(&v_h, COLUMNS)
+}
+
+/// HᴴH for the Hankel matrix H[r][c] = y[r + c] with `rows` rows:
+/// G[i][j] = Σᵣ ȳ[r+i]·y[r+j], each entry from the one above-left of it
+/// by one term out and one in.
+fn hankel_gram(y: &[Complex64], rows: usize) -> SMatrix<Complex64, COLUMNS, COLUMNS> {
+    let mut gram = SMatrix::<Complex64, COLUMNS, COLUMNS>::zeros();
+    for j in 0..COLUMNS {
+        gram[(0, j)] = (0..rows).map(|r| y[r].conj() * y[r + j]).sum();
+    }
+    for i in 1..COLUMNS {
+        for j in i..COLUMNS {
+            gram[(i, j)] = gram[(i - 1, j - 1)] - y[i - 1].conj() * y[j - 1]
+                + y[i - 1 + rows].conj() * y[j - 1 + rows];
+        }
+    }
+    for i in 0..COLUMNS {
+        for j in 0..i {
+            gram[(i, j)] = gram[(j, i)].conj();
+        }
+    }
+    gram
 }
 
 /// Singular values above the noise bound and within the dynamic range,

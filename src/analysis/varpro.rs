@@ -35,6 +35,14 @@ pub(super) struct BandNoise {
 
 /// Levenberg–Marquardt iterations at most.
 const MAX_ITERATIONS: usize = 12;
+/// The refit stops when a step lowers the residual energy by less than
+/// this many residual variances (residual energy per degree of freedom):
+/// moving the poles by one standard deviation of their estimate changes
+/// the residual by one variance (the χ² surface's unit), so such a step
+/// moved them by well under a tenth of that and the next ones, converging
+/// quadratically, by far less (common practice in least squares, e.g.
+/// W. H. Press and others, Numerical Recipes, 3rd ed., §15.5.2).
+const NEGLIGIBLE_GAIN: f64 = 0.01;
 /// Largest step in decay or angle per decimated sample: a pole never moves
 /// more than this in one iteration.
 const MAX_STEP: f64 = 0.2;
@@ -79,6 +87,7 @@ pub(super) fn refine(y: &[Complex64], initial: &[Complex64]) -> Option<Fit> {
     if p == 0 {
         return Some(fit);
     }
+    let dof = y.len().saturating_sub(2 * p).max(1) as f64;
     let mut lambda = 1e-3;
     for _ in 0..MAX_ITERATIONS {
         let (jtj, jtr) = projected_normal_equations(y, &fit);
@@ -104,11 +113,12 @@ pub(super) fn refine(y: &[Complex64], initial: &[Complex64]) -> Option<Fit> {
                 .collect();
             match fit_amplitudes(y, &trial_poles) {
                 Some(trial) if trial.residual_energy < fit.residual_energy => {
-                    let relative = (fit.residual_energy - trial.residual_energy)
-                        / fit.residual_energy.max(1e-300);
+                    let gain = fit.residual_energy - trial.residual_energy;
+                    let relative = gain / fit.residual_energy.max(1e-300);
+                    let resolution = NEGLIGIBLE_GAIN * trial.residual_energy / dof;
                     fit = trial;
                     lambda = (lambda * 0.3).max(1e-9);
-                    improved = relative > 1e-10;
+                    improved = relative > 1e-10 && gain > resolution;
                     break;
                 }
                 _ => lambda *= 10.0,
@@ -121,42 +131,28 @@ pub(super) fn refine(y: &[Complex64], initial: &[Complex64]) -> Option<Fit> {
     Some(fit)
 }
 
-/// Backward elimination: drops, one at a time, the pole whose removal
-/// costs the fit least, while that cost is under the information
-/// criterion's price of a pole (4·ln(N)·σ² for `observations` = N),
-/// refitting the amplitudes after each and the poles once at the end. σ² is the larger of the room noise (`noise`) and
-/// what the largest model, `fit` as given, leaves per degree of freedom
-/// (the variance of the full model's residual, as Mallows' Cp takes it:
-/// C. L. Mallows, Technometrics 15(4), 1973): on a real strike the
-/// residual also holds what no sum of exponentials models (reverberation,
-/// the strike's own sound), which a pole must not be spent on.
+/// Model order and the final poles of one band: backward elimination with
+/// the poles held where `fit` has them, then one joint refit of the poles
+/// that stayed.
+///
+/// The elimination drops, one at a time, the pole whose removal costs the
+/// fit least, while that cost is under the information criterion's price
+/// of a pole (4·ln(N)·σ² for `observations` = N); with the poles fixed each
+/// trial is a linear least-squares problem for the amplitudes, so it costs
+/// a p×p solve, not a refit. σ² is the larger of the room noise (`noise`)
+/// and what the largest model, `fit` as given, leaves per degree of
+/// freedom (the variance of the full model's residual, as Mallows' Cp
+/// takes it: C. L. Mallows, Technometrics 15(4), 1973): on a real strike
+/// the residual also holds what no sum of exponentials models
+/// (reverberation, the strike's own sound), which a pole must not be spent
+/// on. The refit of the survivors follows ([`refine`]); a single pole left
+/// must still pay for itself against the empty model.
 pub(super) fn prune(y: &[Complex64], mut fit: Fit, noise: &BandNoise) -> Fit {
     let dof = y.len().saturating_sub(2 * fit.poles.len()).max(1) as f64;
     let left = fit.residual_energy / dof / noise.taper_fill.max(1e-9);
     let price = 4.0 * (noise.observations.max(2) as f64).ln() * noise.variance.max(left);
-    let mut removed = false;
-    while fit.poles.len() > 1 {
-        let cheapest = (0..fit.poles.len())
-            .filter_map(|i| {
-                let mut rest = fit.poles.clone();
-                rest.remove(i);
-                let reduced = fit_amplitudes(y, &rest)?;
-                Some((reduced.residual_energy - fit.residual_energy, rest))
-            })
-            .min_by(|a, b| a.0.total_cmp(&b.0));
-        match cheapest {
-            Some((cost, rest)) if cost < price => {
-                fit = fit_amplitudes(y, &rest).unwrap_or(fit);
-                removed = true;
-            }
-            _ => break,
-        }
-    }
-    if removed {
-        // One joint refit of the poles that stayed (they were fitted with
-        // the others beside them).
-        fit = refine(y, &fit.poles.clone()).unwrap_or(fit);
-    }
+    let kept = eliminate(y, &fit.poles, price);
+    fit = refine(y, &kept).unwrap_or(fit);
     if fit.poles.len() == 1 {
         let energy: f64 = y.iter().map(|v| v.norm_sqr()).sum();
         if energy - fit.residual_energy < price {
@@ -168,6 +164,53 @@ pub(super) fn prune(y: &[Complex64], mut fit: Fit, noise: &BandNoise) -> Fit {
         }
     }
     fit
+}
+
+/// The poles that stay after backward elimination with the poles fixed:
+/// the Gram matrix and Φᴴy are formed once, and the residual of any subset
+/// S follows from them as ‖y‖² − Re(rₛᴴ·Gₛₛ⁻¹·rₛ), a |S|×|S| solve.
+fn eliminate(y: &[Complex64], poles: &[Complex64], price: f64) -> Vec<Complex64> {
+    let p = poles.len();
+    if p < 2 {
+        return poles.to_vec();
+    }
+    let basis = vandermonde(poles, y.len());
+    let (gram, rhs) = normal_equations(&basis, y, p);
+    let energy: f64 = y.iter().map(|v| v.norm_sqr()).sum();
+    let residual_of = |subset: &[usize]| -> Option<f64> {
+        let q = subset.len();
+        let sub_gram: Vec<Complex64> = subset
+            .iter()
+            .flat_map(|&i| subset.iter().map(move |&j| (i, j)))
+            .map(|(i, j)| gram[i * p + j])
+            .collect();
+        let sub_rhs: Vec<Complex64> = subset.iter().map(|&i| rhs[i]).collect();
+        let x = solve_hermitian(&sub_gram, &sub_rhs, q)?;
+        let explained: f64 = sub_rhs.iter().zip(&x).map(|(r, v)| (r.conj() * v).re).sum();
+        Some(energy - explained)
+    };
+    let mut active: Vec<usize> = (0..p).collect();
+    let Some(mut current) = residual_of(&active) else {
+        return poles.to_vec();
+    };
+    while active.len() > 1 {
+        let cheapest = (0..active.len())
+            .filter_map(|drop| {
+                let mut rest = active.clone();
+                rest.remove(drop);
+                let left = residual_of(&rest)?;
+                Some((left - current, left, rest))
+            })
+            .min_by(|a, b| a.0.total_cmp(&b.0));
+        match cheapest {
+            Some((cost, left, rest)) if cost < price => {
+                active = rest;
+                current = left;
+            }
+            _ => break,
+        }
+    }
+    active.iter().map(|&i| poles[i]).collect()
 }
 
 /// Columns wᵢᵏ, stored column after column.
@@ -341,7 +384,7 @@ mod tests {
         let noise = 1e-3;
         let y = sequence(&truth, 64, noise, 2);
         let spare = [truth[0].0, Complex64::from_polar(0.9, -0.8)];
-        let fit = refine(&y, &spare).expect("fit");
+        let fit = fit_amplitudes(&y, &spare).expect("fit");
         let band_noise = BandNoise {
             variance: noise * noise,
             taper_fill: 1.0,
