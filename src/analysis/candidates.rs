@@ -17,8 +17,8 @@ pub(super) struct Candidate {
     pub half_power_width_hz: f64,
 }
 
-/// Local maxima of the spectrum in the band that stand `min_above_floor_db`
-/// over the room noise (`noise_power`: what the noise alone gives in each
+/// Local maxima of the spectrum in the band, within [`CANDIDATE_RANGE_DB`]
+/// of the strongest, that stand `min_above_floor_db` over the room noise (`noise_power`: what the noise alone gives in each
 /// bin of this spectrum) and `min_prominence_db` over the dips that part
 /// them from higher peaks, loudest first, at most `2·max_modes + 4`. The
 /// floor is the noise, not a level of the band searched: in a narrow band
@@ -45,6 +45,7 @@ pub(super) fn find_candidates(
     // than RANGE_WITHOUT_NOISE_DB under the strongest are not looked at.
     let strongest = power[low..=high].iter().copied().fold(0.0f32, f32::max);
     let rounding = strongest * 10f32.powf(-(RANGE_WITHOUT_NOISE_DB / 10.0) as f32);
+    let in_range = strongest * 10f32.powf(-(CANDIDATE_RANGE_DB / 10.0) as f32);
     // What the decay holds besides its modes (the room's tail, the
     // strike's own sound) is a floor too: the median of the whole
     // spectrum, not of the band searched, so a narrow band's own modes
@@ -54,6 +55,7 @@ pub(super) fn find_candidates(
         (noise_power(k as f64 * spectrum.bin_hz) * above)
             .max(diffuse * above)
             .max(rounding)
+            .max(in_range)
     };
     let mut found: Vec<Candidate> = (low..=high)
         .filter(|&k| power[k] >= power[k - 1] && power[k] > power[k + 1] && power[k] > threshold(k))
@@ -79,6 +81,13 @@ fn median(values: &[f32]) -> f32 {
     let (_, m, _) = sorted.select_nth_unstable_by(mid, f32::total_cmp);
     *m
 }
+
+/// Peaks more than this under the strongest of the band are not
+/// candidates: twice the range within which every peak is guaranteed a
+/// listed mode (`modal::GUARANTEED_WITHIN_DB`); further down, what stands
+/// out is mostly the noise riding on a strong mode's skirt, and each
+/// candidate costs a band (tapwright's choice, no source).
+const CANDIDATE_RANGE_DB: f64 = 40.0;
 
 /// See [`find_candidates`] (tapwright's choice: 20 dB above what single
 /// precision resolves).

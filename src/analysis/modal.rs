@@ -8,13 +8,15 @@
 //! 2. Candidate peaks of the decay's unwindowed spectrum (`candidates`;
 //!    for a damped sinusoid exactly a Lorentzian, and free of the quiet
 //!    before the strike and of the strike's click), strongest first and
-//!    bounded in number, each centre a band. The band's span is
+//!    bounded in number (those within `candidates::CANDIDATE_RANGE_DB` of
+//!    the strongest, above the room noise), each centre a band. The band's span is
 //!    matched to the peak's own width: [`SPAN_TIME_CONSTANTS`] time
 //!    constants, so a fast-decaying wood mode gets a wide band over a short
 //!    span and a ringing bar a narrow band over a long one, always the same
 //!    number of decimated samples.
-//! 3. In each band (`bands`: FFT-domain filtering and decimation), the
-//!    matrix pencil (`subspace`; Hua & Sarkar 1990) with its model order
+//! 3. In each band (`bands`: FFT-domain filtering and decimation), from
+//!    the band's own envelope maximum on (where the free-decay model
+//!    holds), the matrix pencil (`subspace`; Hua & Sarkar 1990) with its model order
 //!    from the singular values against the band's measured noise, then
 //!    backward elimination by the information criterion with the pencil's
 //!    poles held fixed (linear least squares for the amplitudes) and one
@@ -25,8 +27,11 @@
 //!    that live longer than [`MIN_TAU_DECIMATED`] of its samples;
 //!    where bands overlap, a pole found twice is kept from the band where it
 //!    lies nearer the centre. A candidate already explained by a kept pole
-//!    gets no band of its own, and the band is refitted once if the decay it
-//!    finds asks for a span more than twice longer or shorter.
+//!    gets no band of its own, nor does one in the owned part of a band
+//!    already fitted at a like span; the band is refitted once if the decay
+//!    it finds asks for a span more than twice longer or shorter. A tap
+//!    uses at most `max_modes` + [`EXTRA_BANDS`] bands, and as many more
+//!    for the stand-ins of step 6: its cost is bounded whatever the signal.
 //! 5. A pole that makes no candidate peak of its own is listed only if its
 //!    peak stands within [`RESOLVED_WITHIN_DB`] of the strongest pole of
 //!    its band (a shoulder, the second of a close pair): weaker ones hidden
