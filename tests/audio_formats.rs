@@ -100,6 +100,18 @@ const LOSSY_ONSET_S: f64 = 0.006;
 /// Each tap of the original is found in `decoded` at the same time, and
 /// each of its modes is there within the tolerances.
 fn assert_same_taps_and_modes(name: &str, source: &Source, decoded: &RecordingReport, lossy: bool) {
+    assert_same_taps_after(name, source, decoded, (lossy, true), 0.0);
+}
+
+/// The same, for a file whose sound comes `delay_s` later than in the
+/// original (raw ADTS AAC keeps the encoder's priming in front).
+fn assert_same_taps_after(
+    name: &str,
+    source: &Source,
+    decoded: &RecordingReport,
+    (lossy, modes_too): (bool, bool),
+    delay_s: f64,
+) {
     let (onset_s, hz, q) = if lossy {
         (LOSSY_ONSET_S, LOSSY_HZ, LOSSY_Q)
     } else {
@@ -115,12 +127,15 @@ fn assert_same_taps_and_modes(name: &str, source: &Source, decoded: &RecordingRe
     );
     for (found, truth) in decoded.taps.iter().zip(&original.taps) {
         assert!(
-            (found.onset_s - truth.onset_s).abs() <= onset_s && found.rejected.is_none(),
+            (found.onset_s - delay_s - truth.onset_s).abs() <= onset_s && found.rejected.is_none(),
             "{name}: tap at {} s ({:?}) against {} s",
             found.onset_s,
             found.rejected,
             truth.onset_s
         );
+        if !modes_too {
+            continue;
+        }
         let modes = &found.analysis.as_ref().unwrap().modes;
         for mode in &truth.analysis.as_ref().unwrap().modes {
             let nearest = modes
@@ -155,21 +170,69 @@ fn each_format_gives_the_taps_and_modes_of_the_original() {
     assert_same_taps_and_modes("accuracy_mp3_192.mp3", &accuracy, &report, true);
 }
 
-/// Known to fail, for the tap finder (not the decoding, which matches
-/// ffmpeg's to 1e-6 of full scale): in the M4A, the AAC pre-echo 1–4 ms
-/// before the 95.5 Hz strike rises 13 dB over the noise, then dips below
-/// half the trigger margin, so the finder reports a too-quiet tap and
-/// starts the strike's record 100 ms late; in the raw ADTS file the
-/// encoder's priming (nothing says how long it is) rises from silence to
-/// the noise and is taken for a first tap, which swallows the real one as
-/// a double strike. Run with `--ignored` once the tap finder is changed.
+/// AAC, in M4A and in raw ADTS. Two things once misled the tap finder
+/// here (not the decoding, which matches ffmpeg's to 1e-6 of full scale):
+/// in the M4A, the AAC pre-echo 1–4 ms before the 95.5 Hz strike rises
+/// 13 dB over the noise and dips again, and was reported as a too-quiet
+/// tap that pushed the strike's record 100 ms late (a quiet rise is now
+/// reported only when no strike follows within 10 ms); in the raw ADTS
+/// file the decoder's start-up (23 ms from −120 to −90 dBFS, nothing says
+/// how long) was taken for the room, and the rise to the real room noise
+/// for a first tap (the floor is now first learned over the 100 ms a
+/// record keeps before its strike). The lossy tolerances are those of the
+/// other lossy formats above; the M4A's taps and modes meet them, the
+/// ADTS file's taps (its modes: `adts_keeps_the_modes_of_the_original`).
 #[test]
-#[ignore = "the tap finder is misled by AAC pre-echo and by the priming of raw ADTS (see the comment)"]
 fn aac_gives_the_taps_and_modes_of_the_original() {
     let report = report_of(&read_mono(&fixture("accuracy_aac128.m4a")).unwrap());
     assert_same_taps_and_modes("accuracy_aac128.m4a", &accuracy_source(), &report, true);
-    let report = report_of(&read_mono(&fixture("plate.aac")).unwrap());
-    assert_same_taps_and_modes("plate.aac", &plate_source(), &report, true);
+    let (report, delay_s) = adts_plate();
+    assert_same_taps_after(
+        "plate.aac",
+        &plate_source(),
+        &report,
+        (true, false),
+        delay_s,
+    );
+}
+
+/// The modes of the raw ADTS plate (96 kb/s, resampled to 44.1 kHz). Not
+/// met: the second tap is within the lossy tolerances, but the first (0.2 s
+/// into the stream) decodes with four spurious broad poles (181, 202, 304,
+/// 368 Hz, Q 9–16) and its 486 and 712 Hz modes 1.1 and 1.9 Hz off, Q +7 %
+/// and +23 %, whatever its onset (the same to 0.01 Hz with the onset moved
+/// by ±4 ms): the encoding's own smear at that rate, beyond the README's
+/// figures for 128 kb/s (0.39 Hz, 5.1 %), not the tap finder's doing.
+#[test]
+#[ignore = "96 kb/s ADTS smears the first tap beyond the lossy tolerances (see the comment)"]
+fn adts_keeps_the_modes_of_the_original() {
+    let (report, delay_s) = adts_plate();
+    assert_same_taps_after("plate.aac", &plate_source(), &report, (true, true), delay_s);
+}
+
+/// The raw ADTS plate, its report and the delay of its strikes against
+/// the source's.
+fn adts_plate() -> (RecordingReport, f64) {
+    // Raw ADTS: nothing says how long the encoder's priming in front is,
+    // only that it is part of the frames the file has over its source
+    // (checked in `lossy_fixtures_keep_the_length_of_their_source`); the
+    // strikes come that much later, all by the same delay.
+    let adts = read_mono(&fixture("plate.aac")).unwrap();
+    let extra_s = (adts.samples.len() as f64 - plate_source().length_s * 44_100.0) / 44_100.0;
+    let report = report_of(&adts);
+    let original = report_of(&plate_source().original());
+    let delays: Vec<f64> = report
+        .taps
+        .iter()
+        .zip(&original.taps)
+        .map(|(found, truth)| found.onset_s - truth.onset_s)
+        .collect();
+    let delay_s = delays.iter().sum::<f64>() / delays.len().max(1) as f64;
+    assert!(
+        (0.0..=extra_s + LOSSY_ONSET_S).contains(&delay_s),
+        "plate.aac: strikes {delays:?} s later than in the source ({extra_s} s of extra frames)"
+    );
+    (report, delay_s)
 }
 
 /// Every extension the window may offer opens a fixture with it (the

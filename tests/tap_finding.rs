@@ -10,6 +10,7 @@
 //! not foretell.
 
 mod common;
+mod real;
 use common::analyze_with_defaults;
 
 use std::f64::consts::PI;
@@ -195,4 +196,160 @@ fn dc_offset_changes_nothing() {
             assert!((a.level_db - b.level_db).abs() < 0.05, "offset {offset}");
         }
     }
+}
+
+/// The first tap at point 7B of the bundled roving-tap demo set is one
+/// clean synthetic strike (a click, then the plate's modes, 50 dB over the
+/// room noise). It was refused as a double strike: a predictor refitted
+/// where the decay is weak and its low modes barely resolved has large
+/// coefficients, and the room noise through it was taken for new sound.
+/// Both taps of every point are kept now.
+#[test]
+fn every_tap_of_the_demo_set_is_kept() {
+    let folder = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("assets/roving_violin_top");
+    let mut names: Vec<_> = std::fs::read_dir(&folder)
+        .unwrap()
+        .map(|e| e.unwrap().path())
+        .filter(|p| p.extension().is_some_and(|x| x == "wav"))
+        .collect();
+    names.sort();
+    assert_eq!(names.len(), 45);
+    for path in names {
+        let recording = tapwright::wav_io::read_mono(&path).unwrap();
+        let found = tapwright::shapes::taps_in_recording(
+            &recording.samples,
+            f64::from(recording.sample_rate_hz),
+            &tapwright::shapes::roving_trigger_settings(),
+        );
+        assert_eq!(
+            (found.accepted.len(), found.rejected.as_slice()),
+            (2, &[][..]),
+            "{}",
+            path.display()
+        );
+    }
+}
+
+/// A slow rise: the plate's modes grow linearly over 25 ms (a soft
+/// mallet, or a resonator taking up the sound) before they decay, in a
+/// noisy room (RMS 2e-3, 42 dB under the sound). The sound clears the
+/// 20 dB margin 2 ms after the rise starts, so the block that fires the
+/// trigger starts 1–2 ms late; the record's strike is put where the sound
+/// first stands out of the noise (there the rise is 0.2 ms old), within
+/// 0.5 ms of the rise's known start (common practice, no source).
+#[test]
+fn a_slow_rise_starts_where_it_leaves_the_noise() {
+    let rise_s = 0.025;
+    let starts_s = [0.6, 1.9003, 3.20071];
+    let mut x = vec![0.0; (4.5 * FS) as usize];
+    for &at_s in &starts_s {
+        let start = (at_s * FS).round() as usize;
+        let mut strike = vec![0.0; (1.2 * FS) as usize];
+        add_modes(&mut strike, FS, 0, &plate(0.3));
+        for (n, v) in strike.iter_mut().enumerate() {
+            *v *= (n as f64 / (rise_s * FS)).min(1.0);
+        }
+        for (o, s) in x[start..].iter_mut().zip(&strike) {
+            *o += s;
+        }
+    }
+    let report = analyze(&with_noise(x, 2e-3, 71));
+    assert_eq!(reasons(&report), vec![None; 3]);
+    for (tap, &at_s) in report.taps.iter().zip(&starts_s) {
+        let start_s = (at_s * FS).round() / FS;
+        assert!(
+            (tap.onset_s - start_s).abs() <= 0.0005,
+            "onset {:.5} s for a rise from {start_s:.5} s",
+            tap.onset_s
+        );
+    }
+}
+
+/// A faint precursor 3 ms before a strike (an encoder's pre-echo, a brush
+/// of the mallet) that rises past half the margin and falls back: part of
+/// the strike, not a too-quiet tap, and the strike's record starts at the
+/// strike, not 100 ms later.
+#[test]
+fn a_precursor_is_part_of_its_strike() {
+    let onset_s = onset_after_precursor(5e-4, 5);
+    assert!((onset_s - PRECURSOR_STRIKE_S).abs() < 0.004, "{onset_s}");
+}
+
+const PRECURSOR_STRIKE_S: f64 = 1.0;
+
+/// A strike at [`PRECURSOR_STRIKE_S`] after a 1 ms burst of noise of RMS
+/// `precursor_rms` 3 ms before it, in room noise of RMS 1e-4: the onset of
+/// its one tap, which must be kept.
+fn onset_after_precursor(precursor_rms: f64, seed: u64) -> f64 {
+    let mut x = vec![0.0; (3.0 * FS) as usize];
+    let precursor = ((PRECURSOR_STRIKE_S - 0.003) * FS) as usize;
+    let mut noise = NoiseGenerator::new(seed);
+    for v in &mut x[precursor..precursor + 48] {
+        *v += precursor_rms * noise.gaussian();
+    }
+    strike(&mut x, PRECURSOR_STRIKE_S, &plate(0.25), 0.05);
+    let report = analyze(&with_noise(x, 1e-4, 70 + seed));
+    assert_eq!(reasons(&report), vec![None]);
+    report.taps[0].onset_s
+}
+
+/// A recording that starts with digital silence (a decoder's priming, an
+/// edit's padding) and then the room: the rise from silence to the room
+/// noise is no tap, and the first strike is found where it is.
+#[test]
+fn a_start_in_digital_silence_is_no_tap() {
+    let mut x = vec![0.0; (3.0 * FS) as usize];
+    strike(&mut x, 0.4, &plate(0.25), 0.05);
+    strike(&mut x, 1.7, &plate(0.25), 0.05);
+    let mut samples = with_noise(x, 3e-4, 73);
+    let silent = (0.03 * FS) as usize;
+    samples[..silent].iter_mut().for_each(|v| *v = 0.0);
+    samples[silent..silent + 200]
+        .iter_mut()
+        .enumerate()
+        .for_each(|(i, v)| *v *= i as f32 / 200.0);
+    let report = analyze(&samples);
+    assert_eq!(reasons(&report), vec![None; 2]);
+    assert!((report.taps[0].onset_s - 0.4).abs() < 0.002);
+}
+
+/// A precursor loud enough to fire the trigger (a click 30 dB over the
+/// room, 3 ms before the strike: an encoder's pre-echo, a brush of the
+/// mallet) and then the strike, 40 dB louder still: the record starts
+/// again at the strike, which it measures from where it rises.
+#[test]
+fn a_loud_precursor_restarts_the_record_at_the_strike() {
+    let onset_s = onset_after_precursor(3e-3, 6);
+    assert!((onset_s - PRECURSOR_STRIKE_S).abs() <= 0.0005, "{onset_s}");
+}
+
+/// Every real strike of the corpus (`tests/data/real/`, in the issue's
+/// three-strike files) is recorded from where it starts: no later than
+/// 0.5 ms after its first sample standing 3× over the room noise's RMS
+/// (common practice, no source), and no more than 2 ms before it (a faint
+/// lead-in under that mark is part of the strike). A drum's strike climbs
+/// 20 dB within a few milliseconds of its first block and is not a
+/// precursor followed by a strike: its record is not started again.
+#[test]
+fn real_strikes_are_recorded_from_their_start() {
+    let mut late = Vec::new();
+    for sample in real::load_corpus() {
+        let fs = sample.sample_rate_hz;
+        let file = real::three_strikes(&sample, 1);
+        let report = tapwright::analysis::find_taps(&file, fs, &real::trigger_settings());
+        let standing = 3.0 * real::ROOM_NOISE_RMS / real::PLAYBACK_GAIN;
+        let first_s = sample
+            .samples
+            .iter()
+            .position(|x| f64::from(x.abs()) > standing)
+            .unwrap_or(0) as f64
+            / fs;
+        for (tap, placed_s) in report.iter().zip(real::strike_times_s()) {
+            let error_ms = (tap.onset_sample() as f64 / fs - placed_s - first_s) * 1e3;
+            if !(-2.0..=0.5).contains(&error_ms) {
+                late.push(format!("{}: {error_ms:+.2} ms", sample.file));
+            }
+        }
+    }
+    assert!(late.is_empty(), "{late:?}");
 }

@@ -10,7 +10,7 @@ use egui_kittest::kittest::Queryable;
 use tapwright::analysis::synth::{add_modes, NoiseGenerator, SynthMode};
 use tapwright::audio::Pacing;
 use tapwright::ledger::{Family, PartKind};
-use tapwright::ui::{AppCommand, AppOptions, SourceState, StartSource, TapwrightApp};
+use tapwright::ui::{AppCommand, AppOptions, StartSource, TapwrightApp};
 
 fn mode_near(app: &TapwrightApp, frequency_hz: f64) -> Option<(usize, f64)> {
     app.pass()?
@@ -163,15 +163,7 @@ fn a_wav_file_opened_by_typed_path_shows_its_modes() {
 
     let mut harness = demo_harness();
     harness.run_ok();
-    let field = harness.get_by_label("Path");
-    field.focus();
-    field.type_text(&path.display().to_string());
-    harness.run_ok();
-    harness.get_by_label("Open").click();
-    let expected = SourceState::File(path.clone());
-    step_until(&mut harness, "the opened recording", |app| {
-        app.input().state == expected && !app.is_busy()
-    });
+    open_by_path(&mut harness, &path);
 
     let app = harness.state();
     assert_eq!(app.session().taps().len(), 3);

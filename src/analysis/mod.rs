@@ -2,22 +2,29 @@
 //! the modes (frequency, Q, level) of each tap, combining taps into a pass,
 //! the display spectrum and pitch naming. No files, no devices, no window.
 //!
-//! The method is the one in `README.md` ("How a tap is measured"): a
-//! complex-ratio estimate on the unwindowed DFT of a record matched to each
-//! mode's decay, subtraction of stronger modes, then a joint least-squares
-//! refinement of overlapping modes in the time domain.
+//! The method (see `modal`): one FFT of the decay; around each candidate
+//! peak a band, filtered and decimated in the FFT domain, with a span
+//! matched to the peak's width and a fixed number of samples; in each band
+//! a matrix pencil, a variable-projection refit and an information
+//! criterion; poles kept by the band that owns them.
 
 pub mod aggregate;
+mod bands;
+mod candidates;
+mod found_tap;
 mod linalg;
 pub mod modal;
+mod noise;
 pub mod onset;
-mod pencil;
 pub mod pitch;
 pub mod recording;
 pub mod sine_fit;
 pub mod spectrum;
+mod subspace;
 pub mod synth;
 pub mod tap_finder;
+mod trigger_levels;
+mod varpro;
 
 pub use aggregate::{aggregate_taps, PassMode, PassResult};
 pub use modal::{AnalysisSettings, Mode, TapAnalysis, TapAnalyzer};

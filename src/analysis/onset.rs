@@ -17,6 +17,15 @@
 //! blocks of [`BLOCK_MS`]. Onsets as bursts of prediction error: Bello et
 //! al., "A tutorial on onset detection in music signals", IEEE Trans.
 //! Speech and Audio Processing 13(5), 2005, section III-B.
+//!
+//! The room noise passes through the predictor too: white noise of power
+//! σ² leaves an error of σ²·(1 + Σ aₖ²) (the predictor is an FIR filter
+//! with taps 1, a₁ … a_p). A predictor fitted where the decay is weak, or
+//! dominated by low modes that a few milliseconds barely resolve, has large
+//! coefficients, and its error on the noise alone can stand 10 dB above
+//! the error of the predictor before it. That is no new sound: the level
+//! the error is judged against is never below what the noise alone gives
+//! through the current predictor ([`NoveltyDetector::set_noise_power`]).
 
 /// Prediction order: room for twelve modes.
 const ORDER: usize = 24;
@@ -28,14 +37,27 @@ const REFIT_MS: f64 = 4.0;
 const BLOCK_MS: f64 = 1.0;
 /// The error level is the median over this many blocks before.
 const REFERENCE_BLOCKS: usize = 16;
+/// A block of prediction error this many times (10 dB) its level of a
+/// moment before is new sound. The error of a decay, beating or not, stays
+/// at the room noise and wanders by a dB or two; a second strike, even at a
+/// third of the first's strength, lifts it by 20 dB or more.
+const NEW_SOUND_RATIO: f64 = 10.0;
+/// New sound is a second strike when it carries at least this fraction
+/// (−10 dB) of the energy that set the decay ringing, as the same
+/// predictor measures both. An early reflection of the strike from a bench
+/// or a wall (a fifth of its pressure or less at a few milliseconds, from
+/// memory) stays below; a mallet that bounces back at a third of its first
+/// strength is above.
+const SECOND_STRIKE_ENERGY_RATIO: f64 = 0.1;
 
 /// What one block tells.
 #[derive(Clone, Copy, Debug, PartialEq)]
 pub struct BlockNovelty {
     /// Mean-square prediction error over the block (full scale = 1).
     pub unforetold_power: f64,
-    /// What the prediction error was a moment before: the larger of the
-    /// fitted predictor's own error and the median of the blocks before.
+    /// What the prediction error was a moment before: the largest of the
+    /// fitted predictor's own error, the median of the blocks before, and
+    /// the error the room noise alone gives through the predictor.
     pub reference_power: f64,
 }
 
@@ -68,6 +90,10 @@ pub struct NoveltyDetector {
     block_fill: usize,
     recent: [f64; REFERENCE_BLOCKS],
     recent_count: usize,
+    /// Room noise power per sample (full scale = 1), if known.
+    noise_power: f64,
+    /// The current predictor's noise gain, 1 + Σ aₖ².
+    noise_gain: f64,
 }
 
 impl NoveltyDetector {
@@ -96,7 +122,26 @@ impl NoveltyDetector {
             block_fill: 0,
             recent: [0.0; REFERENCE_BLOCKS],
             recent_count: 0,
+            noise_power: 0.0,
+            noise_gain: 1.0,
         }
+    }
+
+    /// Tells the room noise's power per sample (full scale = 1): the error
+    /// the noise alone leaves through a predictor is never taken for new
+    /// sound.
+    pub fn set_noise_power(&mut self, noise_power: f64) {
+        self.noise_power = if noise_power.is_finite() {
+            noise_power.max(0.0)
+        } else {
+            0.0
+        };
+    }
+
+    /// The error power that the room noise alone leaves through the current
+    /// predictor: noise power × (1 + Σ aₖ²).
+    pub fn noise_error_power(&self) -> f64 {
+        self.noise_power * self.noise_gain
     }
 
     /// True once a predictor has been fitted to the decay.
@@ -136,6 +181,7 @@ impl NoveltyDetector {
         self.block_sum = 0.0;
         self.block_fill = 0;
         self.recent_count = 0;
+        self.noise_gain = 1.0;
     }
 
     /// Feeds one sample; at the end of each block, once a predictor has
@@ -181,7 +227,9 @@ impl NoveltyDetector {
         self.block_fill = 0;
         let novelty = BlockNovelty {
             unforetold_power,
-            reference_power: fitted_error.max(self.median_recent()),
+            reference_power: fitted_error
+                .max(self.median_recent())
+                .max(self.noise_error_power()),
         };
         self.recent[self.recent_count % REFERENCE_BLOCKS] = unforetold_power;
         self.recent_count += 1;
@@ -218,6 +266,7 @@ impl NoveltyDetector {
         // synthetic decay.
         autocorrelation[0] *= 1.0 + 1e-9;
         self.fitted_error = levinson_durbin(&autocorrelation, &mut self.coefficients);
+        self.noise_gain = 1.0 + self.coefficients.iter().map(|a| a * a).sum::<f64>();
     }
 }
 
@@ -247,6 +296,76 @@ fn levinson_durbin(r: &[f64; ORDER + 1], a: &mut [f64; ORDER]) -> Option<f64> {
         }
     }
     Some(error)
+}
+
+/// The search for a second strike during one record, fed sample by sample
+/// once the strike's contact is over.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct SecondStrikeWatch {
+    /// What set the decay ringing, as the first predictor of the decay
+    /// measures it (None until that predictor is fitted).
+    strike_energy: Option<f64>,
+    /// Unforetold energy of the previous block (a strike may straddle two).
+    previous_block_energy: f64,
+    found: bool,
+}
+
+impl SecondStrikeWatch {
+    /// True once a second strike was heard.
+    pub fn found_second_strike(&self) -> bool {
+        self.found
+    }
+
+    /// Feeds the newest sample of `record` (whose strike is at
+    /// `onset_index`) to the search: once the decay's first predictor is
+    /// fitted it measures the strike with it (over `guard` samples either
+    /// side of the onset), and from then on a block that brings new sound,
+    /// `audible_ratio` times above what the room noise alone leaves through
+    /// the predictor, with a good part of the strike's energy, is a second
+    /// strike.
+    ///
+    /// While the sound is `still_rising` (its envelope made a new maximum
+    /// a moment ago), the strike's own excitation is going on: a soft
+    /// mallet on a bar, or a bar whose resonator takes up the sound, keeps
+    /// feeding in energy for tens of milliseconds, and no predictor fitted
+    /// to the first milliseconds foretells it. What arrives then is counted
+    /// into the strike's energy, not against it; a second strike comes once
+    /// the sound has begun to fall. (A second strike lifts the 10 ms
+    /// envelope by a tenth of its own power in its first block, which does
+    /// not make a new maximum over a decay that fell for a few ms: it is
+    /// judged, and found.)
+    pub fn push(
+        &mut self,
+        novelty: &mut NoveltyDetector,
+        (record, onset_index): (&[f32], usize),
+        guard: usize,
+        audible_ratio: f64,
+        still_rising: bool,
+    ) {
+        let Some(&sample) = record.last() else {
+            return;
+        };
+        let block = novelty.push(sample);
+        if self.strike_energy.is_none() && novelty.has_predictor() {
+            let from = onset_index.saturating_sub(guard).min(record.len());
+            let to = (onset_index + guard).min(record.len());
+            self.strike_energy = Some(novelty.unforetold_energy(&record[from..to]));
+        }
+        let (Some(block), Some(strike_energy)) = (block, self.strike_energy) else {
+            return;
+        };
+        let energy = block.unforetold_power * novelty.block_len() as f64;
+        if still_rising {
+            self.strike_energy = Some(strike_energy + energy);
+            self.previous_block_energy = 0.0;
+            return;
+        }
+        let burst = energy + self.previous_block_energy;
+        self.previous_block_energy = energy;
+        let audible = block.unforetold_power > audible_ratio * novelty.noise_error_power();
+        let strong = burst > SECOND_STRIKE_ENERGY_RATIO * strike_energy;
+        self.found |= audible && strong && block.ratio() > NEW_SOUND_RATIO;
+    }
 }
 
 #[cfg(test)]

@@ -7,9 +7,14 @@
 //!
 //! - envelope: RMS over blocks of about 1 ms;
 //! - noise floor: running median of the block levels over about 1 s, updated
-//!   only while armed;
-//! - trigger when a block rises `margin_db` above the floor; the record starts
-//!   `pre_trigger_ms` before that block and runs `record_ms` after it;
+//!   only while armed, first given after 100 ms, never learned from digital
+//!   silence (`trigger_levels`);
+//! - trigger when a block rises `margin_db` above the floor; the strike is
+//!   put where its rise leaves the noise (a change point, sample-accurate,
+//!   so a slow rise is not placed late); the record keeps `pre_trigger_ms`
+//!   before that block and runs `record_ms` after the strike; a block
+//!   louder by the margin within the first 5 ms starts the record again
+//!   there (what fired the trigger was the strike's precursor);
 //! - before anything else, a DC blocker (two first-order high-pass stages at
 //!   5 Hz, started on the first sample) takes out any constant or drifting
 //!   offset of the input, so records, levels and the analysis see only
@@ -19,159 +24,56 @@
 //!   ≥ 99 % of full scale), double strike (sound that the decay so far does
 //!   not foretell arrives during the record; see `onset`: a beating pair
 //!   rises and falls but stays foretold, a second strike does not), too
-//!   quiet (a rise that clears half the margin but never the margin), too
+//!   quiet (a rise that clears half the margin but never the margin, and
+//!   no strike within the 10 ms after it: a pre-echo belongs to its strike), too
 //!   short (the record ends before `min_record_ms`, or the ringing dies
 //!   within `min_ring_ms`);
 //! - re-arm only after `refractory_ms` and once the envelope is back within
 //!   `settle_db` of the floor (or a new strike clearly starts).
 
 use std::collections::VecDeque;
-use std::fmt;
 
-use serde::{Deserialize, Serialize};
-
-use super::onset::NoveltyDetector;
-
-/// Why a tap was left out of a pass.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
-#[serde(rename_all = "snake_case")]
-pub enum RejectReason {
-    /// Two or more consecutive samples at 99 % of full scale or more.
-    Clipped,
-    /// New sound arrived during the decay: a second strike or a rattle.
-    DoubleStrike,
-    /// The strike rose above the noise but not by the trigger margin.
-    TooQuiet,
-    /// The recording ended too soon after the strike, or the sound died at once.
-    TooShort,
-    /// Left out by the user.
-    LeftOut,
-}
-
-impl RejectReason {
-    /// A short phrase for tables.
-    pub fn short_text(self) -> &'static str {
-        match self {
-            Self::Clipped => "clipped",
-            Self::DoubleStrike => "double strike",
-            Self::TooQuiet => "too quiet",
-            Self::TooShort => "too short",
-            Self::LeftOut => "left out",
-        }
-    }
-
-    /// What the maker can do about it.
-    pub fn advice(self) -> &'static str {
-        match self {
-            Self::Clipped => "the input overloaded: tap more softly or turn the input gain down",
-            Self::DoubleStrike => "the sound rose again while decaying: tap once, let the mallet bounce off",
-            Self::TooQuiet => "the tap barely rose above the room noise: tap a little harder or move the microphone closer",
-            Self::TooShort => "the tap did not ring long enough to measure",
-            Self::LeftOut => "left out by hand",
-        }
-    }
-}
-
-impl fmt::Display for RejectReason {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        f.write_str(self.short_text())
-    }
-}
-
-/// How taps are found. Times in milliseconds, levels in dB.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
-#[serde(default)]
-pub struct TriggerSettings {
-    /// How far above the noise floor a strike must rise.
-    pub margin_db: f64,
-    /// How much of the sound before the strike each record keeps: the
-    /// analysis measures the noise there, and tells a steady tone (hum)
-    /// from a mode the strike set ringing.
-    pub pre_trigger_ms: f64,
-    /// Length of each record after the strike.
-    pub record_ms: f64,
-    /// Minimum time between the end of one record and the next strike.
-    pub refractory_ms: f64,
-    /// A record shorter than this (the input ended) is rejected.
-    pub min_record_ms: f64,
-    /// Ringing shorter than this (back to the floor) is rejected.
-    pub min_ring_ms: f64,
-    /// After a record, a rise by more than this (and past the margin) above
-    /// the lowest level since starts a new tap at once.
-    pub double_strike_rise_db: f64,
-    /// The envelope must fall back within this of the floor to re-arm.
-    pub settle_db: f64,
-    /// Envelope block length.
-    pub envelope_ms: f64,
-    /// Noise-floor median window.
-    pub floor_window_ms: f64,
-}
-
-impl Default for TriggerSettings {
-    fn default() -> Self {
-        Self {
-            margin_db: 20.0,
-            pre_trigger_ms: 100.0,
-            record_ms: 1000.0,
-            refractory_ms: 100.0,
-            min_record_ms: 100.0,
-            min_ring_ms: 15.0,
-            double_strike_rise_db: 6.0,
-            settle_db: 6.0,
-            envelope_ms: 1.0,
-            floor_window_ms: 1000.0,
-        }
-    }
-}
-
-/// One strike found in the stream, accepted or not.
-#[derive(Clone, Debug, PartialEq)]
-pub struct FoundTap {
-    /// Stream position (samples since the trigger started) of the first
-    /// sample of `samples`.
-    pub start_sample: u64,
-    /// Index in `samples` of the block where the strike was detected.
-    pub onset_index: usize,
-    /// The record: `pre_trigger_ms` before the strike, up to `record_ms` after.
-    pub samples: Vec<f32>,
-    /// Loudest envelope block of the record, dB full scale.
-    pub peak_dbfs: f64,
-    /// Noise floor when the strike came, dB full scale.
-    pub floor_dbfs: f64,
-    /// Why the tap is left out, if it is.
-    pub rejected: Option<RejectReason>,
-}
-
-impl FoundTap {
-    /// Stream position of the strike.
-    pub fn onset_sample(&self) -> u64 {
-        self.start_sample + self.onset_index as u64
-    }
-
-    /// The part of the record from the strike on.
-    pub fn from_onset(&self) -> &[f32] {
-        &self.samples[self.onset_index.min(self.samples.len())..]
-    }
-}
-
-/// What the trigger reports.
-#[derive(Clone, Debug, PartialEq)]
-pub enum TriggerEvent {
-    /// A strike was detected; its record follows in a [`TriggerEvent::Tap`].
-    Started { onset_sample: u64 },
-    /// A finished tap, accepted or rejected.
-    Tap(FoundTap),
-}
+pub use super::found_tap::{FoundTap, RejectReason, TriggerEvent, TriggerSettings};
+use super::onset::{NoveltyDetector, SecondStrikeWatch};
+use super::trigger_levels::{power_to_db, strike_start, DcBlocker, FloorTracker};
 
 /// Lowest level the floor may take: digital silence must not make the
 /// trigger fire on rounding noise.
 const FLOOR_MIN_DBFS: f64 = -100.0;
-/// Level histogram resolution for the running median.
-const HIST_STEP_DB: f64 = 0.25;
-const HIST_MIN_DB: f64 = -160.0;
-const HIST_BINS: usize = 680; // -160 .. +10 dB
-/// Blocks of quiet needed before the trigger arms for the first time.
-const WARM_UP_BLOCKS: usize = 20;
+/// Noise heard before the trigger arms for the first time: the length of
+/// the quiet a record keeps before its strike. A decoder's start-up (the
+/// priming of raw AAC, a fade in from near silence 20–50 ms long) is then
+/// less than half of what the first floor is the median of, and is not
+/// taken for the room.
+const WARM_UP_MS: f64 = 100.0;
+/// A block below this is digital silence (exact zeros, or the rounding of
+/// a decoder's priming), far under any real room (a 24-bit converter's own
+/// noise is near −140 dBFS over the audio band, a quiet room through a
+/// microphone −90 or above; from memory): it is not room noise, and the
+/// floor is not learned from it (while nothing else has been heard, the
+/// floor is the lowest it may be).
+const DIGITAL_SILENCE_DBFS: f64 = -130.0;
+/// A rise that stays under the margin is only reported as too quiet once
+/// this long has passed without a strike: an encoder's pre-echo (AAC, MP3)
+/// rises 1–4 ms before the strike it belongs to, and is part of it.
+const QUIET_CONFIRM_MS: f64 = 10.0;
+/// The start of a strike is looked for this far back from the block that
+/// crossed the margin (a slow rise takes a few milliseconds to clear it).
+const RISE_SEARCH_MS: f64 = 30.0;
+/// ... and from this long before the last block that was still at the
+/// noise, so that the search sees noise before the rise.
+const RISE_SEARCH_PAD_MS: f64 = 3.0;
+/// In the first milliseconds of a record (before [`NEW_SOUND_GUARD_MS`]),
+/// a block louder than the one that started it by the trigger margin is
+/// the real strike, and what started the record was its precursor (an
+/// encoder's pre-echo, a brush of the mallet): the record starts again
+/// there.
+const RESTART_WITHIN_MS: f64 = NEW_SOUND_GUARD_MS;
+/// ... provided the sound paused or fell back in between (no block since
+/// the trigger more than this above the one that fired it): a strike's
+/// own rise, which can climb 20 dB within a few milliseconds after its
+/// first block barely cleared the margin, keeps rising.
+const PRECURSOR_PAUSE_DB: f64 = 3.0;
 /// Time after the envelope peak during which the strike itself is still
 /// going on, so rises are not double strikes.
 const CONTACT_MS: f64 = 4.0;
@@ -180,25 +82,12 @@ const CONTACT_MS: f64 = 4.0;
 const QUIET_RISE_MS: f64 = 300.0;
 /// Full-scale fraction that counts as clipped.
 const CLIP_LEVEL: f32 = 0.99;
-/// Corner of each of the two DC-blocking high-pass stages, Hz: far below
-/// any band a maker measures (a 40 Hz mode loses 0.07 dB), fast enough
-/// (time constant 32 ms) to follow an offset that drifts.
-const DC_BLOCK_HZ: f64 = 5.0;
 /// The search for new sound starts this long after the trigger, when the
 /// first strike's contact is over and only its free decay is left.
 const NEW_SOUND_GUARD_MS: f64 = 5.0;
-/// A block of prediction error this many times (10 dB) its level of a
-/// moment before is new sound. The error of a decay, beating or not, stays
-/// at the room noise and wanders by a dB or two; a second strike, even at a
-/// third of the first's strength, lifts it by 20 dB or more.
-const NEW_SOUND_RATIO: f64 = 10.0;
-/// New sound is a second strike when it carries at least this fraction
-/// (−10 dB) of the energy that set the decay ringing, as the same
-/// predictor measures both. An early reflection of the strike from a bench
-/// or a wall (a fifth of its pressure or less at a few milliseconds, from
-/// memory) stays below; a mallet that bounces back at a third of its first
-/// strength is above.
-const SECOND_STRIKE_ENERGY_RATIO: f64 = 0.1;
+/// The strike's excitation is over once the decay envelope has made no new
+/// maximum for this long (see `onset::SecondStrikeWatch`).
+const EXCITATION_GAP_MS: f64 = 2.0;
 /// Averaging time of the slow envelope used to follow the decay: 10 ms
 /// averages the power of any mode above 40 Hz to within about 1 dB
 /// (sin² repeats every half period), where the 1 ms trigger envelope of a
@@ -229,104 +118,23 @@ struct Recording {
     floor_db: f64,
     peak_db: f64,
     blocks_since_peak: usize,
+    /// Loudest decay envelope so far (never frozen, unlike `peak_db`) and
+    /// the envelope blocks since it: while the sound still rises to new
+    /// maxima, the strike's own excitation is going on.
+    loudest_db: f64,
+    blocks_since_loudest: usize,
     /// Block index (since onset) at which the envelope first fell back to
     /// the floor, if it has.
     died_after_blocks: Option<usize>,
     blocks: usize,
+    /// Fast envelope level of the block that started the record.
+    trigger_level_db: f64,
+    /// Quietest fast level since that block (a precursor falls back or
+    /// pauses before its strike; a strike's own rise does not).
+    quietest_since_trigger_db: f64,
     clipped: bool,
-    double: bool,
-    /// What set the decay ringing, as the first predictor of the decay
-    /// measures it (None until that predictor is fitted).
-    strike_energy: Option<f64>,
-    /// Unforetold energy of the previous block (a strike may straddle two).
-    previous_block_energy: f64,
-}
-
-/// Running median of block levels by a histogram of 0.25 dB bins.
-#[derive(Clone, Debug)]
-struct FloorTracker {
-    history: VecDeque<u16>,
-    counts: Vec<u32>,
-    capacity: usize,
-}
-
-impl FloorTracker {
-    fn new(capacity: usize) -> Self {
-        Self {
-            history: VecDeque::with_capacity(capacity + 1),
-            counts: vec![0; HIST_BINS],
-            capacity: capacity.max(1),
-        }
-    }
-
-    fn bin(level_db: f64) -> u16 {
-        let index = ((level_db - HIST_MIN_DB) / HIST_STEP_DB).floor();
-        index.clamp(0.0, (HIST_BINS - 1) as f64) as u16
-    }
-
-    fn push(&mut self, level_db: f64) {
-        let bin = Self::bin(level_db);
-        self.history.push_back(bin);
-        self.counts[usize::from(bin)] += 1;
-        if self.history.len() > self.capacity {
-            if let Some(old) = self.history.pop_front() {
-                self.counts[usize::from(old)] -= 1;
-            }
-        }
-    }
-
-    fn len(&self) -> usize {
-        self.history.len()
-    }
-
-    fn median_db(&self) -> f64 {
-        let half = self.history.len().div_ceil(2) as u32;
-        let mut seen = 0;
-        for (bin, &count) in self.counts.iter().enumerate() {
-            seen += count;
-            if seen >= half && count > 0 {
-                return HIST_MIN_DB + (bin as f64 + 0.5) * HIST_STEP_DB;
-            }
-        }
-        HIST_MIN_DB
-    }
-}
-
-/// Two first-order DC blockers in series, y[n] = x[n] − x[n−1] + R·y[n−1],
-/// each started as if its input had always been the first sample, so a
-/// constant offset gives no start-up transient.
-#[derive(Clone, Debug)]
-struct DcBlocker {
-    pole: f64,
-    previous_in: [f64; 2],
-    previous_out: [f64; 2],
-    started: bool,
-}
-
-impl DcBlocker {
-    fn new(sample_rate_hz: f64) -> Self {
-        Self {
-            pole: (-2.0 * std::f64::consts::PI * DC_BLOCK_HZ / sample_rate_hz).exp(),
-            previous_in: [0.0; 2],
-            previous_out: [0.0; 2],
-            started: false,
-        }
-    }
-
-    fn filter(&mut self, sample: f32) -> f32 {
-        let mut x = f64::from(sample);
-        if !self.started {
-            self.started = true;
-            self.previous_in = [x, 0.0];
-        }
-        for stage in 0..2 {
-            let y = x - self.previous_in[stage] + self.pole * self.previous_out[stage];
-            self.previous_in[stage] = x;
-            self.previous_out[stage] = y;
-            x = y;
-        }
-        x as f32
-    }
+    /// The search for a second strike in this record.
+    watch: SecondStrikeWatch,
 }
 
 /// Streaming tap finder. Feed it samples with [`TapTrigger::push`]; call
@@ -351,6 +159,16 @@ pub struct TapTrigger {
     position: u64,
     floor: FloorTracker,
     state: State,
+    /// A too-quiet rise waiting for [`QUIET_CONFIRM_MS`] to pass without
+    /// a strike, and the blocks left to wait.
+    pending_quiet: Option<(FoundTap, usize)>,
+    /// Fast envelope levels of the last blocks, newest last (for the
+    /// search of a strike's start).
+    recent_levels: VecDeque<f64>,
+    /// Blocks heard, and those of them that were room noise (not digital
+    /// silence).
+    blocks_heard: usize,
+    noise_blocks: usize,
     /// The last block powers, for the slow envelope.
     recent_powers: VecDeque<f64>,
     recent_sum: f64,
@@ -389,6 +207,10 @@ impl TapTrigger {
             block_fill: 0,
             position: 0,
             state: State::Armed,
+            pending_quiet: None,
+            recent_levels: VecDeque::new(),
+            blocks_heard: 0,
+            noise_blocks: 0,
         }
     }
 
@@ -409,7 +231,13 @@ impl TapTrigger {
         let dc_blocker = self.dc_blocker.clone();
         let (clip_run, last_clip_at) = (self.clip_run, self.last_clip_at);
         let history = std::mem::take(&mut self.history);
+        let pending_quiet = self.pending_quiet.take();
+        let recent_levels = std::mem::take(&mut self.recent_levels);
+        let (blocks_heard, noise_blocks) = (self.blocks_heard, self.noise_blocks);
         *self = Self::new(settings, self.sample_rate_hz);
+        self.pending_quiet = pending_quiet;
+        self.recent_levels = recent_levels;
+        (self.blocks_heard, self.noise_blocks) = (blocks_heard, noise_blocks);
         self.floor = floor;
         self.position = position;
         self.dc_blocker = dc_blocker;
@@ -430,7 +258,17 @@ impl TapTrigger {
 
     /// Current noise floor estimate in dB full scale (None while warming up).
     pub fn floor_dbfs(&self) -> Option<f64> {
-        (self.floor.len() >= WARM_UP_BLOCKS).then(|| self.floor.median_db().max(FLOOR_MIN_DBFS))
+        let warm_up_blocks = (WARM_UP_MS / self.block_ms()).round() as usize;
+        if self.blocks_heard < warm_up_blocks.max(1) {
+            return None;
+        }
+        // Nothing but digital silence so far (a clean 8-bit file, a gated
+        // input): the lowest floor, so that a strike still fires.
+        Some(if self.noise_blocks == 0 {
+            FLOOR_MIN_DBFS
+        } else {
+            self.floor.median_db().max(FLOOR_MIN_DBFS)
+        })
     }
 
     /// True while a strike is being recorded.
@@ -453,6 +291,9 @@ impl TapTrigger {
     /// Ends the stream: a record under way is finished as it is (and
     /// rejected as too short if it is shorter than `min_record_ms`).
     pub fn finish(&mut self, events: &mut Vec<TriggerEvent>) {
+        if let Some((quiet, _)) = self.pending_quiet.take() {
+            events.push(TriggerEvent::Tap(quiet));
+        }
         if let State::Recording(rec) = std::mem::replace(&mut self.state, State::Armed) {
             events.push(TriggerEvent::Tap(self.close_record(rec)));
         }
@@ -466,15 +307,18 @@ impl TapTrigger {
             self.history.pop_front();
         }
         self.history.push_back(sample);
+        let block_ms = self.block_ms();
         if let State::Recording(rec) = &mut self.state {
             rec.samples.push(sample);
             rec.clipped |= self.clip_run >= 2;
             if rec.samples.len() > rec.onset_index + self.new_sound_guard {
-                look_for_second_strike(
+                let still_rising = rec.blocks_since_loudest as f64 * block_ms < EXCITATION_GAP_MS;
+                rec.watch.push(
                     &mut self.novelty,
-                    rec,
-                    &self.settings,
+                    (&rec.samples, rec.onset_index),
                     self.new_sound_guard,
+                    10f64.powf(self.settings.margin_db / 20.0),
+                    still_rising,
                 );
             }
         }
@@ -514,10 +358,53 @@ impl TapTrigger {
 
     /// `level_db` is the fast (trigger) envelope, `slow_db` the decay envelope.
     fn on_block(&mut self, level_db: f64, slow_db: f64, events: &mut Vec<TriggerEvent>) {
+        self.recent_levels.push_back(level_db);
+        let search_blocks = (RISE_SEARCH_MS / self.block_ms()).ceil() as usize + 1;
+        while self.recent_levels.len() > search_blocks {
+            self.recent_levels.pop_front();
+        }
         let Some(floor_db) = self.floor_dbfs() else {
-            self.floor.push(level_db);
+            self.learn_floor(level_db);
             return;
         };
+        let was_recording = self.is_recording();
+        self.next_state(level_db, slow_db, floor_db, events);
+        self.confirm_quiet_rise(!was_recording && self.is_recording(), events);
+    }
+
+    /// Room noise for the floor; digital silence is not.
+    fn learn_floor(&mut self, level_db: f64) {
+        self.blocks_heard += 1;
+        if level_db > DIGITAL_SILENCE_DBFS {
+            self.floor.push(level_db);
+            self.noise_blocks += 1;
+        }
+    }
+
+    /// A pending too-quiet rise is dropped when a strike starts (it was the
+    /// strike's precursor), and reported once its wait is over.
+    fn confirm_quiet_rise(&mut self, strike_started: bool, events: &mut Vec<TriggerEvent>) {
+        if strike_started {
+            self.pending_quiet = None;
+            return;
+        }
+        if let Some((_, blocks_left)) = &mut self.pending_quiet {
+            *blocks_left = blocks_left.saturating_sub(1);
+            if *blocks_left == 0 {
+                if let Some((quiet, _)) = self.pending_quiet.take() {
+                    events.push(TriggerEvent::Tap(quiet));
+                }
+            }
+        }
+    }
+
+    fn next_state(
+        &mut self,
+        level_db: f64,
+        slow_db: f64,
+        floor_db: f64,
+        events: &mut Vec<TriggerEvent>,
+    ) {
         let margin = self.settings.margin_db;
         let state = std::mem::replace(&mut self.state, State::Armed);
         self.state = match state {
@@ -530,7 +417,7 @@ impl TapTrigger {
                         peak_db: level_db,
                     }
                 } else {
-                    self.floor.push(level_db);
+                    self.learn_floor(level_db);
                     State::Armed
                 }
             }
@@ -543,7 +430,11 @@ impl TapTrigger {
                         peak_db: peak_db.max(level_db),
                     }
                 } else if self.blocks_to_ms(blocks) <= QUIET_RISE_MS {
-                    events.push(TriggerEvent::Tap(self.quiet_tap(blocks, floor_db, peak_db)));
+                    let wait = (QUIET_CONFIRM_MS / self.block_ms()).ceil() as usize;
+                    let quiet = self.quiet_tap(blocks, floor_db, peak_db);
+                    if let Some((earlier, _)) = self.pending_quiet.replace((quiet, wait.max(1))) {
+                        events.push(TriggerEvent::Tap(earlier));
+                    }
                     State::Settling {
                         blocks: 0,
                         min_db: slow_db,
@@ -553,7 +444,7 @@ impl TapTrigger {
                     State::Armed
                 }
             }
-            State::Recording(rec) => self.continue_record(rec, slow_db, events),
+            State::Recording(rec) => self.continue_record(rec, (level_db, slow_db), events),
             State::Settling { blocks, min_db } => {
                 self.continue_settling(blocks, min_db, (level_db, slow_db), floor_db, events)
             }
@@ -567,13 +458,15 @@ impl TapTrigger {
         events: &mut Vec<TriggerEvent>,
     ) -> State {
         let samples: Vec<f32> = self.history.iter().copied().collect();
-        let onset_index = samples.len().saturating_sub(self.block_len);
+        let onset_index = self.rise_start(&samples, floor_db);
         let start_sample = self.position - samples.len() as u64;
+        let trigger_level_db = self.recent_levels.back().copied().unwrap_or(slow_db);
         let record_len = ms_to_samples(self.settings.record_ms, self.sample_rate_hz);
         let mut all = Vec::with_capacity(onset_index + record_len + self.block_len);
         all.extend_from_slice(&samples);
         let clipped = self.last_clip_at.is_some_and(|at| at > start_sample);
         self.novelty.reset();
+        self.novelty.set_noise_power(10f64.powf(floor_db / 10.0));
         events.push(TriggerEvent::Started {
             onset_sample: start_sample + onset_index as u64,
         });
@@ -585,12 +478,14 @@ impl TapTrigger {
             floor_db,
             peak_db: slow_db,
             blocks_since_peak: 0,
+            loudest_db: slow_db,
+            blocks_since_loudest: 0,
             died_after_blocks: None,
             blocks: 1,
+            trigger_level_db,
+            quietest_since_trigger_db: f64::INFINITY,
             clipped,
-            strike_energy: None,
-            previous_block_energy: 0.0,
-            double: false,
+            watch: SecondStrikeWatch::default(),
         })
     }
 
@@ -600,10 +495,24 @@ impl TapTrigger {
     fn continue_record(
         &mut self,
         mut rec: Recording,
-        slow_db: f64,
+        (level_db, slow_db): (f64, f64),
         events: &mut Vec<TriggerEvent>,
     ) -> State {
         rec.blocks += 1;
+        if self.blocks_to_ms(rec.blocks) <= RESTART_WITHIN_MS
+            && level_db > rec.trigger_level_db + self.settings.margin_db
+            && rec.quietest_since_trigger_db <= rec.trigger_level_db + PRECURSOR_PAUSE_DB
+        {
+            self.restart_record(&mut rec, level_db, slow_db);
+        } else {
+            rec.quietest_since_trigger_db = rec.quietest_since_trigger_db.min(level_db);
+        }
+        if slow_db > rec.loudest_db {
+            rec.loudest_db = slow_db;
+            rec.blocks_since_loudest = 0;
+        } else {
+            rec.blocks_since_loudest += 1;
+        }
         if slow_db > rec.peak_db && !self.past_contact(rec.blocks_since_peak, rec.blocks) {
             rec.peak_db = slow_db;
             rec.blocks_since_peak = 0;
@@ -635,6 +544,10 @@ impl TapTrigger {
     ) -> State {
         let blocks = blocks + 1;
         let min_db = min_db.min(slow_db);
+        if self.pending_quiet.is_some() && level_db > floor_db + self.settings.margin_db {
+            // The strike that a quiet rise came just before.
+            return self.start_record(floor_db, slow_db, events);
+        }
         if self.blocks_to_ms(blocks) < self.settings.refractory_ms {
             return State::Settling { blocks, min_db };
         }
@@ -650,6 +563,65 @@ impl TapTrigger {
         }
     }
 
+    /// Where the strike whose block just crossed the margin starts in
+    /// `samples` (the pre-trigger history, ending with that block): the
+    /// change point out of the room noise ([`strike_start`]), searched from
+    /// a little before the last block that was still near the noise, out of
+    /// the level there (the noise, or a tail just above it). When the
+    /// sound before never fell back to the noise within [`RISE_SEARCH_MS`]
+    /// (a strike on a decay that has not died), the start of the block.
+    fn rise_start(&self, samples: &[f32], floor_db: f64) -> usize {
+        let block_start = samples.len().saturating_sub(self.block_len);
+        let quiet_back = self
+            .recent_levels
+            .iter()
+            .rev()
+            .position(|&level| level <= floor_db + self.settings.settle_db);
+        let Some(blocks_back) = quiet_back else {
+            return block_start;
+        };
+        let pad = ms_to_samples(RISE_SEARCH_PAD_MS, self.sample_rate_hz);
+        let from = samples
+            .len()
+            .saturating_sub((blocks_back + 1) * self.block_len + pad);
+        // What the rise rises out of: the room noise, or the tail of an
+        // earlier tap that is still a little above it (the change point is
+        // then where the sound clearly rises over that tail).
+        let quiet_end = (samples.len() - (blocks_back * self.block_len)).max(from);
+        let quiet = &samples[from..quiet_end];
+        let quiet_power =
+            quiet.iter().map(|&x| f64::from(x).powi(2)).sum::<f64>() / quiet.len().max(1) as f64;
+        let noise_power = 10f64.powf(floor_db / 10.0).max(quiet_power);
+        strike_start(&samples[from..], noise_power).map_or(block_start, |at| from + at)
+    }
+
+    /// A much louder block soon after the trigger: the record starts again
+    /// at the rise out of what started it.
+    fn restart_record(&mut self, rec: &mut Recording, level_db: f64, slow_db: f64) {
+        let from = rec.onset_index.min(rec.samples.len());
+        let before_power = 10f64.powf(rec.trigger_level_db / 10.0);
+        let block_start = rec.samples.len().saturating_sub(self.block_len);
+        rec.onset_index =
+            strike_start(&rec.samples[from..], before_power).map_or(block_start, |at| from + at);
+        rec.target_len =
+            rec.onset_index + ms_to_samples(self.settings.record_ms, self.sample_rate_hz);
+        rec.trigger_level_db = level_db;
+        rec.quietest_since_trigger_db = f64::INFINITY;
+        rec.blocks = 1;
+        rec.peak_db = slow_db;
+        rec.blocks_since_peak = 0;
+        rec.loudest_db = slow_db;
+        rec.blocks_since_loudest = 0;
+        rec.watch = SecondStrikeWatch::default();
+        self.novelty.reset();
+        self.novelty
+            .set_noise_power(10f64.powf(rec.floor_db / 10.0));
+    }
+
+    fn block_ms(&self) -> f64 {
+        self.block_len as f64 * 1000.0 / self.sample_rate_hz
+    }
+
     fn past_contact(&self, blocks_since_peak: usize, blocks: usize) -> bool {
         self.blocks_to_ms(blocks_since_peak) > CONTACT_MS && self.blocks_to_ms(blocks) > CONTACT_MS
     }
@@ -663,7 +635,7 @@ impl TapTrigger {
             .is_some_and(|blocks| self.blocks_to_ms(blocks) < self.settings.min_ring_ms);
         let rejected = if rec.clipped {
             Some(RejectReason::Clipped)
-        } else if rec.double {
+        } else if rec.watch.found_second_strike() {
             Some(RejectReason::DoubleStrike)
         } else if too_short_record || died_at_once {
             Some(RejectReason::TooShort)
@@ -698,37 +670,6 @@ impl TapTrigger {
     }
 }
 
-/// Feeds the newest sample of a record to the second-strike search: once
-/// the decay's first predictor is fitted it measures the strike with it,
-/// and from then on marks the record when a block brings new sound, clearly
-/// above the noise, with a good part of the strike's energy.
-fn look_for_second_strike(
-    novelty: &mut NoveltyDetector,
-    rec: &mut Recording,
-    settings: &TriggerSettings,
-    guard: usize,
-) {
-    let Some(&sample) = rec.samples.last() else {
-        return;
-    };
-    let block = novelty.push(sample);
-    if rec.strike_energy.is_none() && novelty.has_predictor() {
-        let from = rec.onset_index.saturating_sub(guard);
-        let to = (rec.onset_index + guard).min(rec.samples.len());
-        rec.strike_energy = Some(novelty.unforetold_energy(&rec.samples[from..to]));
-    }
-    let (Some(block), Some(strike_energy)) = (block, rec.strike_energy) else {
-        return;
-    };
-    let energy = block.unforetold_power * novelty.block_len() as f64;
-    let burst = energy + rec.previous_block_energy;
-    rec.previous_block_energy = energy;
-    let noise_power = 10f64.powf(rec.floor_db / 10.0);
-    let audible = block.unforetold_power > noise_power * 10f64.powf(settings.margin_db / 20.0);
-    let strong = burst > SECOND_STRIKE_ENERGY_RATIO * strike_energy;
-    rec.double |= audible && strong && block.ratio() > NEW_SOUND_RATIO;
-}
-
 /// Finds every tap in a whole recording.
 pub fn find_taps(
     samples: &[f32],
@@ -755,10 +696,6 @@ pub fn ms_to_samples(ms: f64, sample_rate_hz: f64) -> usize {
     } else {
         0
     }
-}
-
-fn power_to_db(mean_square: f64) -> f64 {
-    10.0 * (mean_square + 1e-20).log10()
 }
 
 #[cfg(test)]
@@ -844,16 +781,6 @@ mod tests {
         assert!(find_taps(&vec![0.0; 96_000], FS, &TriggerSettings::default()).is_empty());
         let noise = recording(2.0, &[], 1e-3, 5);
         assert!(find_taps(&noise, FS, &TriggerSettings::default()).is_empty());
-    }
-
-    #[test]
-    fn floor_tracker_median() {
-        let mut floor = FloorTracker::new(5);
-        for level in [-60.0, -50.0, -70.0, -55.0, -65.0, -10.0] {
-            floor.push(level);
-        }
-        // Window holds -50, -70, -55, -65, -10: median -55.
-        assert!((floor.median_db() - -55.0).abs() <= HIST_STEP_DB);
     }
 
     #[test]

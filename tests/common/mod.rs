@@ -62,6 +62,20 @@ pub fn step_until(
     harness.run_ok();
 }
 
+/// Types `path` into the window's Path field and opens it, as a maker
+/// would; returns once the recording is read and measured.
+pub fn open_by_path(harness: &mut Harness<'_, TapwrightApp>, path: &std::path::Path) {
+    let field = harness.get_by_label("Path");
+    field.focus();
+    field.type_text(&path.display().to_string());
+    harness.run_ok();
+    harness.get_by_label("Open").click();
+    let expected = SourceState::File(path.to_path_buf());
+    step_until(harness, "the opened recording", |app| {
+        app.input().state == expected && !app.is_busy()
+    });
+}
+
 /// Waits until the demo recording has been played and analysed.
 pub fn demo_finished(harness: &mut Harness<'_, TapwrightApp>) {
     step_until(harness, "the demo taps", |app| {

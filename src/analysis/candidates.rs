@@ -1,0 +1,147 @@
+//! Candidate peaks: local maxima of a spectrum of the tap that stand
+//! clear of the band's floor and of their neighbours. Each one is the
+//! centre of a band for the subspace stage; their number is bounded.
+
+use super::modal::AnalysisSettings;
+use super::spectrum::DisplaySpectrum;
+
+/// A peak of the spectrum searched.
+#[derive(Clone, Copy, Debug)]
+pub(super) struct Candidate {
+    pub frequency_hz: f64,
+    pub power: f32,
+    pub prominence_db: f64,
+    /// Bin spacing of the spectrum it was found in.
+    pub bin_hz: f64,
+    /// Width of the peak where it stays above half its power.
+    pub half_power_width_hz: f64,
+}
+
+/// Local maxima of the spectrum in the band, within [`CANDIDATE_RANGE_DB`]
+/// of the strongest, that stand `min_above_floor_db` over the room noise (`noise_power`: what the noise alone gives in each
+/// bin of this spectrum) and `min_prominence_db` over the dips that part
+/// them from higher peaks, loudest first, at most `2·max_modes + 4`. The
+/// floor is the noise, not a level of the band searched: in a narrow band
+/// its own modes' skirts would be the floor and hide a mode.
+pub(super) fn find_candidates(
+    spectrum: &DisplaySpectrum,
+    settings: &AnalysisSettings,
+    noise_power: impl Fn(f64) -> f32,
+) -> Vec<Candidate> {
+    let power = &spectrum.power;
+    if power.len() < 8 {
+        return Vec::new();
+    }
+    let low = spectrum.bin_of_hz(settings.band_low_hz).max(2);
+    let high = spectrum
+        .bin_of_hz(settings.band_high_hz)
+        .min(power.len() - 3);
+    if high <= low {
+        return Vec::new();
+    }
+    let above = 10f32.powf((settings.min_above_floor_db / 10.0) as f32);
+    // Without measured noise (digital silence), the record's own rounding
+    // is the floor: single precision keeps about 140 dB, and peaks more
+    // than RANGE_WITHOUT_NOISE_DB under the strongest are not looked at.
+    let strongest = power[low..=high].iter().copied().fold(0.0f32, f32::max);
+    let rounding = strongest * 10f32.powf(-(RANGE_WITHOUT_NOISE_DB / 10.0) as f32);
+    let in_range = strongest * 10f32.powf(-(CANDIDATE_RANGE_DB / 10.0) as f32);
+    // What the decay holds besides its modes (the room's tail, the
+    // strike's own sound) is a floor too: the median of the whole
+    // spectrum, not of the band searched, so a narrow band's own modes
+    // do not raise it.
+    let diffuse = median(&power[2..power.len() - 2]);
+    let threshold = |k: usize| {
+        (noise_power(k as f64 * spectrum.bin_hz) * above)
+            .max(diffuse * above)
+            .max(rounding)
+            .max(in_range)
+    };
+    let mut found: Vec<Candidate> = (low..=high)
+        .filter(|&k| power[k] >= power[k - 1] && power[k] > power[k + 1] && power[k] > threshold(k))
+        .filter_map(|k| {
+            let prominence_db = prominence_db(power, k);
+            (prominence_db >= settings.min_prominence_db).then(|| Candidate {
+                frequency_hz: interpolated_peak_bin(power, k) * spectrum.bin_hz,
+                power: power[k],
+                prominence_db,
+                bin_hz: spectrum.bin_hz,
+                half_power_width_hz: half_power_width_bins(power, k) as f64 * spectrum.bin_hz,
+            })
+        })
+        .collect();
+    found.sort_by(|a, b| b.power.total_cmp(&a.power));
+    found.truncate(settings.max_modes * 2 + 4);
+    found
+}
+
+fn median(values: &[f32]) -> f32 {
+    let mut sorted = values.to_vec();
+    let mid = sorted.len() / 2;
+    let (_, m, _) = sorted.select_nth_unstable_by(mid, f32::total_cmp);
+    *m
+}
+
+/// Peaks more than this under the strongest of the band are not
+/// candidates: twice the range within which every peak is guaranteed a
+/// listed mode (`modal::GUARANTEED_WITHIN_DB`); further down, what stands
+/// out is mostly the noise riding on a strong mode's skirt, and each
+/// candidate costs a band (tapwright's choice, no source).
+const CANDIDATE_RANGE_DB: f64 = 40.0;
+
+/// See [`find_candidates`] (tapwright's choice: 20 dB above what single
+/// precision resolves).
+const RANGE_WITHOUT_NOISE_DB: f64 = 120.0;
+
+/// Bins from the last one above half of `power[k]` on the left to the last
+/// one on the right (at most `MAX_WIDTH_BINS` either side).
+fn half_power_width_bins(power: &[f32], k: usize) -> usize {
+    let half = power[k] / 2.0;
+    let above = |i: &usize| power[*i] > half;
+    let right = (k + 1..power.len().min(k + 1 + MAX_WIDTH_BINS))
+        .take_while(above)
+        .count();
+    let left = (k.saturating_sub(MAX_WIDTH_BINS)..k)
+        .rev()
+        .take_while(above)
+        .count();
+    left + right + 1
+}
+
+/// See [`half_power_width_bins`].
+const MAX_WIDTH_BINS: usize = 128;
+
+/// Topographic prominence of the peak at `k`: its height above the higher of
+/// the two lowest points that separate it from higher ground on either side
+/// (searched over ±10 % of the frequency, at least ±32 bins).
+fn prominence_db(power: &[f32], k: usize) -> f64 {
+    let reach = (k / 10).max(32);
+    let peak = power[k];
+    let side_min = |indices: &mut dyn Iterator<Item = usize>| {
+        let mut lowest = peak;
+        for i in indices {
+            if power[i] > peak {
+                break;
+            }
+            lowest = lowest.min(power[i]);
+        }
+        lowest
+    };
+    let left = side_min(&mut (k.saturating_sub(reach)..k).rev());
+    let right = side_min(&mut (k + 1..(k + reach + 1).min(power.len())));
+    let base = left.max(right).max(1e-30);
+    10.0 * f64::from(peak / base).log10()
+}
+
+/// Parabolic interpolation of the peak on the dB scale, in bins.
+fn interpolated_peak_bin(power: &[f32], k: usize) -> f64 {
+    let db = |i: usize| 10.0 * f64::from(power[i].max(1e-30)).log10();
+    let (a, b, c) = (db(k - 1), db(k), db(k + 1));
+    let denom = a - 2.0 * b + c;
+    let offset = if denom.abs() > 1e-12 {
+        0.5 * (a - c) / denom
+    } else {
+        0.0
+    };
+    k as f64 + offset.clamp(-0.5, 0.5)
+}
