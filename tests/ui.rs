@@ -10,7 +10,7 @@ use egui_kittest::kittest::Queryable;
 use tapwright::analysis::synth::{add_modes, NoiseGenerator, SynthMode};
 use tapwright::audio::Pacing;
 use tapwright::ledger::{Family, PartKind};
-use tapwright::ui::{AppCommand, AppOptions, StartSource, TapwrightApp};
+use tapwright::ui::{AppCommand, AppOptions, SourceState, StartSource, TapwrightApp};
 
 fn mode_near(app: &TapwrightApp, frequency_hz: f64) -> Option<(usize, f64)> {
     app.pass()?
