@@ -464,4 +464,29 @@ mod tests {
         assert_eq!(pruned.poles.len(), 1, "{:?}", pruned.poles);
         assert!((pruned.poles[0] - truth[0].0).norm() < 1e-3);
     }
+
+    /// Two true modes whose Lorentzians overlap (1.5 half-widths apart,
+    /// one 2.5 dB under the other) stay two: the merge of overlapping
+    /// poles (`merge_refitted_neighbours`) takes only a pole the refitted
+    /// model does without. (A decay bent by reflections, which it merges,
+    /// is in tests/mode_lists.rs.)
+    #[test]
+    fn a_close_pair_stays_two() {
+        let w = Complex64::from_polar(0.96, 0.30);
+        let decay = -0.96f64.ln();
+        let spare = Complex64::from_polar(0.955, 0.30 + 1.5 * decay);
+        let noise = 1e-3;
+        let band_noise = BandNoise {
+            variance: noise * noise,
+            taper_fill: 1.0,
+            observations: 48_000,
+        };
+        let pair = [
+            (w, Complex64::new(1.0, 0.0)),
+            (spare, Complex64::new(0.0, 0.75)),
+        ];
+        let y = sequence(&pair, 80, noise, 4);
+        let fit = fit_amplitudes(&y, &[w, spare]).expect("fit");
+        assert_eq!(prune(&y, fit, &band_noise).poles.len(), 2);
+    }
 }
