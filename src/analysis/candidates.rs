@@ -2,7 +2,7 @@
 //! clear of the band's floor and of their neighbours. Each one is the
 //! centre of a band for the subspace stage; their number is bounded.
 
-use super::modal::AnalysisSettings;
+use super::settings::AnalysisSettings;
 use super::spectrum::DisplaySpectrum;
 
 /// A peak of the spectrum searched.

@@ -18,6 +18,7 @@ mod noise;
 pub mod onset;
 pub mod pitch;
 pub mod recording;
+mod settings;
 pub mod sine_fit;
 pub mod spectrum;
 mod subspace;
