@@ -13,7 +13,7 @@ use egui_kittest::kittest::Queryable;
 use egui_kittest::Harness;
 use tapwright::demo::SAMPLE_BUILDS;
 use tapwright::ledger::{store, Build};
-use tapwright::ui::{AppCommand, AppOptions, TapwrightApp};
+use tapwright::ui::{AppCommand, TapwrightApp};
 
 fn build(harness: &Harness<'_, TapwrightApp>) -> Build {
     harness.state().build().cloned().expect("an open build")
@@ -209,13 +209,7 @@ fn a_new_build_gets_a_part_a_recorded_pass_a_target_and_comes_back_after_reopeni
     harness.get_by_label("No build is open");
     drop(harness);
 
-    let mut harness = harness_with(AppOptions {
-        build: Some(path.clone()),
-        ..demo_options()
-    });
-    step_until(&mut harness, "the build to load", |app| {
-        app.build().is_some() && !app.is_busy()
-    });
+    let mut harness = opened_on_build(&path);
     click(&mut harness, "Ledger");
     harness.get_by_label("Invented violin No. 3");
     harness.get_by_label("Top — top plate, 2 passes");

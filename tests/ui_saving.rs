@@ -12,7 +12,7 @@ use eframe::egui;
 use egui_kittest::kittest::Queryable;
 use egui_kittest::Harness;
 use tapwright::ledger::{store, Build, Family, PartKind};
-use tapwright::ui::{AppCommand, AppOptions, TapwrightApp};
+use tapwright::ui::{AppCommand, TapwrightApp};
 
 /// An invented build saved at `path`.
 fn saved_build(path: &Path, notes: &str) -> Build {
@@ -23,17 +23,6 @@ fn saved_build(path: &Path, notes: &str) -> Build {
     build.notes = notes.to_owned();
     store::save(path, &build).expect("test value");
     build
-}
-
-fn opened_on(path: &Path) -> Harness<'static, TapwrightApp> {
-    let mut harness = harness_with(AppOptions {
-        build: Some(path.to_path_buf()),
-        ..demo_options()
-    });
-    step_until(&mut harness, "the build to load", |app| {
-        app.build().is_some() && !app.is_busy()
-    });
-    harness
 }
 
 fn set_notes(app: &mut TapwrightApp, notes: String) {
@@ -55,7 +44,7 @@ fn saves_queued_together_leave_the_newest_snapshot() {
     let folder = tempfile::tempdir().expect("test value");
     let path = folder.path().join("ordered.ron");
     saved_build(&path, "start");
-    let mut harness = opened_on(&path);
+    let mut harness = opened_on_build(&path);
     for round in 0..5 {
         // Twenty changes, each followed by a save, in one frame.
         for i in 0..20 {
@@ -85,7 +74,7 @@ fn a_file_changed_by_another_writer_is_not_overwritten_without_asking() {
     let folder = tempfile::tempdir().expect("test value");
     let path = folder.path().join("two windows.ron");
     saved_build(&path, "start");
-    let mut harness = opened_on(&path);
+    let mut harness = opened_on_build(&path);
 
     // Another window (or a copy tool) writes the file.
     saved_build(&path, "written elsewhere");
@@ -150,7 +139,7 @@ fn closing_with_unsaved_changes_asks_first() {
     let folder = tempfile::tempdir().expect("test value");
     let path = folder.path().join("closing.ron");
     saved_build(&path, "start");
-    let mut harness = opened_on(&path);
+    let mut harness = opened_on_build(&path);
 
     // Nothing unsaved: the window may close.
     ask_to_close(&mut harness);
@@ -158,19 +147,19 @@ fn closing_with_unsaved_changes_asks_first() {
     assert!(harness.state().close_confirmed());
     drop(harness);
 
-    let mut harness = opened_on(&path);
+    let mut harness = opened_on_build(&path);
     set_notes(harness.state_mut(), "not yet saved".into());
     harness.run_ok();
     ask_to_close(&mut harness);
     assert!(harness.state().close_prompt_shown());
     assert!(!harness.state().close_confirmed());
     harness.get_by_label("Unsaved changes");
-    click_label(&mut harness, "Cancel");
+    click(&mut harness, "Cancel");
     assert!(!harness.state().close_prompt_shown());
     assert!(!harness.state().close_confirmed());
 
     ask_to_close(&mut harness);
-    click_label(&mut harness, "Save and close");
+    click(&mut harness, "Save and close");
     step_until(&mut harness, "the save before closing", |app| {
         !app.is_busy()
     });
@@ -179,16 +168,11 @@ fn closing_with_unsaved_changes_asks_first() {
     assert!(harness.state().close_confirmed());
     drop(harness);
 
-    let mut harness = opened_on(&path);
+    let mut harness = opened_on_build(&path);
     set_notes(harness.state_mut(), "thrown away".into());
     harness.run_ok();
     ask_to_close(&mut harness);
-    click_label(&mut harness, "Close without saving");
+    click(&mut harness, "Close without saving");
     assert!(harness.state().close_confirmed());
     assert_eq!(notes_on_disk(&path), "not yet saved");
-}
-
-fn click_label(harness: &mut Harness<'_, TapwrightApp>, label: &str) {
-    harness.get_by_label(label).click();
-    harness.run_ok();
 }

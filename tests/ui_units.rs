@@ -92,13 +92,7 @@ fn a_pass_typed_in_inches_ounces_and_fahrenheit_reopens_in_millimetres_and_grams
     drop(harness);
 
     // Another run, in the default metric units, on the same file.
-    let mut harness = harness_with(AppOptions {
-        build: Some(path.clone()),
-        ..demo_options()
-    });
-    step_until(&mut harness, "the build to load", |app| {
-        app.build().is_some() && !app.is_busy()
-    });
+    let mut harness = opened_on_build(&path);
     assert_eq!(harness.state().units(), Units::metric());
     click(&mut harness, "Ledger");
     // 2.5 oz = 70.87 g and 0.118 in = 3.00 mm at the decimals shown.

@@ -77,12 +77,7 @@ fn pass_row(part: &Part, pass: &Pass, labels: &[String]) -> Vec<String> {
             .iter()
             .map(|l| optional(pass.mode_labelled(l).map(|m| m.frequency_hz), 2)),
     );
-    let to_confirm: Vec<&str> = pass
-        .modes()
-        .iter()
-        .filter(|m| m.label_needs_confirmation())
-        .filter_map(|m| m.label_name())
-        .collect();
+    let to_confirm = pass.labels_to_confirm();
     row.push(to_confirm.join("; "));
     row
 }

@@ -76,6 +76,19 @@ pub fn open_by_path(harness: &mut Harness<'_, TapwrightApp>, path: &std::path::P
     });
 }
 
+/// The real app on the demo recording with the build file at `path`
+/// opened at start, once it has loaded.
+pub fn opened_on_build(path: &std::path::Path) -> Harness<'static, TapwrightApp> {
+    let mut harness = harness_with(AppOptions {
+        build: Some(path.to_path_buf()),
+        ..demo_options()
+    });
+    step_until(&mut harness, "the build to load", |app| {
+        app.build().is_some() && !app.is_busy()
+    });
+    harness
+}
+
 /// Waits until the demo recording has been played and analysed.
 pub fn demo_finished(harness: &mut Harness<'_, TapwrightApp>) {
     step_until(harness, "the demo taps", |app| {

@@ -482,6 +482,16 @@ impl Pass {
         self.modes.iter().find(|m| m.label_name() == Some(label))
     }
 
+    /// The labels placed by carry-over that the maker has yet to confirm,
+    /// lowest frequency first.
+    pub fn labels_to_confirm(&self) -> Vec<&str> {
+        self.modes
+            .iter()
+            .filter(|m| m.label_needs_confirmation())
+            .filter_map(|m| m.label_name())
+            .collect()
+    }
+
     /// Mean of the thickness readings, mm; `None` without readings.
     pub fn mean_thickness_mm(&self) -> Option<f64> {
         mean_thickness_mm(&self.thickness)

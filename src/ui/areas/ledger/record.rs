@@ -74,12 +74,7 @@ pub fn follow_up(form: &mut RecordForm, ctx: &AreaContext) {
                 ctx.units.mass.text(awaiting.mass_g)
             )));
             let labelled: Vec<&str> = pass.modes().iter().filter_map(|m| m.label_name()).collect();
-            let to_confirm: Vec<&str> = pass
-                .modes()
-                .iter()
-                .filter(|m| m.label_needs_confirmation())
-                .filter_map(|m| m.label_name())
-                .collect();
+            let to_confirm = pass.labels_to_confirm();
             let carried: Vec<&str> = awaiting
                 .preview
                 .carried
