@@ -14,6 +14,7 @@ mod candidates;
 mod found_tap;
 mod linalg;
 pub mod modal;
+mod model_order;
 mod noise;
 pub mod onset;
 pub mod pitch;

@@ -48,12 +48,13 @@ use serde::{Deserialize, Serialize};
 
 use super::bands::{BandRequest, BandSignal, DecaySpectra};
 use super::candidates::{find_candidates, Candidate};
+use super::model_order::{prune, BandNoise};
 use super::noise::NoiseProfile;
 pub use super::settings::AnalysisSettings;
 use super::spectrum::{DisplaySpectrum, SpectrumMaker};
 use super::subspace::{pencil_poles, MIN_PENCIL_SAMPLES};
 use super::tap_finder::FoundTap;
-use super::varpro::{fit_amplitudes, prune, refine, BandNoise};
+use super::varpro::{fit_amplitudes, refine};
 
 /// One mode of one tap.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
