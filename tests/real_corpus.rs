@@ -123,7 +123,6 @@ fn strongest_peak_is_listed() {
 /// listed where the model puts them, up to 20 Hz from where their
 /// neighbours' skirts push the FFT's peak.
 #[test]
-#[ignore = "not yet met (issue 18 open): 10 prominent peaks unlisted, dropped by a band's model-order elimination; see DEVELOPERS.md"]
 fn every_prominent_peak_is_listed() {
     let failures: Vec<String> = reports()
         .iter()
@@ -147,7 +146,6 @@ fn every_prominent_peak_is_listed() {
 /// source) and their two channels were recorded at different levels
 /// (the timbale's right channel is 4.6 dB weaker at the peak).
 #[test]
-#[ignore = "not yet met (issue 18 open): 1 check in 38 files, xylophone F#5 lists a broad pole beside its fundamental in one channel only; see DEVELOPERS.md"]
 fn both_channels_list_the_same_modes() {
     let all = reports();
     let mut failures = Vec::new();

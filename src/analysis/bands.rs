@@ -131,6 +131,7 @@ impl BandSignal {
     }
 
     /// Decimated pole of a full-rate pole: w = (z·e^{−jω₀})^D.
+    #[cfg(test)]
     pub fn to_decimated(&self, z: Complex64) -> Complex64 {
         (z * Complex64::from_polar(1.0, -self.centre_rad)).powu(self.factor as u32)
     }

@@ -15,6 +15,12 @@ pub(super) struct Candidate {
     pub bin_hz: f64,
     /// Width of the peak where it stays above half its power.
     pub half_power_width_hz: f64,
+    /// The peak's own power: above the base its prominence is measured
+    /// from (the higher of the dips beside it, where the skirts of its
+    /// neighbours and the diffuse floor lie).
+    pub own_power: f32,
+    /// Width where the peak stays above its base plus half its own power.
+    pub own_half_power_width_hz: f64,
 }
 
 /// Local maxima of the spectrum in the band, within [`CANDIDATE_RANGE_DB`]
@@ -60,13 +66,18 @@ pub(super) fn find_candidates(
     let mut found: Vec<Candidate> = (low..=high)
         .filter(|&k| power[k] >= power[k - 1] && power[k] > power[k + 1] && power[k] > threshold(k))
         .filter_map(|k| {
-            let prominence_db = prominence_db(power, k);
+            let base = prominence_base(power, k);
+            let prominence_db = 10.0 * f64::from(power[k] / base).log10();
             (prominence_db >= settings.min_prominence_db).then(|| Candidate {
                 frequency_hz: interpolated_peak_bin(power, k) * spectrum.bin_hz,
                 power: power[k],
                 prominence_db,
                 bin_hz: spectrum.bin_hz,
-                half_power_width_hz: half_power_width_bins(power, k) as f64 * spectrum.bin_hz,
+                half_power_width_hz: width_bins_above(power, k, power[k] / 2.0) as f64
+                    * spectrum.bin_hz,
+                own_power: power[k] - base,
+                own_half_power_width_hz: width_bins_above(power, k, (power[k] + base) / 2.0) as f64
+                    * spectrum.bin_hz,
             })
         })
         .collect();
@@ -93,11 +104,10 @@ const CANDIDATE_RANGE_DB: f64 = 40.0;
 /// precision resolves).
 const RANGE_WITHOUT_NOISE_DB: f64 = 120.0;
 
-/// Bins from the last one above half of `power[k]` on the left to the last
-/// one on the right (at most `MAX_WIDTH_BINS` either side).
-fn half_power_width_bins(power: &[f32], k: usize) -> usize {
-    let half = power[k] / 2.0;
-    let above = |i: &usize| power[*i] > half;
+/// Bins from the last one above `level` left of `k` to the last one on
+/// the right (at most `MAX_WIDTH_BINS` either side).
+fn width_bins_above(power: &[f32], k: usize, level: f32) -> usize {
+    let above = |i: &usize| power[*i] > level;
     let right = (k + 1..power.len().min(k + 1 + MAX_WIDTH_BINS))
         .take_while(above)
         .count();
@@ -108,13 +118,13 @@ fn half_power_width_bins(power: &[f32], k: usize) -> usize {
     left + right + 1
 }
 
-/// See [`half_power_width_bins`].
+/// See [`width_bins_above`].
 const MAX_WIDTH_BINS: usize = 128;
 
-/// Topographic prominence of the peak at `k`: its height above the higher of
-/// the two lowest points that separate it from higher ground on either side
-/// (searched over ±10 % of the frequency, at least ±32 bins).
-fn prominence_db(power: &[f32], k: usize) -> f64 {
+/// The base of the peak at `k` for its topographic prominence: the higher
+/// of the two lowest points that separate it from higher ground on either
+/// side (searched over ±10 % of the frequency, at least ±32 bins).
+fn prominence_base(power: &[f32], k: usize) -> f32 {
     let reach = (k / 10).max(32);
     let peak = power[k];
     let side_min = |indices: &mut dyn Iterator<Item = usize>| {
@@ -129,8 +139,7 @@ fn prominence_db(power: &[f32], k: usize) -> f64 {
     };
     let left = side_min(&mut (k.saturating_sub(reach)..k).rev());
     let right = side_min(&mut (k + 1..(k + reach + 1).min(power.len())));
-    let base = left.max(right).max(1e-30);
-    10.0 * f64::from(peak / base).log10()
+    left.max(right).max(1e-30)
 }
 
 /// Parabolic interpolation of the peak on the dB scale, in bins.

@@ -25,21 +25,28 @@
 //!    α = −ln|z|·fs.
 //! 4. A band keeps only the poles it owns (those in its central quarter)
 //!    that live longer than [`MIN_TAU_DECIMATED`] of its samples;
-//!    where bands overlap, a pole found twice is kept from the band where it
-//!    lies nearer the centre. A candidate already explained by a kept pole
-//!    gets no band of its own, nor does one in the owned part of a band
-//!    already fitted at a like span; the band is refitted once if the decay
-//!    it finds asks for a span more than twice longer or shorter. A tap
-//!    uses at most `max_modes` + [`EXTRA_BANDS`] bands, and as many more
-//!    for the stand-ins of step 6: its cost is bounded whatever the signal.
+//!    where bands overlap, each frequency is judged by the band whose
+//!    centre lies nearest it (where its taper is flat and its model
+//!    closest to the data): a later band adds no pole nearer an earlier
+//!    band's centre than its own, and a pole found twice is kept from the
+//!    band where it lies nearer the centre. A candidate already explained
+//!    by a kept pole gets no band of its own, nor does one in the owned
+//!    part of a band already fitted at a like span; the band is refitted
+//!    once if the decay it finds asks for a span more than twice longer or
+//!    shorter. A tap uses at most `max_modes` + [`EXTRA_BANDS`] bands: its
+//!    cost is bounded whatever the signal.
 //! 5. A pole that makes no candidate peak of its own is listed only if its
 //!    peak stands within [`RESOLVED_WITHIN_DB`] of the strongest pole of
 //!    its band (a shoulder, the second of a close pair): weaker ones hidden
 //!    under a stronger mode cannot be told from the band model's own error
 //!    (early reflections, a decay that bends, reverberation).
 //! 6. Every candidate peak within [`GUARANTEED_WITHIN_DB`] of the strongest
-//!    is explained by a listed mode: if the band models missed it, its own
-//!    single-pole refit stands in.
+//!    is explained by a listed mode: if the band models missed it (pulled
+//!    off it by what no sum of exponentials models: the strike's own
+//!    sound, a decay that bends), the peak itself is read as peak picking
+//!    reads it (frequency at the peak, decay from its half-power width,
+//!    amplitude from its height) and replaces the pole that was pulled
+//!    off it. No band is fitted for it.
 
 use std::f64::consts::PI;
 
@@ -54,7 +61,7 @@ pub use super::settings::AnalysisSettings;
 use super::spectrum::{DisplaySpectrum, SpectrumMaker};
 use super::subspace::{pencil_poles, MIN_PENCIL_SAMPLES};
 use super::tap_finder::FoundTap;
-use super::varpro::{fit_amplitudes, refine};
+use super::varpro::fit_amplitudes;
 
 /// One mode of one tap.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
@@ -95,8 +102,13 @@ pub struct TapAnalysis {
 /// mostly adds what follows the mode: reverberation and noise.
 pub const SPAN_TIME_CONSTANTS: f64 = 4.0;
 /// Candidate peaks this close to the strongest (in the decay's spectrum)
-/// are always explained by a listed mode.
-pub const GUARANTEED_WITHIN_DB: f64 = 20.0;
+/// are always explained by a listed mode. The guarantee a maker is given
+/// is 20 dB in the strike's own spectrum; the decay's spectrum starts
+/// after the strike's loudest instant, where a mode that dies in a few
+/// milliseconds has lost up to a few dB against one that rings (2.5 dB
+/// for a xylophone partial of the corpus), hence 4 dB of margin
+/// (tapwright's choice, no source).
+pub const GUARANTEED_WITHIN_DB: f64 = 24.0;
 /// A pole that makes no candidate peak of its own must stand within this
 /// of the strongest pole of its band (peak heights, dB); see step 5. A
 /// shoulder between two body modes (Q 22 between Q 30 and 40, 65 Hz
@@ -114,8 +126,8 @@ const RESOLVED_WITHIN: f64 = 0.2;
 /// The band was matched to a mode 16 samples long; a mode four times
 /// faster than that would make its own, wider peak and band.
 const MIN_TAU_DECIMATED: f64 = 4.0;
-/// Bands fitted per tap (every band: a candidate's, its refit at another
-/// span, a single-pole stand-in), beyond one per listed mode
+/// Bands fitted per tap (every band: a candidate's or its refit at
+/// another span), beyond one per listed mode
 /// (`max_modes`): the candidates are taken strongest first, and these few
 /// spare bands cover candidates whose band finds nothing to list (a hump
 /// of the strike's own sound, a skirt). This caps the cost of a tap
@@ -124,6 +136,10 @@ const EXTRA_BANDS: usize = 4;
 /// A band is refitted when the decay it finds asks for a span more than
 /// this factor longer or shorter than the one it had.
 const SPAN_MISMATCH: f64 = 2.0;
+/// A peak read as a mode (step 6) is at least this many of the decay's
+/// resolutions (fs/L) wide at half its own power: twice a steady tone's
+/// width (tapwright's choice, no source).
+const RESOLVED_DECAY_WIDTHS: f64 = 2.0;
 /// Records shorter than this after the strike give no modes.
 const MIN_DECAY_SAMPLES: usize = 256;
 /// A mode must fall by at least this much over the analysed decay: slower
@@ -174,7 +190,7 @@ pub struct TapAnalyzer {
     /// The bands fitted to the current tap.
     covers: Vec<BandCover>,
     /// Bands the current tap may still use (every band counts: a
-    /// candidate's, its refit at another span, a single-pole stand-in).
+    /// candidate's or its refit at another span).
     bands_left: usize,
 }
 
@@ -305,15 +321,16 @@ impl TapAnalyzer {
         });
         let strongest = candidates.iter().map(|c| c.power).fold(0.0f32, f32::max);
         let guaranteed = strongest * 10f32.powf(-(GUARANTEED_WITHIN_DB / 10.0) as f32);
-        // The stand-ins of step 6 get spare bands of their own, so a
-        // budget spent on weaker candidates never costs a strong peak.
-        self.bands_left += EXTRA_BANDS;
         for candidate in candidates.iter().filter(|c| c.power >= guaranteed) {
             let listed = kept
                 .iter()
                 .any(|f| explains(f, candidate, fs) && self.is_mode(&self.to_mode(f)));
             if !listed {
-                if let Some(found) = self.single_pole(candidate) {
+                if let Some(found) = self.peak_reading(candidate) {
+                    // A pole whose half-power band holds the peak it did
+                    // not explain is the band model's try at that peak,
+                    // pulled off it: the reading replaces it.
+                    kept.retain(|f| !holds(f, candidate, fs));
                     merge(&mut kept, found);
                 }
             }
@@ -324,7 +341,7 @@ impl TapAnalyzer {
     /// A band already fitted serves a candidate that lies in its owned
     /// part and whose own width asks for a span within [`SPAN_MISMATCH`]
     /// of the band's: its poles there are already in the list (a peak
-    /// they leave unexplained gets the single-pole stand-in of step 6).
+    /// they leave unexplained gets the peak reading of step 6).
     fn covered(&self, candidate: &Candidate) -> bool {
         let fs = self.sample_rate_hz;
         let width_hz = candidate.half_power_width_hz.max(2.0 * candidate.bin_hz);
@@ -383,7 +400,7 @@ impl TapAnalyzer {
         let fs = self.sample_rate_hz;
         let band = self.band(candidate.frequency_hz, span)?;
         self.covers.push(BandCover {
-            centre_hz: band.centre_rad * fs / (2.0 * PI),
+            centre_hz: candidate.frequency_hz,
             owned_half_width_hz: band.owned_half_width_rad * fs / (2.0 * PI),
             span,
         });
@@ -427,6 +444,14 @@ impl TapAnalyzer {
                 })
             })
             .collect();
+        // Where an earlier band lies nearer, that band's model holds: it
+        // saw the region closer to its centre, where the taper is flat.
+        let earlier = &self.covers[..self.covers.len() - 1];
+        let owned: Vec<Found> = owned
+            .into_iter()
+            .filter(|f| !nearer_elsewhere(earlier, f.frequency_hz(fs), candidate.frequency_hz))
+            .collect();
+
         let owned = merge_unresolved(owned, len);
         let band_peak = owned.iter().map(|f| f.peak_height(len)).fold(0.0, f64::max);
         Some(
@@ -437,23 +462,34 @@ impl TapAnalyzer {
         )
     }
 
-    /// A single damped pole fitted to the candidate's band, started from
-    /// the candidate's frequency and width: the stand-in for a peak that
-    /// the band's model left unexplained.
-    fn single_pole(&mut self, candidate: &Candidate) -> Option<Found> {
+    /// The stand-in for a peak that the band models left unexplained: the
+    /// peak itself, read as peak picking reads it (D. J. Ewins, Modal
+    /// Testing, 2nd ed., 2000, §4.3): the mode at the interpolated peak,
+    /// its decay from the half-power width (for the unwindowed spectrum
+    /// of a damped sinusoid, a Lorentzian, the full width at half power
+    /// is α/π Hz), its amplitude from the peak's height (|c|/α per
+    /// sample). Where a band model is pulled off a peak by what no sum of
+    /// exponentials models (the strike's own sound, a decay that bends),
+    /// the spectrum still shows where the peak is.
+    fn peak_reading(&self, candidate: &Candidate) -> Option<Found> {
         let fs = self.sample_rate_hz;
-        let decay = PI * candidate.half_power_width_hz.max(2.0 * candidate.bin_hz) / fs;
-        let band = self.band(candidate.frequency_hz, self.span_for(decay))?;
-        let z0 = Complex64::from_polar((-decay).exp(), 2.0 * PI * candidate.frequency_hz / fs);
-        let w0 = band.to_decimated(z0);
-        // A peak whose own pole does not decay is a steady tone, no mode.
-        let fit = refine(&band.samples, &[w0]).filter(|f| f.poles[0].norm() < 1.0)?;
-        let z = band.to_full_rate(fit.poles[0]);
+        let len = self.decay.len() as f64;
+        // A steady tone's peak in the unwindowed spectrum of L samples is
+        // 0.89·fs/L wide at half power: a peak not clearly wider than that
+        // does not show a decay (a hum, a held note), and is read as no mode.
+        let width_hz = candidate.own_half_power_width_hz;
+        if width_hz < RESOLVED_DECAY_WIDTHS * fs / len {
+            return None;
+        }
+        let decay = PI * width_hz / fs;
+        let z = Complex64::from_polar((-decay).exp(), 2.0 * PI * candidate.frequency_hz / fs);
+        // The decay's spectrum reads (2/L)²·|X|², and |X| = |c|/α at the peak.
+        let amplitude = f64::from(candidate.own_power).sqrt() * decay * len / 2.0;
         Some(Found {
             z,
-            c: fit.amplitudes[0] / band.gain(z),
+            c: Complex64::new(amplitude, 0.0),
             centrality: 0.0,
-            span: band.span_samples(),
+            span: self.span_for(decay),
             band_peak: 0.0,
             prominence_db: candidate.prominence_db,
         })
@@ -537,6 +573,12 @@ fn explains(found: &Found, candidate: &Candidate, fs: f64) -> bool {
     (found.frequency_hz(fs) - candidate.frequency_hz).abs() <= reach_hz
 }
 
+/// A pole's half-power band (±α/2π Hz) holds the candidate's peak.
+fn holds(found: &Found, candidate: &Candidate, fs: f64) -> bool {
+    let half_width_hz = found.decay() * fs / (2.0 * PI);
+    (found.frequency_hz(fs) - candidate.frequency_hz).abs() <= half_width_hz
+}
+
 /// Two poles of one band closer than both one's half-power bandwidths
 /// (|Δθ| < α of the narrower, per sample) make one peak whose decay bends:
 /// the band model spent two poles on it, with large amplitudes that partly
@@ -555,6 +597,16 @@ fn merge_unresolved(mut poles: Vec<Found>, len: usize) -> Vec<Found> {
         }
     }
     merged
+}
+
+/// True when a band in `covers` owns `frequency_hz` and lies nearer to it
+/// than the centre `centre_hz` of the band asking.
+fn nearer_elsewhere(covers: &[BandCover], frequency_hz: f64, centre_hz: f64) -> bool {
+    let distance = (frequency_hz - centre_hz).abs();
+    covers.iter().any(|cover| {
+        let other = (frequency_hz - cover.centre_hz).abs();
+        other <= cover.owned_half_width_hz && other < distance
+    })
 }
 
 /// Adds a pole to the kept ones; a pole already there (closer than both
