@@ -118,10 +118,7 @@ fn strongest_peak_is_listed() {
 }
 
 /// The full guarantee on wood and bars: every peak standing 6 dB
-/// above its surroundings within 20 dB of the strongest is listed. Not yet
-/// met (see DEVELOPERS.md, analysis): broad wood modes that overlap are
-/// listed where the model puts them, up to 20 Hz from where their
-/// neighbours' skirts push the FFT's peak.
+/// above its surroundings within 20 dB of the strongest is listed.
 #[test]
 fn every_prominent_peak_is_listed() {
     let failures: Vec<String> = reports()
