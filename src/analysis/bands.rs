@@ -489,6 +489,29 @@ mod tests {
         assert!((back - z).norm() < 1e-12);
     }
 
+    /// A band made with the kept taper and plan (a second band of the
+    /// same length first) is the band a fresh transform makes.
+    #[test]
+    fn kept_taper_and_plan_give_the_same_band() {
+        let x = damped(20_000, &[(800.0, 20.0, Complex64::new(0.2, 0.1))]);
+        let request = |centre_hz| BandRequest {
+            centre_hz,
+            span_samples: 8_000,
+        };
+        let mut fresh = DecaySpectra::new(FS);
+        fresh.transform(&x);
+        let once = fresh.band(request(800.0), |_, _| 1e-8).expect("band");
+        let mut kept = DecaySpectra::new(FS);
+        kept.transform(&x);
+        let other = kept.band(request(1500.0), |_, _| 1e-8).expect("band");
+        let again = kept.band(request(800.0), |_, _| 1e-8).expect("band");
+        assert_eq!(other.samples.len(), again.samples.len());
+        assert_eq!(once.samples, again.samples);
+        assert_eq!(once.taper_fill, again.taper_fill);
+        let z = Complex64::from_polar((-20.0 / FS).exp(), 2.0 * PI * 800.0 / FS);
+        assert_eq!(once.gain(z), again.gain(z));
+    }
+
     #[test]
     fn decimation_is_a_power_of_two_with_enough_samples() {
         assert_eq!(decimation_for(64 * 100, 48_000), Some(64));

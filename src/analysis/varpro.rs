@@ -329,6 +329,69 @@ mod tests {
     use super::*;
     use test_sequence as sequence;
 
+    /// The side-by-side sums are the plain sums, bit for bit, whatever the
+    /// number of pairs (full groups of four and a short one).
+    #[test]
+    fn side_by_side_sums_are_the_plain_sums() {
+        let y = sequence(&[], 50, 1.0, 7);
+        let columns: Vec<&[Complex64]> = y.chunks(10).collect();
+        for count in 1..=9 {
+            let pairs: Vec<(&[Complex64], &[Complex64])> = (0..count)
+                .map(|i| (columns[i % 5], columns[(i * 3 + 1) % 5]))
+                .collect();
+            let mut sums = vec![Complex64::new(0.0, 0.0); count];
+            conj_dots(&pairs, &mut sums);
+            for ((u, v), sum) in pairs.iter().zip(&sums) {
+                let plain: Complex64 = u.iter().zip(*v).map(|(a, b)| a.conj() * b).sum();
+                assert_eq!(*sum, plain, "{count} pairs");
+            }
+        }
+    }
+
+    /// JᵀJ and Jᵀr from the complex products dᵢᴴdⱼ, dᵢᴴr are exactly those
+    /// of the real Jacobian's columns −dᵢ and j·dᵢ.
+    #[test]
+    fn jacobian_products_match_its_columns() {
+        let truth = [
+            (Complex64::from_polar(0.97, 0.30), Complex64::new(1.0, 0.2)),
+            (Complex64::from_polar(0.95, 0.45), Complex64::new(-0.3, 0.6)),
+            (Complex64::from_polar(0.9, -1.0), Complex64::new(0.1, 0.1)),
+        ];
+        let y = sequence(&truth, 64, 1e-2, 3);
+        let rough: Vec<Complex64> = truth.iter().map(|(w, _)| w * 0.99).collect();
+        let current = Projection::of(&y, &rough).expect("fit");
+        let (jtj, jtr) = projected_normal_equations(&current);
+        let (p, len) = (rough.len(), y.len());
+        let mut columns: Vec<Vec<Complex64>> = Vec::new();
+        for i in 0..p {
+            let mut d: Vec<Complex64> = current.basis[i * len..(i + 1) * len]
+                .iter()
+                .enumerate()
+                .map(|(k, phi)| current.fit.amplitudes[i] * phi * k as f64)
+                .collect();
+            project_out(&mut d, &current.basis, &current.gram, p);
+            columns.push(d.iter().map(|v| -v).collect());
+            columns.push(d.iter().map(|v| v * Complex64::new(0.0, 1.0)).collect());
+        }
+        let n = 2 * p;
+        for a in 0..n {
+            for b in 0..n {
+                let value: f64 = columns[a]
+                    .iter()
+                    .zip(&columns[b])
+                    .map(|(u, v)| (u.conj() * v).re)
+                    .sum();
+                assert_eq!(jtj[a * n + b], value, "JᵀJ[{a}][{b}]");
+            }
+            let value: f64 = columns[a]
+                .iter()
+                .zip(&current.residual)
+                .map(|(u, v)| (u.conj() * v).re)
+                .sum();
+            assert_eq!(jtr[a], value, "Jᵀr[{a}]");
+        }
+    }
+
     #[test]
     fn refit_reaches_the_true_poles_from_rough_ones() {
         let truth = [
