@@ -31,7 +31,7 @@ use std::sync::Arc;
 
 use realfft::{RealFftPlanner, RealToComplex};
 use rustfft::num_complex::{Complex32, Complex64};
-use rustfft::FftPlanner;
+use rustfft::{Fft, FftPlanner};
 
 use super::spectrum::DisplaySpectrum;
 
@@ -86,6 +86,24 @@ pub(super) struct DecaySpectra {
     input: Vec<f32>,
     scratch: Vec<Complex32>,
     sample_rate_hz: f64,
+    /// Per band length M (a handful of powers of two): its taper and its
+    /// inverse plan, made once.
+    band_kits: Vec<BandKit>,
+    band_buffer: Vec<Complex64>,
+    band_scratch: Vec<Complex64>,
+}
+
+/// What every band of M points shares.
+struct BandKit {
+    taper: Arc<Taper>,
+    inverse: Arc<dyn Fft<f64>>,
+}
+
+/// The Gaussian taper of one band length and ΣW²/M.
+#[derive(Debug)]
+struct Taper {
+    weights: Vec<f64>,
+    fill: f64,
 }
 
 impl std::fmt::Debug for DecaySpectra {
@@ -119,7 +137,7 @@ pub(super) struct BandSignal {
     level_len: usize,
     fft_len: usize,
     centre_bin: i64,
-    taper: Vec<f64>,
+    taper: Arc<Taper>,
     /// Decimated index (in the whole inverse FFT) of `samples[0]`.
     first_decimated: usize,
 }
@@ -153,7 +171,7 @@ impl BandSignal {
         let one = Complex64::new(1.0, 0.0);
         let tau = 2.0 * std::f64::consts::PI;
         let n = self.fft_len as f64;
-        let m_len = self.taper.len();
+        let m_len = self.taper.weights.len();
         let half = (m_len / 2) as i64;
         let z_len = z.powu(self.level_len as u32);
         // The three unit phasors of each term advance by a fixed step from
@@ -172,7 +190,7 @@ impl BandSignal {
         let rho_len_step = phasor(-((level_len % fft_len) as f64) / n);
         let shift_step = phasor(self.first_decimated as f64 / m_len as f64);
         let mut sum = Complex64::new(0.0, 0.0);
-        for &w in &self.taper {
+        for &w in &self.taper.weights {
             let bin = (one - z_len * rho_k_len) / (one - z * rho_k);
             sum += w * bin * shift;
             rho_k *= rho_step;
@@ -201,6 +219,9 @@ impl DecaySpectra {
             input: Vec::new(),
             scratch: Vec::new(),
             sample_rate_hz,
+            band_kits: Vec::new(),
+            band_buffer: Vec::new(),
+            band_scratch: Vec::new(),
         }
     }
 
@@ -246,6 +267,23 @@ impl DecaySpectra {
         plan
     }
 
+    /// The taper and inverse plan of bands of `m_len` points.
+    fn band_kit(&mut self, m_len: usize) -> (Arc<Taper>, Arc<dyn Fft<f64>>) {
+        let kit = match self.band_kits.iter().position(|k| k.inverse.len() == m_len) {
+            Some(index) => &self.band_kits[index],
+            None => {
+                let weights = gaussian_taper(m_len);
+                let fill = weights.iter().map(|w| w * w).sum::<f64>() / m_len as f64;
+                self.band_kits.push(BandKit {
+                    taper: Arc::new(Taper { weights, fill }),
+                    inverse: self.complex_planner.plan_fft_inverse(m_len),
+                });
+                &self.band_kits[self.band_kits.len() - 1]
+            }
+        };
+        (Arc::clone(&kit.taper), Arc::clone(&kit.inverse))
+    }
+
     /// Power spectrum of the whole decay, unwindowed (for a damped
     /// exponential exactly a Lorentzian: Bertocco, Offelli & Petri, IEEE
     /// Trans. Instrum. Meas. 43(2), 1994), scaled as the display spectrum
@@ -289,28 +327,28 @@ impl DecaySpectra {
             .iter()
             .rposition(|l| l.len >= needed)
             .unwrap_or(0);
-        let level = &self.levels[level_index];
-        let m_len = level.fft_len / factor;
+        let m_len = self.levels[level_index].fft_len / factor;
         if m_len < 2 * SKIP + MIN_SAMPLES {
             return None;
         }
+        let (taper, inverse) = self.band_kit(m_len);
+        let level = &self.levels[level_index];
         let centre_bin = (request.centre_hz * level.fft_len as f64 / fs).round() as i64;
-        let taper = gaussian_taper(m_len);
         let half = (m_len / 2) as i64;
-        let mut buffer: Vec<Complex64> = (0..m_len)
-            .map(|index| {
-                // Inverse-FFT order: offsets 0, 1, …, M/2−1, −M/2, …, −1.
-                let i = if (index as i64) < half {
-                    index as i64
-                } else {
-                    index as i64 - m_len as i64
-                };
-                taper[(i + half) as usize] * level.bin(centre_bin + i)
-            })
-            .collect();
-        self.complex_planner
-            .plan_fft_inverse(m_len)
-            .process(&mut buffer);
+        let buffer = &mut self.band_buffer;
+        buffer.clear();
+        buffer.extend((0..m_len).map(|index| {
+            // Inverse-FFT order: offsets 0, 1, …, M/2−1, −M/2, …, −1.
+            let i = if (index as i64) < half {
+                index as i64
+            } else {
+                index as i64 - m_len as i64
+            };
+            taper.weights[(i + half) as usize] * level.bin(centre_bin + i)
+        }));
+        self.band_scratch
+            .resize(inverse.get_inplace_scratch_len(), Complex64::new(0.0, 0.0));
+        inverse.process_with_scratch(buffer, &mut self.band_scratch);
         let usable_end = (level.len / factor).saturating_sub(SKIP);
         let count = usable_end.saturating_sub(SKIP).min(MAX_SAMPLES);
         if count < MIN_SAMPLES {
@@ -338,7 +376,7 @@ impl DecaySpectra {
             centre_rad,
             owned_half_width_rad: std::f64::consts::PI / (4.0 * factor as f64),
             noise_var,
-            taper_fill: taper.iter().map(|w| w * w).sum::<f64>() / m_len as f64,
+            taper_fill: taper.fill,
             level_len: level.len,
             fft_len: level.fft_len,
             centre_bin,
@@ -450,6 +488,29 @@ mod tests {
         }
         let back = band.to_full_rate(w);
         assert!((back - z).norm() < 1e-12);
+    }
+
+    /// A band made with the kept taper and plan (a second band of the
+    /// same length first) is the band a fresh transform makes.
+    #[test]
+    fn kept_taper_and_plan_give_the_same_band() {
+        let x = damped(20_000, &[(800.0, 20.0, Complex64::new(0.2, 0.1))]);
+        let request = |centre_hz| BandRequest {
+            centre_hz,
+            span_samples: 8_000,
+        };
+        let mut fresh = DecaySpectra::new(FS);
+        fresh.transform(&x);
+        let once = fresh.band(request(800.0), |_, _| 1e-8).expect("band");
+        let mut kept = DecaySpectra::new(FS);
+        kept.transform(&x);
+        let other = kept.band(request(1500.0), |_, _| 1e-8).expect("band");
+        let again = kept.band(request(800.0), |_, _| 1e-8).expect("band");
+        assert_eq!(other.samples.len(), again.samples.len());
+        assert_eq!(once.samples, again.samples);
+        assert_eq!(once.taper_fill, again.taper_fill);
+        let z = Complex64::from_polar((-20.0 / FS).exp(), 2.0 * PI * 800.0 / FS);
+        assert_eq!(once.gain(z), again.gain(z));
     }
 
     #[test]

@@ -23,6 +23,9 @@ pub(super) struct NoiseProfile {
     input: Vec<f32>,
     output: Vec<Complex32>,
     scratch: Vec<Complex32>,
+    /// The Hann window of the last length measured, and its energy.
+    window: Vec<f32>,
+    window_energy: f64,
 }
 
 impl std::fmt::Debug for NoiseProfile {
@@ -51,15 +54,19 @@ impl NoiseProfile {
             return;
         };
         let len = quiet.len();
-        let window = |n: usize| {
-            let x = (n as f64 + 0.5) / len as f64;
-            (0.5 - 0.5 * (2.0 * std::f64::consts::PI * x).cos()) as f32
-        };
+        if self.window.len() != len {
+            let window = |n: usize| {
+                let x = (n as f64 + 0.5) / len as f64;
+                (0.5 - 0.5 * (2.0 * std::f64::consts::PI * x).cos()) as f32
+            };
+            self.window = (0..len).map(window).collect();
+            self.window_energy = self.window.iter().map(|&w| f64::from(w).powi(2)).sum();
+        }
         self.input.clear();
         self.input
-            .extend(quiet.iter().enumerate().map(|(n, &x)| x * window(n)));
+            .extend(quiet.iter().zip(&self.window).map(|(&x, &w)| x * w));
         self.input.resize(fft_len, 0.0);
-        let window_energy: f64 = (0..len).map(|n| f64::from(window(n)).powi(2)).sum();
+        let window_energy = self.window_energy;
         if plan
             .process_with_scratch(&mut self.input, &mut self.output, &mut self.scratch)
             .is_err()
