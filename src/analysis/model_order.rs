@@ -65,8 +65,9 @@ pub(super) fn prune(y: &[Complex64], mut fit: Fit, noise: &BandNoise) -> Fit {
 /// The same criterion once more for the poles whose Lorentzians overlap a
 /// neighbour's (centres closer than the sum of their half-power
 /// half-widths): with the poles held fixed, removing one looks costly
-/// because its neighbour cannot move to take its share; here each such
-/// removal is refitted ([`refine`]) before the comparison, so each order
+/// because its neighbour cannot move to take its share; here the removal
+/// of the weaker of each overlapping pair (the merge keeps the stronger)
+/// is refitted ([`refine`]) before the comparison, so each order
 /// is judged at its own least-squares optimum, as the criterion asks
 /// (Schwarz 1978). If the cheapest costs under the price, the two poles
 /// are one mode whose decay bends (early reflections adding late copies
@@ -75,7 +76,7 @@ pub(super) fn prune(y: &[Complex64], mut fit: Fit, noise: &BandNoise) -> Fit {
 /// refitted single pole would be pulled off the mode by the bend). A true
 /// close pair costs far more than the price to split. One merge per band.
 fn merge_refitted_neighbours(y: &[Complex64], fit: Fit, price: f64) -> Fit {
-    let cheapest = overlapping(&fit)
+    let cheapest = overlapping(&fit, y.len())
         .into_iter()
         .filter_map(|drop| {
             let mut rest = fit.poles.clone();
@@ -117,16 +118,20 @@ fn nearest_other(poles: &[Complex64], i: usize) -> Option<usize> {
     })
 }
 
-/// Indices of the poles whose Lorentzian overlaps another's.
-fn overlapping(fit: &Fit) -> Vec<usize> {
+/// Indices of the poles whose Lorentzian overlaps that of a pole with a
+/// higher peak: of two overlapping poles only the weaker is tried out,
+/// since the merge keeps the stronger either way.
+fn overlapping(fit: &Fit, len: usize) -> Vec<usize> {
     let decay = |w: &Complex64| (-w.norm().ln()).max(0.0);
+    let height =
+        |i: usize| fit.amplitudes[i].norm() / decay(&fit.poles[i]).max(1.0 / len.max(1) as f64);
     (0..fit.poles.len())
         .filter(|&i| {
             let wi = fit.poles[i];
-            fit.poles
-                .iter()
-                .enumerate()
-                .any(|(j, wj)| j != i && (wi.arg() - wj.arg()).abs() < decay(&wi) + decay(wj))
+            fit.poles.iter().enumerate().any(|(j, wj)| {
+                let stronger = height(j) > height(i) || (height(j) == height(i) && j < i);
+                j != i && stronger && (wi.arg() - wj.arg()).abs() < decay(&wi) + decay(wj)
+            })
         })
         .collect()
 }
