@@ -56,15 +56,14 @@ pub(super) fn find_candidates(
     // strike's own sound) is a floor too: the median of the whole
     // spectrum, not of the band searched, so a narrow band's own modes
     // do not raise it.
-    let diffuse = median(&power[2..power.len() - 2]);
-    let threshold = |k: usize| {
-        (noise_power(k as f64 * spectrum.bin_hz) * above)
-            .max(diffuse * above)
-            .max(rounding)
-            .max(in_range)
-    };
+    let diffuse = median_of_every_fourth(&power[2..power.len() - 2]);
+    // The part of the threshold that is the same in every bin first: the
+    // room noise is looked up only for the peaks that pass it.
+    let common = (diffuse * above).max(rounding).max(in_range);
+    let clears =
+        |k: usize| power[k] > common && power[k] > noise_power(k as f64 * spectrum.bin_hz) * above;
     let mut found: Vec<Candidate> = (low..=high)
-        .filter(|&k| power[k] >= power[k - 1] && power[k] > power[k + 1] && power[k] > threshold(k))
+        .filter(|&k| power[k] >= power[k - 1] && power[k] > power[k + 1] && clears(k))
         .filter_map(|k| {
             let base = prominence_base(power, k);
             let prominence_db = 10.0 * f64::from(power[k] / base).log10();
@@ -86,10 +85,14 @@ pub(super) fn find_candidates(
     found
 }
 
-fn median(values: &[f32]) -> f32 {
-    let mut sorted = values.to_vec();
-    let mid = sorted.len() / 2;
-    let (_, m, _) = sorted.select_nth_unstable_by(mid, f32::total_cmp);
+/// The median of every fourth value: neighbouring bins of the
+/// zero-padded spectrum are correlated, and a quarter of them, evenly
+/// spread, give the level of its floor as well (its scatter over
+/// thousands of bins is far under a dB) for a quarter of the work.
+fn median_of_every_fourth(values: &[f32]) -> f32 {
+    let mut picked: Vec<f32> = values.iter().step_by(4).copied().collect();
+    let mid = picked.len() / 2;
+    let (_, m, _) = picked.select_nth_unstable_by(mid, f32::total_cmp);
     *m
 }
 
