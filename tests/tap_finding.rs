@@ -159,6 +159,38 @@ fn second_strikes_are_double_strikes() {
     }
 }
 
+/// A decay stopped short, as when the maker lays a hand on the plate, a
+/// recording is cut at a loud point, or a sampled instrument's data end,
+/// is unforetold sound too, but nothing rings after it: one tap, never a
+/// double strike. The sound stops within 0 to 20 ms here, 60 to 400 ms
+/// after the strike (common practice, no source); the second strikes of
+/// `second_strikes_are_double_strikes`, which ring on, are still refused.
+#[test]
+fn a_decay_stopped_short_is_not_a_double_strike() {
+    for &stop_ms in &[0.0, 1.0, 5.0, 20.0] {
+        for &after_ms in &[60.0, 150.0, 400.0] {
+            let mut x = vec![0.0; (3.5 * FS) as usize];
+            strike(&mut x, 0.5, &plate(0.25), 0.05);
+            strike(&mut x, 2.0, &plate(0.25), 0.05);
+            let from = ((0.5 + after_ms / 1000.0) * FS) as usize;
+            let ramp = ((stop_ms / 1000.0 * FS) as usize).max(1);
+            for (i, v) in x[from..(2.0 * FS) as usize - 1].iter_mut().enumerate() {
+                *v *= if i < ramp {
+                    0.5 + 0.5 * (PI * i as f64 / ramp as f64).cos()
+                } else {
+                    0.0
+                };
+            }
+            let report = analyze(&with_noise(x, 1e-4, 70 + after_ms as u64));
+            assert_eq!(
+                reasons(&report),
+                vec![None, None],
+                "stopped {after_ms} ms after the strike within {stop_ms} ms"
+            );
+        }
+    }
+}
+
 /// A constant offset of up to ±0.3 full scale (a poor converter or a DC
 /// coupled input) changes neither the taps found nor their modes.
 #[test]

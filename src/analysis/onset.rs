@@ -49,6 +49,25 @@ const NEW_SOUND_RATIO: f64 = 10.0;
 /// memory) stays below; a mallet that bounces back at a third of its first
 /// strength is above.
 const SECOND_STRIKE_ENERGY_RATIO: f64 = 0.1;
+/// New sound is a second strike only if the record still sounds
+/// [`RINGING_FROM_BLOCKS`] to [`RINGING_UNTIL_BLOCKS`] blocks (5–10 ms)
+/// after it: a strike sets the object ringing again, for tens of
+/// milliseconds even in a wood block (τ 5–10 ms), while a sound stopped
+/// short (a hand laid on the plate, a recording cut at a loud point, a
+/// sampled instrument whose data end) leaves the room noise (common
+/// practice, no source).
+const RINGING_FROM_BLOCKS: usize = 5;
+/// See [`RINGING_FROM_BLOCKS`].
+const RINGING_UNTIL_BLOCKS: usize = 10;
+/// What "still sounds" means: above what the margin asks over the room
+/// noise, and above this share (−20 dB) of the record's power in the
+/// block before the new sound. After a second strike the record keeps at
+/// least about half its power there (the weakest of the synthetic second
+/// strikes, one in anti-phase with the decay, kept 0.56 of it); after a
+/// sound stopped short, under a thousandth is left (the high-pass of the
+/// input's DC blocker still settling), so the share sits between
+/// (tapwright's choice, measured in `tests/tap_finding.rs`).
+const RINGING_SHARE: f64 = 0.01;
 
 /// What one block tells.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -142,6 +161,11 @@ impl NoveltyDetector {
     /// predictor: noise power × (1 + Σ aₖ²).
     pub fn noise_error_power(&self) -> f64 {
         self.noise_power * self.noise_gain
+    }
+
+    /// The room noise's power per sample, as told.
+    pub fn noise_power(&self) -> f64 {
+        self.noise_power
     }
 
     /// True once a predictor has been fitted to the decay.
@@ -307,13 +331,18 @@ pub struct SecondStrikeWatch {
     strike_energy: Option<f64>,
     /// Unforetold energy of the previous block (a strike may straddle two).
     previous_block_energy: f64,
+    /// New sound heard, waiting to see whether the record still sounds
+    /// after it: blocks since, and the power summed over the blocks that
+    /// count.
+    pending: Option<(usize, f64, f64)>,
     found: bool,
 }
 
 impl SecondStrikeWatch {
-    /// True once a second strike was heard.
+    /// True once a second strike was heard (new sound the record ended
+    /// too soon after to tell whether it rings counts as one).
     pub fn found_second_strike(&self) -> bool {
-        self.found
+        self.found || self.pending.is_some()
     }
 
     /// Feeds the newest sample of `record` (whose strike is at
@@ -355,6 +384,25 @@ impl SecondStrikeWatch {
             return;
         };
         let energy = block.unforetold_power * novelty.block_len() as f64;
+        if let Some((blocks, power_sum, before)) = self.pending {
+            let block_power = power_of_block(record, novelty.block_len(), 0);
+            let blocks = blocks + 1;
+            let power_sum = power_sum
+                + if blocks > RINGING_FROM_BLOCKS {
+                    block_power
+                } else {
+                    0.0
+                };
+            if blocks < RINGING_UNTIL_BLOCKS {
+                self.pending = Some((blocks, power_sum, before));
+            } else {
+                let mean = power_sum / (RINGING_UNTIL_BLOCKS - RINGING_FROM_BLOCKS) as f64;
+                self.found |=
+                    mean > audible_ratio * novelty.noise_power() && mean > RINGING_SHARE * before;
+                self.pending = None;
+            }
+            return;
+        }
         if still_rising {
             self.strike_energy = Some(strike_energy + energy);
             self.previous_block_energy = 0.0;
@@ -364,8 +412,27 @@ impl SecondStrikeWatch {
         self.previous_block_energy = energy;
         let audible = block.unforetold_power > audible_ratio * novelty.noise_error_power();
         let strong = burst > SECOND_STRIKE_ENERGY_RATIO * strike_energy;
-        self.found |= audible && strong && block.ratio() > NEW_SOUND_RATIO;
+        if !self.found && audible && strong && block.ratio() > NEW_SOUND_RATIO {
+            let before = power_of_block(record, novelty.block_len(), 1);
+            self.pending = Some((0, 0.0, before));
+        }
     }
+}
+
+/// Mean-square of the block of `block_len` samples that ends `back`
+/// blocks before the end of `record` (0: the newest block); 0 if the
+/// record is not that long.
+fn power_of_block(record: &[f32], block_len: usize, back: usize) -> f64 {
+    let end = record.len().saturating_sub(back * block_len);
+    let start = end.saturating_sub(block_len);
+    if end == start {
+        return 0.0;
+    }
+    record[start..end]
+        .iter()
+        .map(|&x| f64::from(x) * f64::from(x))
+        .sum::<f64>()
+        / (end - start) as f64
 }
 
 #[cfg(test)]
