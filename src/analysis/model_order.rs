@@ -93,10 +93,7 @@ fn merge_refitted_neighbours(y: &[Complex64], fit: Fit, price: f64) -> Fit {
     let Some(partner) = nearest_other(&fit.poles, drop) else {
         return fit;
     };
-    let height = |i: usize| {
-        let decay = (-fit.poles[i].norm().ln()).max(1.0 / y.len().max(1) as f64);
-        fit.amplitudes[i].norm() / decay
-    };
+    let height = |i: usize| peak_height(&fit, i, y.len());
     let (keep, gone) = if height(drop) > height(partner) {
         (drop, partner)
     } else {
@@ -108,6 +105,13 @@ fn merge_refitted_neighbours(y: &[Complex64], fit: Fit, price: f64) -> Fit {
     merged.amplitudes.remove(gone);
     merged.residual_energy = energy;
     merged
+}
+
+/// Height of pole `i`'s peak in an unwindowed spectrum of `len` samples:
+/// |b|/α, or |b|·len for a pole slower than that.
+fn peak_height(fit: &Fit, i: usize, len: usize) -> f64 {
+    let decay = (-fit.poles[i].norm().ln()).max(1.0 / len.max(1) as f64);
+    fit.amplitudes[i].norm() / decay
 }
 
 /// The pole nearest in angle to pole `i`.
@@ -123,8 +127,7 @@ fn nearest_other(poles: &[Complex64], i: usize) -> Option<usize> {
 /// since the merge keeps the stronger either way.
 fn overlapping(fit: &Fit, len: usize) -> Vec<usize> {
     let decay = |w: &Complex64| (-w.norm().ln()).max(0.0);
-    let height =
-        |i: usize| fit.amplitudes[i].norm() / decay(&fit.poles[i]).max(1.0 / len.max(1) as f64);
+    let height = |i: usize| peak_height(fit, i, len);
     (0..fit.poles.len())
         .filter(|&i| {
             let wi = fit.poles[i];
