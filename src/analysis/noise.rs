@@ -8,6 +8,8 @@ use std::sync::Arc;
 use realfft::{RealFftPlanner, RealToComplex};
 use rustfft::num_complex::Complex32;
 
+use super::spectrum::hann_weight;
+
 /// Fewer quiet samples than this: no noise estimate (zero).
 const MIN_SAMPLES: usize = 32;
 /// A band's noise is averaged over at least this many periodogram bins.
@@ -55,11 +57,7 @@ impl NoiseProfile {
         };
         let len = quiet.len();
         if self.window.len() != len {
-            let window = |n: usize| {
-                let x = (n as f64 + 0.5) / len as f64;
-                (0.5 - 0.5 * (2.0 * std::f64::consts::PI * x).cos()) as f32
-            };
-            self.window = (0..len).map(window).collect();
+            self.window = (0..len).map(|n| hann_weight(n, len) as f32).collect();
             self.window_energy = self.window.iter().map(|&w| f64::from(w).powi(2)).sum();
         }
         self.input.clear();

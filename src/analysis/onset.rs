@@ -27,6 +27,8 @@
 //! the error is judged against is never below what the noise alone gives
 //! through the current predictor ([`NoveltyDetector::set_noise_power`]).
 
+use super::spectrum::hann_weight;
+
 /// Prediction order: room for twelve modes.
 const ORDER: usize = 24;
 /// Length of the stretch each predictor is fitted to.
@@ -119,12 +121,7 @@ impl NoveltyDetector {
     pub fn new(sample_rate_hz: f64) -> Self {
         let samples = |ms: f64| ((ms * 1e-3 * sample_rate_hz).round() as usize).max(1);
         let fit_len = samples(FIT_MS).max(4 * ORDER);
-        let window = (0..fit_len)
-            .map(|i| {
-                let x = (i as f64 + 0.5) / fit_len as f64;
-                0.5 - 0.5 * (2.0 * std::f64::consts::PI * x).cos()
-            })
-            .collect();
+        let window = (0..fit_len).map(|i| hann_weight(i, fit_len)).collect();
         Self {
             ring: vec![0.0; fit_len],
             write: 0,
@@ -332,9 +329,8 @@ pub struct SecondStrikeWatch {
     /// Unforetold energy of the previous block (a strike may straddle two).
     previous_block_energy: f64,
     /// New sound heard, waiting to see whether the record still sounds
-    /// after it: blocks since, and the power summed over the blocks that
-    /// count.
-    pending: Option<(usize, f64, f64)>,
+    /// after it.
+    pending: Option<PendingStrike>,
     found: bool,
 }
 
@@ -351,7 +347,7 @@ impl SecondStrikeWatch {
     /// side of the onset), and from then on a block that brings new sound,
     /// `audible_ratio` times above what the room noise alone leaves through
     /// the predictor, with a good part of the strike's energy, is a second
-    /// strike.
+    /// strike if the record still sounds 5–10 ms after it ([`PendingStrike`]).
     ///
     /// While the sound is `still_rising` (its envelope made a new maximum
     /// a moment ago), the strike's own excitation is going on: a soft
@@ -384,21 +380,11 @@ impl SecondStrikeWatch {
             return;
         };
         let energy = block.unforetold_power * novelty.block_len() as f64;
-        if let Some((blocks, power_sum, before)) = self.pending {
+        if let Some(pending) = &mut self.pending {
             let block_power = power_of_block(record, novelty.block_len(), 0);
-            let blocks = blocks + 1;
-            let power_sum = power_sum
-                + if blocks > RINGING_FROM_BLOCKS {
-                    block_power
-                } else {
-                    0.0
-                };
-            if blocks < RINGING_UNTIL_BLOCKS {
-                self.pending = Some((blocks, power_sum, before));
-            } else {
-                let mean = power_sum / (RINGING_UNTIL_BLOCKS - RINGING_FROM_BLOCKS) as f64;
-                self.found |=
-                    mean > audible_ratio * novelty.noise_power() && mean > RINGING_SHARE * before;
+            let audible_power = audible_ratio * novelty.noise_power();
+            if let Some(rings) = pending.add_block(block_power, audible_power) {
+                self.found |= rings;
                 self.pending = None;
             }
             return;
@@ -413,9 +399,41 @@ impl SecondStrikeWatch {
         let audible = block.unforetold_power > audible_ratio * novelty.noise_error_power();
         let strong = burst > SECOND_STRIKE_ENERGY_RATIO * strike_energy;
         if !self.found && audible && strong && block.ratio() > NEW_SOUND_RATIO {
-            let before = power_of_block(record, novelty.block_len(), 1);
-            self.pending = Some((0, 0.0, before));
+            self.pending = Some(PendingStrike {
+                power_before: power_of_block(record, novelty.block_len(), 1),
+                ..PendingStrike::default()
+            });
         }
+    }
+}
+
+/// New sound heard during a record, not yet judged: a second strike only
+/// if the record still sounds [`RINGING_FROM_BLOCKS`] to
+/// [`RINGING_UNTIL_BLOCKS`] blocks after it.
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
+struct PendingStrike {
+    /// Blocks since the new sound.
+    blocks: usize,
+    /// The record's power summed over the blocks that count.
+    ringing_power_sum: f64,
+    /// The record's power in the block before the new sound.
+    power_before: f64,
+}
+
+impl PendingStrike {
+    /// Takes the newest block's power; once the blocks that count are in,
+    /// tells whether the record still sounded: above `audible_power` and
+    /// above [`RINGING_SHARE`] of the power before the new sound.
+    fn add_block(&mut self, block_power: f64, audible_power: f64) -> Option<bool> {
+        self.blocks += 1;
+        if self.blocks > RINGING_FROM_BLOCKS {
+            self.ringing_power_sum += block_power;
+        }
+        if self.blocks < RINGING_UNTIL_BLOCKS {
+            return None;
+        }
+        let mean = self.ringing_power_sum / (RINGING_UNTIL_BLOCKS - RINGING_FROM_BLOCKS) as f64;
+        Some(mean > audible_power && mean > RINGING_SHARE * self.power_before)
     }
 }
 

@@ -103,6 +103,14 @@ impl DisplaySpectrum {
     }
 }
 
+/// Weight `n` of a Hann window of `len` samples, sampled at the centres
+/// of the samples ((n + ½)/len of the way along), so it is symmetric and
+/// never exactly zero at the ends.
+pub(super) fn hann_weight(n: usize, len: usize) -> f64 {
+    let x = (n as f64 + 0.5) / len.max(1) as f64;
+    0.5 - 0.5 * (2.0 * std::f64::consts::PI * x).cos()
+}
+
 /// dB of a power, floored at -200 dB.
 pub fn power_to_db(power: f32) -> f64 {
     10.0 * (f64::from(power).max(1e-20)).log10()
